@@ -1,0 +1,327 @@
+#include "coilkick/engine/circuit.hpp"
+
+#include <cmath>
+#include <limits>
+#include <map>
+#include <sstream>
+#include <stdexcept>
+
+#include "coilkick/engine/closest_name.hpp"
+
+namespace coilkick::engine {
+
+// Writes one element's local contributions into the workspace's extended arrays.
+class GlobalStamper final : public Stamper {
+ public:
+  GlobalStamper(Workspace& w, const int* map, int channel_offset)
+      : w_(w), map_(map), ch_(channel_offset) {}
+  void add_flow(int row, double v) override {
+    if (map_[row] >= 0) w_.flow[map_[row]] += v;
+  }
+  void add_flow_slope(int row, int col, double v) override {
+    if (map_[row] >= 0 && map_[col] >= 0) w_.flow_slope(map_[row], map_[col]) += v;
+  }
+  void add_flow_time_rate(int row, double v) override {
+    if (map_[row] >= 0) w_.flow_time_rate[map_[row]] += v;
+  }
+  void add_mass(int row, int col, double v) override {
+    if (map_[row] >= 0 && map_[col] >= 0) w_.mass(map_[row], map_[col]) += v;
+  }
+  void add_mass_slope(int row, int col, double v) override {
+    if (map_[row] >= 0 && map_[col] >= 0) w_.mass_slope(map_[row], map_[col]) += v;
+  }
+  void add_power(int channel, double v) override { w_.power[ch_ + channel] += v; }
+  void add_power_slope(int channel, int col, double v) override {
+    if (map_[col] >= 0) w_.power_slope(ch_ + channel, map_[col]) += v;
+  }
+  void add_power_time_rate(int channel, double v) override { w_.power_time_rate[ch_ + channel] += v; }
+
+ private:
+  Workspace& w_;
+  const int* map_;
+  int ch_;
+};
+
+namespace {
+// Collects one element's flow and mass rows in local numbering (for terminal currents).
+class LocalStamper final : public Stamper {
+ public:
+  explicit LocalStamper(int n) : flow(n, 0.0), mass(n, std::vector<double>(n, 0.0)) {}
+  void add_flow(int row, double v) override { flow[row] += v; }
+  void add_flow_slope(int, int, double) override {}
+  void add_flow_time_rate(int, double) override {}
+  void add_mass(int row, int col, double v) override { mass[row][col] += v; }
+  void add_mass_slope(int, int, double) override {}
+  void add_power(int, double) override {}
+  void add_power_slope(int, int, double) override {}
+  void add_power_time_rate(int, double) override {}
+  std::vector<double> flow;
+  std::vector<std::vector<double>> mass;
+};
+}  // namespace
+
+Circuit::Circuit(const Network& network)
+    : elements_(network.elements()), sources_(network.voltage_sources()),
+      stray_F_(network.stray_capacitance_F()) {
+  if (elements_.empty()) throw std::invalid_argument("network: it has no elements");
+  // Nodes: free nodes in order of first appearance, then fixed nodes in source order.
+  std::map<std::string, int> fixed;
+  for (std::size_t j = 0; j < sources_.size(); ++j) fixed[sources_[j].node] = static_cast<int>(j);
+  std::map<std::string, int> free_index;
+  for (const auto& e : elements_) {
+    for (const auto& t : e->terminals()) {
+      if (t == Network::ground || fixed.count(t) || free_index.count(t)) continue;
+      free_index[t] = static_cast<int>(node_names_.size());
+      node_names_.push_back(t);
+    }
+  }
+  n_nodes_ = static_cast<int>(node_names_.size());
+  for (const auto& s : sources_) {
+    bool used = false;
+    for (const auto& e : elements_) {
+      for (const auto& t : e->terminals()) used = used || t == s.node;
+    }
+    if (!used) {
+      throw std::invalid_argument("voltage source '" + s.name + "': node '" + s.node +
+                                  "' is not connected to any element");
+    }
+  }
+  for (const auto& n : node_names_) states_.push_back({"node:" + n, "V", StateKind::node_voltage, false, 0.0});
+  // Element internal states.
+  int next = n_nodes_;
+  std::vector<int> first_internal;
+  for (const auto& e : elements_) {
+    first_internal.push_back(next);
+    for (const auto& s : e->internal_states()) {
+      if (s.name.empty()) throw std::invalid_argument("element '" + e->name() + "': unnamed internal state");
+      if (s.kind == StateKind::internal && !(s.absolute_tolerance > 0.0)) {
+        throw std::invalid_argument("element '" + e->name() + "': internal state '" + s.name +
+                                    "' needs an absolute_tolerance > 0");
+      }
+      if (s.kind == StateKind::node_voltage) {
+        throw std::invalid_argument("element '" + e->name() + "': internal state '" + s.name +
+                                    "' cannot be a node voltage");
+      }
+      states_.push_back({e->name() + "." + s.name, s.unit, s.kind, false, s.absolute_tolerance});
+      ++next;
+    }
+  }
+  n_circuit_ = next;
+  n_fixed_ = static_cast<int>(sources_.size());
+  for (const auto& s : sources_) node_names_.push_back(s.node);
+  // Local maps.
+  for (std::size_t k = 0; k < elements_.size(); ++k) {
+    const auto& e = elements_[k];
+    std::vector<int> map;
+    for (const auto& t : e->terminals()) {
+      if (t == Network::ground) map.push_back(-1);
+      else if (fixed.count(t)) map.push_back(n_circuit_ + fixed[t]);
+      else map.push_back(free_index[t]);
+    }
+    const int ni = static_cast<int>(e->internal_states().size());
+    for (int i = 0; i < ni; ++i) map.push_back(first_internal[k] + i);
+    maps_.push_back(std::move(map));
+  }
+  // Power channels: element channels, then one per voltage source.
+  for (const auto& e : elements_) {
+    channel_offset_.push_back(static_cast<int>(channels_.size()));
+    for (const auto& c : e->power_channels()) channels_.push_back({e->name() + "." + c.name, e->name(), c.kind});
+  }
+  n_element_channels_ = static_cast<int>(channels_.size());
+  for (const auto& s : sources_) channels_.push_back({s.name + ".delivered", s.name, PowerChannelSpec::Kind::supplied});
+  for (const auto& c : channels_) states_.push_back({"energy:" + c.name, "J", StateKind::internal, true, 0.0});
+  check_every_node_has_capacitance();
+}
+
+void Circuit::check_every_node_has_capacitance() {
+  if (stray_F_ > 0.0) return;
+  Workspace w = make_workspace();
+  Eigen::VectorXd x = Eigen::VectorXd::Zero(state_count());
+  assemble(0.0, 0.0, x.data(), w);
+  for (int k = 0; k < n_circuit_; ++k) {
+    if (w.mass(k, k) == 0.0) {
+      throw std::invalid_argument("network: '" + states_[k].name +
+                                  "' has no capacitance (or inductance); connect a capacitor or "
+                                  "set a stray capacitance > 0");
+    }
+  }
+}
+
+Workspace Circuit::make_workspace() const {
+  Workspace w;
+  const int ne = n_circuit_ + n_fixed_;
+  const int nch = static_cast<int>(channels_.size());
+  const int n = state_count();
+  w.ext_value = Eigen::VectorXd::Zero(ne);
+  w.ext_rate = Eigen::VectorXd::Zero(ne);
+  w.flow = Eigen::VectorXd::Zero(ne);
+  w.flow_time_rate = Eigen::VectorXd::Zero(ne);
+  w.flow_slope = Eigen::MatrixXd::Zero(ne, ne);
+  w.mass = Eigen::MatrixXd::Zero(ne, ne);
+  w.mass_slope = Eigen::MatrixXd::Zero(ne, ne);
+  w.power = Eigen::VectorXd::Zero(nch);
+  w.power_time_rate = Eigen::VectorXd::Zero(nch);
+  w.power_slope = Eigen::MatrixXd::Zero(nch, ne);
+  w.lu = Eigen::PartialPivLU<Eigen::MatrixXd>(n_circuit_);
+  w.rate = Eigen::VectorXd::Zero(n);
+  w.jacobian = Eigen::MatrixXd::Zero(n, n);
+  w.time_rate = Eigen::VectorXd::Zero(n);
+  w.source_current_A = Eigen::VectorXd::Zero(n_fixed_);
+  return w;
+}
+
+void Circuit::assemble(double t_s, double slope_time_s, const double* x, Workspace& w) const {
+  for (int i = 0; i < n_circuit_; ++i) w.ext_value[i] = x[i];
+  for (int j = 0; j < n_fixed_; ++j) {
+    w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
+    w.ext_rate[n_circuit_ + j] = sources_[j].voltage_V.slope(slope_time_s);
+  }
+  w.flow.setZero();
+  w.flow_time_rate.setZero();
+  w.flow_slope.setZero();
+  w.mass.setZero();
+  w.power.setZero();
+  w.power_time_rate.setZero();
+  w.power_slope.setZero();
+  for (std::size_t k = 0; k < elements_.size(); ++k) {
+    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data());
+    GlobalStamper st(w, maps_[k].data(), channel_offset_[k]);
+    elements_[k]->load(ctx, st);
+  }
+  for (int i = 0; i < n_nodes_; ++i) w.mass(i, i) += stray_F_;
+}
+
+void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspace& w,
+                       bool with_jacobian) const {
+  assemble(t_s, slope_time_s, x, w);
+  const int nc = n_circuit_, nf = n_fixed_, nch = n_element_channels_;
+  const auto vdot_f = w.ext_rate.segment(nc, nf);
+  w.lu.compute(w.mass.topLeftCorner(nc, nc));
+  Eigen::VectorXd rhs = w.flow.head(nc) - w.mass.block(0, nc, nc, nf) * vdot_f;
+  w.rate.head(nc) = w.lu.solve(rhs);
+  w.ext_rate.head(nc) = w.rate.head(nc);
+  // Current each voltage source delivers into its node: what the node's elements draw.
+  for (int j = 0; j < nf; ++j) {
+    const int p = nc + j;
+    w.source_current_A[j] = w.mass.row(p).dot(w.ext_rate) - w.flow[p];
+  }
+  for (int c = 0; c < nch; ++c) w.rate[nc + c] = w.power[c];
+  for (int j = 0; j < nf; ++j) w.rate[nc + nch + j] = w.ext_value[nc + j] * w.source_current_A[j];
+  if (!with_jacobian) return;
+
+  w.mass_slope.setZero();
+  for (std::size_t k = 0; k < elements_.size(); ++k) {
+    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data());
+    GlobalStamper st(w, maps_[k].data(), channel_offset_[k]);
+    elements_[k]->load_mass_slope(ctx, st);
+  }
+  const Eigen::MatrixXd g_minus_k = w.flow_slope - w.mass_slope;
+  w.jacobian.setZero();
+  auto jcc = w.jacobian.topLeftCorner(nc, nc);
+  jcc = w.lu.solve(g_minus_k.topLeftCorner(nc, nc));
+  Eigen::VectorXd tr = w.flow_time_rate.head(nc) + g_minus_k.block(0, nc, nc, nf) * vdot_f;
+  w.time_rate.head(nc) = w.lu.solve(tr);
+  for (int c = 0; c < nch; ++c) {
+    w.jacobian.row(nc + c).head(nc) = w.power_slope.row(c).head(nc);
+    w.time_rate[nc + c] = w.power_time_rate[c] + w.power_slope.row(c).segment(nc, nf).dot(vdot_f);
+  }
+  for (int j = 0; j < nf; ++j) {
+    const int p = nc + j;
+    const double v = w.ext_value[p];
+    // i_s = M_p·ẋ − f_p;  ∂i_s/∂x = M_pc·J_cc + K_pc − G_pc
+    Eigen::RowVectorXd di_dx = w.mass.row(p).head(nc) * jcc - g_minus_k.row(p).head(nc);
+    w.jacobian.row(nc + nch + j).head(nc) = v * di_dx;
+    const double di_dt = w.mass.row(p).head(nc).dot(w.time_rate.head(nc)) +
+                         (-g_minus_k.row(p).segment(nc, nf)).dot(vdot_f) - w.flow_time_rate[p];
+    w.time_rate[nc + nch + j] = vdot_f[j] * w.source_current_A[j] + v * di_dt;
+  }
+}
+
+std::vector<double> Circuit::terminal_currents_A(int element, double t_s, const double* x,
+                                                 Workspace& w) const {
+  evaluate(t_s, t_s, x, w, false);
+  const auto& e = *elements_.at(static_cast<std::size_t>(element));
+  const auto& map = maps_[static_cast<std::size_t>(element)];
+  const int n = static_cast<int>(map.size());
+  LocalStamper st(n);
+  ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), map.data());
+  e.load(ctx, st);
+  std::vector<double> out;
+  for (int k = 0; k < e.terminal_count(); ++k) {
+    double i = -st.flow[k];
+    for (int c = 0; c < n; ++c) i += st.mass[k][c] * (map[c] < 0 ? 0.0 : w.ext_rate[map[c]]);
+    out.push_back(i);
+  }
+  return out;
+}
+
+double Circuit::stored_energy_J(int element, double t_s, const double* x, Workspace& w) const {
+  for (int i = 0; i < n_circuit_; ++i) w.ext_value[i] = x[i];
+  for (int j = 0; j < n_fixed_; ++j) w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
+  auto one = [&](std::size_t k) {
+    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data());
+    return elements_[k]->stored_energy_J(ctx);
+  };
+  if (element >= 0) return one(static_cast<std::size_t>(element));
+  double total = 0.0;
+  for (std::size_t k = 0; k < elements_.size(); ++k) total += one(k);
+  for (int i = 0; i < n_nodes_; ++i) total += 0.5 * stray_F_ * x[i] * x[i];
+  return total;
+}
+
+double Circuit::next_corner_after_s(double t_s) const {
+  double next = std::numeric_limits<double>::infinity();
+  for (const auto& s : sources_) {
+    if (auto c = s.voltage_V.next_corner_after(t_s)) next = std::min(next, *c);
+  }
+  for (const auto& e : elements_) next = std::min(next, e->next_corner_after_s(t_s));
+  return next;
+}
+
+int Circuit::state_index(const std::string& name) const {
+  std::vector<std::string> names;
+  for (std::size_t k = 0; k < states_.size(); ++k) {
+    if (states_[k].name == name) return static_cast<int>(k);
+    names.push_back(states_[k].name);
+  }
+  throw std::invalid_argument("circuit: no state named '" + name + "'" + did_you_mean(name, names));
+}
+
+int Circuit::element_index(const std::string& name) const {
+  std::vector<std::string> names;
+  for (std::size_t k = 0; k < elements_.size(); ++k) {
+    if (elements_[k]->name() == name) return static_cast<int>(k);
+    names.push_back(elements_[k]->name());
+  }
+  throw std::invalid_argument("circuit: no element named '" + name + "'" + did_you_mean(name, names));
+}
+
+int Circuit::ext_node_index(const std::string& node) const {
+  if (node == Network::ground) return -1;
+  for (std::size_t k = 0; k < node_names_.size(); ++k) {
+    if (node_names_[k] == node) {
+      const int ik = static_cast<int>(k);
+      return ik < n_nodes_ ? ik : n_circuit_ + (ik - n_nodes_);
+    }
+  }
+  throw std::invalid_argument("circuit: no node named '" + node + "'" + did_you_mean(node, node_names_));
+}
+
+bool Circuit::has_node(const std::string& node) const {
+  if (node == Network::ground) return true;
+  for (const auto& n : node_names_) {
+    if (n == node) return true;
+  }
+  return false;
+}
+
+std::vector<std::string> Circuit::node_names() const { return node_names_; }
+
+double Circuit::node_voltage_V(const std::string& node, double t_s, const double* x) const {
+  const int k = ext_node_index(node);
+  if (k < 0) return 0.0;
+  if (k < n_circuit_) return x[k];
+  return sources_[static_cast<std::size_t>(k - n_circuit_)].voltage_V.value(t_s);
+}
+
+}  // namespace coilkick::engine

@@ -1,0 +1,109 @@
+#pragma once
+// Circuit: a Network compiled into the ODE the integrator solves.
+//
+// Unknowns ("states"), in this order:
+//   1. the voltage (V) of every node that is neither ground nor fixed by a voltage source;
+//   2. the internal states of the elements (coil currents in A, armature position ...);
+//   3. energy accumulators (J): one per element power channel, then one per voltage source
+//      (energy it delivered). They are integrated with the rest so that energies carry the same
+//      error control as the waveforms.
+// The circuit part obeys M(x)·ẋ = f(x, t) − M_fixed·V̇_fixed, with M the capacitance/inductance
+// matrix (never singular: every node has a capacitance to ground), solved by LU at each
+// evaluation; the energy rows are the channel powers. The Jacobian is analytic: assembled from
+// the element conductances, J = M⁻¹·(∂f/∂x − ∂(M·ẋ)/∂x).
+#include <Eigen/Dense>
+#include <string>
+#include <vector>
+
+#include "coilkick/engine/element.hpp"
+#include "coilkick/engine/network.hpp"
+
+namespace coilkick::engine {
+
+struct StateInfo {
+  std::string name;   // "node:sw", "valve.current", "energy:valve.winding", "energy:supply.delivered"
+  std::string unit;   // "V", "A", "J", ...
+  StateKind kind = StateKind::internal;
+  bool is_energy = false;
+  double absolute_tolerance = 0.0;  // only for element internal states that declare one
+};
+
+struct PowerChannelInfo {
+  std::string name;     // "<element>.<channel>" or "<source>.delivered"
+  std::string element;  // owning element or voltage source
+  PowerChannelSpec::Kind kind = PowerChannelSpec::Kind::dissipated;
+};
+
+// Scratch storage for evaluations. One per thread; sized by Circuit::make_workspace().
+struct Workspace {
+  Eigen::VectorXd ext_value, ext_rate;  // circuit states then fixed-node voltages
+  Eigen::VectorXd flow, flow_time_rate;
+  Eigen::MatrixXd flow_slope, mass, mass_slope;
+  Eigen::VectorXd power, power_time_rate;
+  Eigen::MatrixXd power_slope;
+  Eigen::PartialPivLU<Eigen::MatrixXd> lu;
+  // Outputs of Circuit::evaluate:
+  Eigen::VectorXd rate;        // ẋ for all states
+  Eigen::MatrixXd jacobian;    // ∂ẋ/∂x (only when requested)
+  Eigen::VectorXd time_rate;   // ∂ẋ/∂t (only when requested)
+  Eigen::VectorXd source_current_A;  // current each voltage source delivers into its node
+};
+
+class Circuit {
+ public:
+  explicit Circuit(const Network& network);
+
+  int circuit_state_count() const { return n_circuit_; }
+  int state_count() const { return static_cast<int>(states_.size()); }
+  const std::vector<StateInfo>& states() const { return states_; }
+  const std::vector<PowerChannelInfo>& power_channels() const { return channels_; }
+  const std::vector<std::shared_ptr<const Element>>& elements() const { return elements_; }
+  const std::vector<VoltageSource>& voltage_sources() const { return sources_; }
+  double stray_capacitance_F() const { return stray_F_; }
+
+  // Index of a state by name; throws std::invalid_argument listing the closest names.
+  int state_index(const std::string& name) const;
+  int element_index(const std::string& name) const;
+  // Node voltage (V) at (t, x): free node from x, fixed node from its source, ground 0.
+  double node_voltage_V(const std::string& node, double t_s, const double* x) const;
+  bool has_node(const std::string& node) const;
+  // Throws std::invalid_argument with the closest node name if `node` does not exist.
+  void require_node(const std::string& node) const { (void)ext_node_index(node); }
+  std::vector<std::string> node_names() const;  // every node except ground
+
+  Workspace make_workspace() const;
+  // Fills the raw assembly (flow, flow_slope, mass ...) at (t, x). `slope_time_s` selects the
+  // segment of the source waveforms used for their slopes (see Waveform::slope): the integrator
+  // passes the middle of the current step so that a step ending on a corner uses the slope
+  // before the corner.
+  void assemble(double t_s, double slope_time_s, const double* x, Workspace& w) const;
+  // ẋ (and, if asked, ∂ẋ/∂x and ∂ẋ/∂t) into w.rate / w.jacobian / w.time_rate.
+  void evaluate(double t_s, double slope_time_s, const double* x, Workspace& w,
+                bool with_jacobian) const;
+  // Current (A) flowing into the element at each of its terminals at (t, x).
+  std::vector<double> terminal_currents_A(int element, double t_s, const double* x,
+                                          Workspace& w) const;
+  // Energy stored in fields (J): element `e`, or the whole circuit (elements + stray) for e = -1.
+  double stored_energy_J(int element, double t_s, const double* x, Workspace& w) const;
+  // First corner of any source waveform or element time dependence strictly after t_s.
+  double next_corner_after_s(double t_s) const;
+  // Rows of the circuit part that are node KCL rows (true) or element states (false).
+  bool is_node_row(int state) const { return state < n_nodes_; }
+
+ private:
+  friend class GlobalStamper;
+  std::vector<std::shared_ptr<const Element>> elements_;
+  std::vector<VoltageSource> sources_;
+  double stray_F_ = 0.0;
+  std::vector<std::string> node_names_;   // free nodes, then fixed nodes
+  std::vector<std::vector<int>> maps_;    // per element: local index -> ext index (-1 ground)
+  std::vector<int> channel_offset_;       // per element: first global channel
+  std::vector<StateInfo> states_;
+  std::vector<PowerChannelInfo> channels_;
+  int n_nodes_ = 0, n_circuit_ = 0, n_fixed_ = 0, n_element_channels_ = 0;
+
+  int ext_node_index(const std::string& node) const;  // -1 ground, throws if unknown
+  void check_every_node_has_capacitance();
+};
+
+}  // namespace coilkick::engine

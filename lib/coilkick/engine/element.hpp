@@ -1,0 +1,101 @@
+#pragma once
+// The element interface. Every part of a network — resistor, coil, diode, transistor, relay
+// armature — is an Element. The engine describes the whole network as
+//
+//     d/dt q(x, t) = f(x, t)
+//
+// where each row is either Kirchhoff's current law at a node (q: charge held at the node,
+// f: current flowing into the node from the resistive parts of the elements) or the equation of
+// an element's own state (coil current: q = L·i, f = v_L; armature position, velocity ...).
+// An element adds its share of f, of ∂f/∂x (conductances), of ∂f/∂t, and of ∂q/∂x (capacitances,
+// inductances, masses), plus the power it turns into heat (or supplies), with its gradient.
+//
+// Local indices: an element with T terminals and S internal states addresses its unknowns as
+// 0..T-1 (the terminal node voltages, V) and T..T+S-1 (its internal states, in their units).
+// Rows use the same numbering: row k < T is the KCL row of terminal k.
+#include <string>
+#include <vector>
+
+namespace coilkick::engine {
+
+enum class StateKind { node_voltage, branch_current, internal };
+
+// An internal state that an element declares (e.g. a coil's current, an armature's position).
+struct InternalStateSpec {
+  std::string name;                 // short, e.g. "current"; the network prefixes the element name
+  std::string unit;                 // SI unit symbol, e.g. "A", "m", "m/s"
+  double absolute_tolerance = 0.0;  // error tolerance in that unit (> 0)
+  StateKind kind = StateKind::internal;
+};
+
+// Energy channel: power an element turns into heat (`dissipated`) or delivers into the network
+// (`supplied`, e.g. a current source). The engine integrates each channel into joules.
+struct PowerChannelSpec {
+  enum class Kind { dissipated, supplied };
+  std::string name;  // e.g. "heat", "winding", "core"
+  Kind kind = Kind::dissipated;
+};
+
+// Read-only view of the unknowns one element sees at one instant.
+class ElementContext {
+ public:
+  ElementContext(double time_s, const double* values, const double* rates, const int* map)
+      : time_s_(time_s), values_(values), rates_(rates), map_(map) {}
+  double time_s() const { return time_s_; }
+  // Terminal voltage (V) or internal state value for a local index (ground reads 0).
+  double value(int local) const { return map_[local] < 0 ? 0.0 : values_[map_[local]]; }
+  // Time derivative of a local unknown; only valid inside Element::load_mass_slope.
+  double rate(int local) const { return map_[local] < 0 ? 0.0 : rates_[map_[local]]; }
+
+ private:
+  double time_s_;
+  const double* values_;
+  const double* rates_;
+  const int* map_;
+};
+
+// Where elements write their contributions (local indices, see above).
+class Stamper {
+ public:
+  virtual ~Stamper() = default;
+  virtual void add_flow(int row, double value) = 0;                      // f_row += value
+  virtual void add_flow_slope(int row, int col, double value) = 0;       // ∂f_row/∂x_col
+  virtual void add_flow_time_rate(int row, double value) = 0;            // ∂f_row/∂t (explicit)
+  virtual void add_mass(int row, int col, double value) = 0;             // ∂q_row/∂x_col
+  // ∂(Σ_j ∂q_row/∂x_j · ẋ_j)/∂x_col, for state-dependent capacitances (load_mass_slope only).
+  virtual void add_mass_slope(int row, int col, double value) = 0;
+  virtual void add_power(int channel, double value_W) = 0;
+  virtual void add_power_slope(int channel, int col, double value) = 0;  // ∂P/∂x_col
+  virtual void add_power_time_rate(int channel, double value) = 0;       // ∂P/∂t (explicit)
+};
+
+class Element {
+ public:
+  Element(std::string name, std::vector<std::string> terminal_nodes);
+  virtual ~Element() = default;
+  Element(const Element&) = delete;
+  Element& operator=(const Element&) = delete;
+
+  const std::string& name() const { return name_; }
+  const std::vector<std::string>& terminals() const { return terminals_; }
+  int terminal_count() const { return static_cast<int>(terminals_.size()); }
+
+  // A word for messages and listings, e.g. "resistor".
+  virtual std::string kind() const = 0;
+  virtual std::vector<InternalStateSpec> internal_states() const { return {}; }
+  virtual std::vector<PowerChannelSpec> power_channels() const { return {}; }
+  // Adds f, ∂f/∂x, ∂f/∂t, ∂q/∂x and the channel powers at the context's instant.
+  virtual void load(const ElementContext& ctx, Stamper& out) const = 0;
+  // Only elements with state-dependent ∂q/∂x override this (see Stamper::add_mass_slope).
+  virtual void load_mass_slope(const ElementContext& /*ctx*/, Stamper& /*out*/) const {}
+  // Energy held in the element's fields (J): ½·C·v², ½·L·i², ½·m·v² ...
+  virtual double stored_energy_J(const ElementContext& /*ctx*/) const { return 0.0; }
+  // First instant strictly after t_s where the element's explicit time dependence has a corner.
+  virtual double next_corner_after_s(double /*t_s*/) const;
+
+ private:
+  std::string name_;
+  std::vector<std::string> terminals_;
+};
+
+}  // namespace coilkick::engine

@@ -1,0 +1,18 @@
+#pragma once
+// Error types of the engine.
+//  - Bad parameters or a malformed network throw std::invalid_argument naming the element and
+//    the field (Python sees ValueError).
+//  - SimulationError: the numerical solution could not be obtained (step size collapse, step
+//    budget, wall-time budget, non-finite state, Newton failure). A failed run never returns a
+//    result.
+#include <stdexcept>
+#include <string>
+
+namespace coilkick::engine {
+
+class SimulationError : public std::runtime_error {
+ public:
+  explicit SimulationError(const std::string& what) : std::runtime_error(what) {}
+};
+
+}  // namespace coilkick::engine

@@ -1,0 +1,121 @@
+#include "coilkick/engine/event_locator.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+namespace coilkick::engine {
+namespace {
+bool better(EventSpec::Kind kind, double candidate, double current) {
+  if (std::isnan(current)) return true;
+  return kind == EventSpec::Kind::maximum ? candidate > current : candidate < current;
+}
+}  // namespace
+
+EventLocator::EventLocator(const std::vector<EventSpec>& specs, int state_size,
+                           double time_tolerance_s)
+    : specs_(specs), scratch_(static_cast<std::size_t>(state_size)), tol_(time_tolerance_s) {
+  for (const auto& s : specs_) outcomes_.push_back({s.name, std::nullopt, std::nan("")});
+}
+
+double EventLocator::probe_at(const EventSpec& e, double t, const Interpolant& f) {
+  f(t, scratch_.data());
+  return e.probe(t, scratch_.data());
+}
+
+void EventLocator::start(double t_s, const double* x) {
+  for (std::size_t k = 0; k < specs_.size(); ++k) {
+    const auto& e = specs_[k];
+    if (e.kind == EventSpec::Kind::crossing || t_s < e.after_time_s) continue;
+    outcomes_[k].time_s = t_s;
+    outcomes_[k].value = e.probe(t_s, x);
+  }
+}
+
+double EventLocator::locate_crossing(const EventSpec& e, double a, double ga, double b,
+                                     const Interpolant& f) {
+  // Bisection on g = probe − threshold; ga has the pre-crossing sign.
+  for (int it = 0; it < 200 && (b - a) > tol_; ++it) {
+    const double m = 0.5 * (a + b);
+    if (m <= a || m >= b) break;
+    const double gm = probe_at(e, m, f) - e.threshold;
+    if ((gm > 0.0) == (ga > 0.0) && gm != 0.0) {
+      a = m;
+      ga = gm;
+    } else {
+      b = m;
+    }
+  }
+  return b;
+}
+
+void EventLocator::refine_extremum(std::size_t k, double a, double b, const Interpolant& f) {
+  const auto& e = specs_[k];
+  const double sign = e.kind == EventSpec::Kind::maximum ? 1.0 : -1.0;
+  const double r = 0.5 * (std::sqrt(5.0) - 1.0);
+  double c = b - r * (b - a), d = a + r * (b - a);
+  double fc = sign * probe_at(e, c, f), fd = sign * probe_at(e, d, f);
+  for (int it = 0; it < 200 && (b - a) > tol_; ++it) {
+    if (fc > fd) {
+      b = d;
+      d = c;
+      fd = fc;
+      c = b - r * (b - a);
+      fc = sign * probe_at(e, c, f);
+    } else {
+      a = c;
+      c = d;
+      fc = fd;
+      d = a + r * (b - a);
+      fd = sign * probe_at(e, d, f);
+    }
+  }
+  const double tm = 0.5 * (a + b);
+  const double vm = probe_at(e, tm, f);
+  if (better(e.kind, vm, outcomes_[k].value)) {
+    outcomes_[k].time_s = tm;
+    outcomes_[k].value = vm;
+  }
+}
+
+double EventLocator::on_step(double t0, const double* x0, double t1, const double* x1,
+                             const Interpolant& f) {
+  double stop_at = std::numeric_limits<double>::infinity();
+  for (std::size_t k = 0; k < specs_.size(); ++k) {
+    const auto& e = specs_[k];
+    if (t1 < e.after_time_s) continue;
+    const double a = std::max(t0, e.after_time_s);
+    if (e.kind == EventSpec::Kind::crossing) {
+      if (outcomes_[k].time_s) continue;  // first occurrence only
+      const double ga = (a == t0 ? e.probe(t0, x0) : probe_at(e, a, f)) - e.threshold;
+      const double gb = e.probe(t1, x1) - e.threshold;
+      const bool falls = ga > 0.0 && gb <= 0.0;
+      const bool rises = ga < 0.0 && gb >= 0.0;
+      const bool hit = (e.direction == Direction::falling && falls) ||
+                       (e.direction == Direction::rising && rises) ||
+                       (e.direction == Direction::either && (falls || rises));
+      if (!hit) continue;
+      const double tc = locate_crossing(e, a, ga, t1, f);
+      outcomes_[k].time_s = tc;
+      outcomes_[k].value = probe_at(e, tc, f);
+      if (e.stops_run) stop_at = std::min(stop_at, tc);
+      continue;
+    }
+    // Extremum: sample, then refine around the best sample.
+    constexpr int n = 9;
+    double ts[n], vs[n];
+    int best = 0;
+    for (int j = 0; j < n; ++j) {
+      ts[j] = a + (t1 - a) * j / (n - 1);
+      vs[j] = j == n - 1 ? e.probe(t1, x1) : (j == 0 && a == t0 ? e.probe(t0, x0) : probe_at(e, ts[j], f));
+      if (better(e.kind, vs[j], vs[best]) && j > 0) best = j;
+    }
+    if (!better(e.kind, vs[best], outcomes_[k].value) && outcomes_[k].time_s) continue;
+    outcomes_[k].time_s = ts[best];
+    outcomes_[k].value = vs[best];
+    if (t1 > a) refine_extremum(k, ts[std::max(best - 1, 0)], ts[std::min(best + 1, n - 1)], f);
+  }
+  return stop_at;
+}
+
+}  // namespace coilkick::engine

@@ -1,0 +1,105 @@
+#include "coilkick/engine/operating_point.hpp"
+
+#include <cmath>
+#include <sstream>
+
+#include "coilkick/engine/errors.hpp"
+
+namespace coilkick::engine {
+namespace {
+
+// Residual of the DC equations with the minimum conductance on node rows.
+void residual(const Circuit& c, const Workspace& w, const Eigen::VectorXd& x, double gmin,
+              Eigen::VectorXd& r) {
+  const int nc = c.circuit_state_count();
+  r = w.flow.head(nc);
+  for (int i = 0; i < nc; ++i) {
+    if (c.is_node_row(i)) r[i] -= gmin * x[i];
+  }
+}
+
+// Node rows are currents (A), the others volts or element units: weigh 1 mA like 1 V.
+double weighted_norm(const Circuit& c, const Eigen::VectorXd& r) {
+  double s = 0.0;
+  for (int i = 0; i < r.size(); ++i) {
+    const double v = c.is_node_row(i) ? 1e3 * r[i] : r[i];
+    s += v * v;
+  }
+  return std::sqrt(s);
+}
+
+}  // namespace
+
+CircuitState solve_operating_point(const Circuit& circuit, double time_s,
+                                   const OperatingPointOptions& options) {
+  return solve_operating_point(circuit, zero_state(circuit, time_s), options);
+}
+
+CircuitState solve_operating_point(const Circuit& circuit, const CircuitState& guess,
+                                   const OperatingPointOptions& options) {
+  check_state(circuit, guess);
+  const int nc = circuit.circuit_state_count();
+  const double t = guess.time_s;
+  const double gmin = options.minimum_conductance_S;
+  Workspace w = circuit.make_workspace();
+  Eigen::VectorXd x = guess.values;
+  x.tail(x.size() - nc).setZero();
+  Eigen::VectorXd r, r_try, x_try;
+  circuit.assemble(t, t, x.data(), w);
+  residual(circuit, w, x.head(nc), gmin, r);
+  double norm = weighted_norm(circuit, r);
+  for (int it = 0; it < options.maximum_iterations; ++it) {
+    Eigen::MatrixXd g = w.flow_slope.topLeftCorner(nc, nc);
+    for (int i = 0; i < nc; ++i) {
+      if (circuit.is_node_row(i)) g(i, i) -= gmin;
+    }
+    Eigen::FullPivLU<Eigen::MatrixXd> lu(g);
+    if (!lu.isInvertible()) {
+      throw SimulationError("operating point at t = " + std::to_string(t) +
+                            " s: the conductance matrix is singular (a state has no DC path)");
+    }
+    const Eigen::VectorXd dx = lu.solve(-r);
+    bool small = true;
+    for (int i = 0; i < nc; ++i) {
+      const auto& info = circuit.states()[static_cast<std::size_t>(i)];
+      const double tol = (info.kind == StateKind::node_voltage ? options.voltage_tolerance_V
+                          : info.kind == StateKind::branch_current ? options.current_tolerance_A
+                                                                   : info.absolute_tolerance) +
+                         options.relative_tolerance * std::abs(x[i]);
+      small = small && std::abs(dx[i]) <= tol;
+    }
+    if (small) {
+      CircuitState out;
+      out.time_s = t;
+      out.values = x;
+      out.values.head(nc) += dx;
+      return out;
+    }
+    // Backtracking: halve the step until the weighted residual decreases.
+    double lambda = 1.0;
+    double norm_try = 0.0;
+    for (int k = 0; k < 30; ++k) {
+      x_try = x;
+      x_try.head(nc) += lambda * dx;
+      circuit.assemble(t, t, x_try.data(), w);
+      residual(circuit, w, x_try.head(nc), gmin, r_try);
+      norm_try = weighted_norm(circuit, r_try);
+      if (std::isfinite(norm_try) && norm_try <= norm * (1.0 - 1e-4 * lambda)) break;
+      lambda *= 0.5;
+    }
+    x = x_try;
+    r = r_try;
+    norm = norm_try;
+  }
+  int worst = 0;
+  for (int i = 1; i < nc; ++i) {
+    if (std::abs(r[i]) > std::abs(r[worst])) worst = i;
+  }
+  std::ostringstream m;
+  m << "operating point at t = " << t << " s did not converge in " << options.maximum_iterations
+    << " Newton iterations; the largest residual is in '"
+    << circuit.states()[static_cast<std::size_t>(worst)].name << "' (" << r[worst] << ")";
+  throw SimulationError(m.str());
+}
+
+}  // namespace coilkick::engine

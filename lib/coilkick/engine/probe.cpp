@@ -1,0 +1,42 @@
+#include "coilkick/engine/probe.hpp"
+
+namespace coilkick::engine {
+
+Probe Probe::node_voltage(const Circuit& circuit, const std::string& node) {
+  circuit.require_node(node);
+  const Circuit* c = &circuit;
+  return Probe("voltage at " + node,
+               [c, node](double t, const double* x) { return c->node_voltage_V(node, t, x); });
+}
+
+Probe Probe::voltage_between(const Circuit& circuit, const std::string& a, const std::string& b) {
+  const Circuit* c = &circuit;
+  circuit.require_node(a);
+  circuit.require_node(b);
+  return Probe("voltage from " + a + " to " + b, [c, a, b](double t, const double* x) {
+    return c->node_voltage_V(a, t, x) - c->node_voltage_V(b, t, x);
+  });
+}
+
+Probe Probe::state(const Circuit& circuit, const std::string& name) {
+  const int k = circuit.state_index(name);
+  return Probe(name, [k](double, const double* x) { return x[k]; });
+}
+
+EventSpec EventSpec::crossing(std::string name, Probe probe, double threshold, Direction direction,
+                              double after_time_s, bool stops_run) {
+  return EventSpec{std::move(name), std::move(probe), Kind::crossing, threshold, direction,
+                   after_time_s, stops_run};
+}
+
+EventSpec EventSpec::maximum(std::string name, Probe probe, double after_time_s) {
+  return EventSpec{std::move(name), std::move(probe), Kind::maximum, 0.0, Direction::either,
+                   after_time_s, false};
+}
+
+EventSpec EventSpec::minimum(std::string name, Probe probe, double after_time_s) {
+  return EventSpec{std::move(name), std::move(probe), Kind::minimum, 0.0, Direction::either,
+                   after_time_s, false};
+}
+
+}  // namespace coilkick::engine

@@ -1,0 +1,63 @@
+#!/usr/bin/env bash
+# coilkick's one entry point: installs missing Debian packages, builds, and runs.
+#   ./run.sh demo    build, then run the bundled demo switch-off
+#   ./run.sh test    build, then run every test through CTest
+#   ./run.sh build   configure (Release, build/) and build only
+#   ./run.sh bench   build with the benchmarks and run them (never part of the tests)
+set -euo pipefail
+cd "$(dirname "$0")"
+
+PYTHON=/usr/bin/python3   # Debian's interpreter: the one with numpy/scipy from apt
+BUILD_DIR=${COILKICK_BUILD_DIR:-build}
+JOBS=${COILKICK_JOBS:-$(nproc)}
+
+# Debian packages the build and tests need (all from the Debian archive).
+PACKAGES=(cmake g++ make libboost-dev libeigen3-dev doctest-dev libbenchmark-dev
+          python3 python3-numpy python3-scipy)
+
+install_missing_packages() {
+  local missing=()
+  for p in "${PACKAGES[@]}"; do
+    dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
+  done
+  if [ ${#missing[@]} -gt 0 ]; then
+    echo "run.sh: installing Debian packages: ${missing[*]}"
+    local sudo=""
+    [ "$(id -u)" -ne 0 ] && sudo="sudo"
+    $sudo env DEBIAN_FRONTEND=noninteractive apt-get update -qq
+    $sudo env DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends "${missing[@]}"
+  fi
+}
+
+configure_and_build() {
+  local extra=("$@")
+  cmake -S . -B "$BUILD_DIR" -DCMAKE_BUILD_TYPE=Release -DPython3_EXECUTABLE="$PYTHON" "${extra[@]}" >/dev/null
+  cmake --build "$BUILD_DIR" -j "$JOBS"
+}
+
+cmd=${1:-}
+case "$cmd" in
+  build)
+    install_missing_packages
+    configure_and_build
+    ;;
+  demo)
+    install_missing_packages
+    configure_and_build
+    "$BUILD_DIR/bin/coilkick" demo
+    ;;
+  test)
+    install_missing_packages
+    configure_and_build
+    (cd "$BUILD_DIR" && ctest --output-on-failure -j "$JOBS")
+    ;;
+  bench)
+    install_missing_packages
+    configure_and_build -DCOILKICK_BUILD_BENCH=ON
+    "$BUILD_DIR/bin/engine_bench" --benchmark_min_time=0.2
+    ;;
+  *)
+    echo "usage: ./run.sh demo|test|build|bench" >&2
+    exit 2
+    ;;
+esac
