@@ -63,6 +63,17 @@ Eigen::VectorXd TransientResult::element_current_A(const std::string& element, i
   return out;
 }
 
+Eigen::VectorXd TransientResult::stored_energy_J(const std::string& element) const {
+  const int e = circuit_.element_index(element);
+  Workspace w = circuit_.make_workspace();
+  Eigen::VectorXd out(static_cast<Eigen::Index>(times_.size()));
+  for (std::size_t k = 0; k < times_.size(); ++k) {
+    out[static_cast<Eigen::Index>(k)] =
+        circuit_.stored_energy_J(e, times_[k], states_.row(static_cast<Eigen::Index>(k)).data(), w);
+  }
+  return out;
+}
+
 Eigen::VectorXd TransientResult::sample(double t_s) const {
   if (!(t_s >= times_.front() && t_s <= times_.back())) {
     std::ostringstream m;

@@ -63,6 +63,8 @@ class TransientResult {
   Eigen::VectorXd node_voltage_V(const std::string& node) const;
   // Current flowing into `element` at its terminal number `terminal` (A).
   Eigen::VectorXd element_current_A(const std::string& element, int terminal = 0) const;
+  // Energy held in the element's fields (J) at every accepted point.
+  Eigen::VectorXd stored_energy_J(const std::string& element) const;
   // States at any instant inside the run, by cubic Hermite interpolation of the accepted points
   // (uses the stored rates, third-order accurate like the integrator's dense output).
   Eigen::VectorXd sample(double t_s) const;
