@@ -15,7 +15,17 @@ JacobianComparison compare_jacobian(const Circuit& circuit, double t_s, const do
   std::vector<double> xp(x, x + n);
   for (int j = 0; j <= n; ++j) {
     const double base = j < n ? x[j] : t_s;
-    const double h = j < n ? 1e-6 * std::max(1e-3, std::abs(base)) : 1e-7 * std::max(1e-9, std::abs(base));
+    // Step: 1e-6 of the larger of |x| and the state's typical scale (1 V, 1 mA, 1 µJ, or 1e6 ×
+    // the element's absolute tolerance) — small enough for truncation, large against round-off.
+    double typical = 1e-9;  // time
+    if (j < n) {
+      const auto& info = circuit.states()[static_cast<std::size_t>(j)];
+      typical = info.is_energy ? 1e-6
+                : info.kind == StateKind::node_voltage ? 1.0
+                : info.kind == StateKind::branch_current ? 1e-3
+                                                         : 1e6 * info.absolute_tolerance;
+    }
+    const double h = (j < n ? 1e-6 : 1e-7) * std::max(typical, std::abs(base));
     Eigen::VectorXd fp, fm;
     if (j < n) {
       xp[static_cast<std::size_t>(j)] = base + h;

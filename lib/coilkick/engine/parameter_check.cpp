@@ -25,6 +25,22 @@ void require_finite(const std::string& owner, const char* field, double value) {
   if (!std::isfinite(value)) fail(owner, field, "finite", value);
 }
 
+void require_open_range(const std::string& owner, const char* field, double value, double lo, double hi) {
+  if (!std::isfinite(value) || !(value > lo && value < hi)) {
+    std::ostringstream rule;
+    rule << "inside (" << lo << ", " << hi << ")";
+    fail(owner, field, rule.str().c_str(), value);
+  }
+}
+
+void require_closed_range(const std::string& owner, const char* field, double value, double lo, double hi) {
+  if (!std::isfinite(value) || !(value >= lo && value <= hi)) {
+    std::ostringstream rule;
+    rule << "inside [" << lo << ", " << hi << "]";
+    fail(owner, field, rule.str().c_str(), value);
+  }
+}
+
 void require_positive_or_infinite(const std::string& owner, const char* field, double value) {
   if (std::isnan(value) || !(value > 0.0)) fail(owner, field, "> 0 (or infinite for none)", value);
 }

@@ -10,6 +10,10 @@ void require_positive(const std::string& owner, const char* field, double value)
 void require_non_negative(const std::string& owner, const char* field, double value);
 // Finite, any sign.
 void require_finite(const std::string& owner, const char* field, double value);
+// Finite and strictly inside (lo, hi).
+void require_open_range(const std::string& owner, const char* field, double value, double lo, double hi);
+// Finite and inside [lo, hi].
+void require_closed_range(const std::string& owner, const char* field, double value, double lo, double hi);
 // > 0; +infinity allowed (means "absent", e.g. no core-loss resistance).
 void require_positive_or_infinite(const std::string& owner, const char* field, double value);
 

@@ -1,0 +1,213 @@
+#pragma once
+// Bipolar transistors, NPN and PNP, at two levels. Terminals: collector, base, emitter.
+//
+// Physical level — Ebers–Moll in transport form (J. J. Ebers & J. L. Moll, Proc. IRE 42, 1761
+// (1954); transport form as in Getreu, "Modeling the Bipolar Transistor", 1976, ch. 2):
+//   I_F = I_s·(exp_lim(v_BE/(n_F·V_T)) − 1), I_R = I_s·(exp_lim(v_BC/(n_R·V_T)) − 1),
+//   I_C = (I_F − I_R)·(1 − v_BC/V_A) − I_R/β_R,  I_B = I_F/β_F + I_R/β_R,
+//   with the forward Early voltage V_A (J. M. Early, Proc. IRE 40, 1401 (1952)) optional;
+//   charges: depletion charge of both junctions plus diffusion charges τ_F·I_F (B–E) and τ_R·I_R
+//   (B–C) — the B–C diffusion charge of a saturated switch is what delays its switch-off
+//   (storage time);
+//   collector breakdown as an equivalent branch from collector to emitter: a knee at the
+//   collector–emitter breakdown voltage (at its test current) with a dynamic resistance, so an
+//   unclamped coil drives the switch to a finite, physical spike and its energy ends in the
+//   switch. (Avalanche multiplication with base current snap-back is not modelled; the branch
+//   stands for the sustaining voltage of the part class.)
+//   collector resistance R_C (bulk collector, sets most of V_CE(sat) at amperes): the intrinsic
+//   collector node is eliminated by solving v_BC,int − R_C·I_C(v_BE, v_BC,int) = v_BC for
+//   v_BC,int (monotone; safeguarded Newton, then exact-derivative steps as for diodes);
+//   Temperature: I_s(T) as for diodes, β(T) = β·(T/T_nom)^beta_temperature_exponent.
+//   PNP: the same equations with all voltages and currents reversed.
+// Piecewise-linear level: base–emitter off / on (knee + resistance); collector current
+//   min(β_F·I_B, saturation line (V_CE − V_knee)/R_sat, clipped at 0), plus the breakdown line.
+//   Segments derived from the physical model at a saturated operating point (forced gain
+//   pwl_forced_beta at pwl_reference_collector_current_A) unless given explicitly.
+#include <limits>
+#include <memory>
+#include <string>
+
+#include "coilkick/devices/junction.hpp"
+#include "coilkick/devices/model_level.hpp"
+#include "coilkick/devices/terminal_device.hpp"
+
+namespace coilkick::devices {
+
+struct BjtParameters {
+  Polarity polarity = Polarity::n;
+  double saturation_current_A = 1e-14;
+  double forward_beta = 200.0;
+  double reverse_beta = 2.0;
+  double forward_emission_coefficient = 1.0;
+  double reverse_emission_coefficient = 1.0;
+  double forward_early_voltage_V = std::numeric_limits<double>::infinity();
+  double collector_resistance_ohm = 0.0;
+  double base_emitter_capacitance_F = 0.0;  // zero-bias depletion capacitance
+  double base_emitter_built_in_potential_V = 0.75;
+  double base_emitter_grading_coefficient = 0.33;
+  double base_collector_capacitance_F = 0.0;
+  double base_collector_built_in_potential_V = 0.75;
+  double base_collector_grading_coefficient = 0.33;
+  double depletion_linearization_fraction = 0.5;
+  double forward_transit_time_s = 0.0;
+  double reverse_transit_time_s = 0.0;
+  double collector_emitter_breakdown_voltage_V = std::numeric_limits<double>::infinity();
+  double breakdown_test_current_A = 1e-3;
+  double breakdown_dynamic_resistance_ohm = 10.0;
+  double breakdown_knee_emission_coefficient = 1.0;
+  double energy_gap_eV = 1.11;
+  double saturation_current_temperature_exponent = 3.0;
+  double beta_temperature_exponent = 1.5;
+  double nominal_temperature_C = 25.0;
+  double temperature_C = 25.0;
+  // Piecewise-linear level (NaN: derive)
+  double base_emitter_knee_voltage_V = std::numeric_limits<double>::quiet_NaN();
+  double base_emitter_on_resistance_ohm = std::numeric_limits<double>::quiet_NaN();
+  double saturation_knee_voltage_V = std::numeric_limits<double>::quiet_NaN();
+  double saturation_resistance_ohm = std::numeric_limits<double>::quiet_NaN();
+  double pwl_reference_collector_current_A = 0.1;
+  double pwl_forced_beta = 10.0;
+  // Numerical safeguards
+  double critical_current_A = 1e3;
+  double minimum_conductance_S = 1e-12;
+};
+
+void check_bjt_parameters(const std::string& owner, const BjtParameters& p);
+
+struct BjtDerived {
+  double sign;  // +1 NPN, −1 PNP
+  double vt, is, beta_f, beta_r, xcrit;
+  DepletionParameters be_depletion, bc_depletion;
+  bool has_breakdown;
+  ExpBranch breakdown;
+  double breakdown_knee_V, breakdown_resistance_ohm;
+  // pwl
+  double be_knee_V, be_resistance_ohm, sat_knee_V, sat_resistance_ohm;
+};
+BjtDerived derive_bjt(const BjtParameters& p);
+
+// Ebers–Moll operating point at given collector and base currents (magnitudes, saturated or
+// active), Early effect included: returns v_BE and v_CE (magnitudes).
+struct BjtBias {
+  double base_emitter_V, collector_emitter_V;
+};
+BjtBias physical_bias_at(const BjtParameters& p, double collector_current_A, double base_current_A);
+
+class PhysicalBjt final : public TerminalDevice<PhysicalBjt, 3> {
+ public:
+  PhysicalBjt(std::string name, std::string collector, std::string base, std::string emitter, BjtParameters p);
+  std::string kind() const override { return p_.polarity == Polarity::n ? "NPN (physical)" : "PNP (physical)"; }
+  const BjtParameters& parameters() const { return p_; }
+  bool has_charges() const {
+    return p_.base_emitter_capacitance_F > 0 || p_.base_collector_capacitance_F > 0 ||
+           p_.forward_transit_time_s > 0 || p_.reverse_transit_time_s > 0;
+  }
+
+  // Intrinsic transport currents for junction voltages vbe, vbc (polarity-normalised).
+  template <class S>
+  void transport(const S& vbe, const S& vbc, S& ic, S& ib, S& i_f, S& i_r) const {
+    i_f = d_.is * (exp_limited(vbe / (p_.forward_emission_coefficient * d_.vt), d_.xcrit) - 1.0);
+    i_r = d_.is * (exp_limited(vbc / (p_.reverse_emission_coefficient * d_.vt), d_.xcrit) - 1.0);
+    const S early = std::isinf(p_.forward_early_voltage_V) ? S(1.0) : 1.0 - vbc / p_.forward_early_voltage_V;
+    ic = (i_f - i_r) * early - i_r / d_.beta_r;
+    ib = i_f / d_.beta_f + i_r / d_.beta_r;
+  }
+  // ∂I_C/∂v_BC of the transport model (polarity-normalised).
+  template <class S>
+  S collector_slope(const S& vbc, const S& i_f, const S& i_r) const {
+    const double nvt = p_.reverse_emission_coefficient * d_.vt;
+    const S x = vbc / nvt;
+    const S di_r = value_of(x) <= d_.xcrit ? d_.is / nvt * exp(x) : S(d_.is / nvt * std::exp(d_.xcrit));
+    const double va = p_.forward_early_voltage_V;
+    const S early = std::isinf(va) ? S(1.0) : 1.0 - vbc / va;
+    S slope = -di_r * early - di_r / d_.beta_r;
+    if (!std::isinf(va)) slope = slope - (i_f - i_r) / va;
+    return slope;
+  }
+  // Intrinsic v_BC behind the collector resistance.
+  double intrinsic_vbc_V(double vbe, double vbc_terminal) const;
+  template <class S>
+  S intrinsic_vbc(const S& vbe, const S& vbc_terminal) const {
+    const double rc = p_.collector_resistance_ohm;
+    if (rc == 0.0) return vbc_terminal;
+    S y = S(intrinsic_vbc_V(value_of(vbe), value_of(vbc_terminal)));
+    for (int k = 0; k < 2; ++k) {  // exact first and second derivatives
+      S ic, ib, i_f, i_r;
+      transport(vbe, y, ic, ib, i_f, i_r);
+      y = y - (y - rc * ic - vbc_terminal) / (1.0 - rc * collector_slope(y, i_f, i_r));
+    }
+    return y;
+  }
+
+  template <class S>
+  void currents(const S* v, S* i) const {
+    const double sg = d_.sign, g = p_.minimum_conductance_S;
+    const S vbe = sg * (v[1] - v[2]), vbc_t = sg * (v[1] - v[0]), vce = sg * (v[0] - v[2]);
+    const S vbc = intrinsic_vbc(vbe, vbc_t);
+    S ic, ib, i_f, i_r;
+    transport(vbe, vbc, ic, ib, i_f, i_r);
+    ic = ic - g * vbc_t + g * vce;
+    ib = ib + g * vbe + g * vbc_t;
+    if (d_.has_breakdown) ic = ic + branch_current(vce, d_.breakdown);
+    i[0] = sg * ic;
+    i[1] = sg * ib;
+    i[2] = -(i[0] + i[1]);
+  }
+  template <class S>
+  void charges(const S* v, S* q) const {
+    const double sg = d_.sign;
+    const S vbe = sg * (v[1] - v[2]), vbc = intrinsic_vbc(vbe, S(sg * (v[1] - v[0])));
+    S ic, ib, i_f, i_r;
+    transport(vbe, vbc, ic, ib, i_f, i_r);
+    const S q_be = depletion_charge_C(vbe, d_.be_depletion) + p_.forward_transit_time_s * i_f;
+    const S q_bc = depletion_charge_C(vbc, d_.bc_depletion) + p_.reverse_transit_time_s * i_r;
+    q[0] = -sg * q_bc;
+    q[1] = sg * (q_be + q_bc);
+    q[2] = -sg * q_be;
+  }
+
+ private:
+  BjtParameters p_;
+  BjtDerived d_;
+};
+
+class PwlBjt final : public TerminalDevice<PwlBjt, 3> {
+ public:
+  PwlBjt(std::string name, std::string collector, std::string base, std::string emitter, BjtParameters p);
+  std::string kind() const override { return p_.polarity == Polarity::n ? "NPN (pwl)" : "PNP (pwl)"; }
+  bool has_charges() const { return false; }
+  const BjtDerived& segments() const { return d_; }
+
+  template <class S>
+  void currents(const S* v, S* i) const {
+    const double sg = d_.sign, g = p_.minimum_conductance_S;
+    const S vbe = sg * (v[1] - v[2]), vce = sg * (v[0] - v[2]);
+    S ib = g * vbe;
+    S ic = g * vce;
+    if (value_of(vbe) > d_.be_knee_V) {
+      const S ib_on = (vbe - d_.be_knee_V) / d_.be_resistance_ohm;
+      ib = ib + ib_on;
+      const S active = d_.beta_f * ib_on;
+      const S sat = (vce - d_.sat_knee_V) / d_.sat_resistance_ohm;
+      if (value_of(sat) > 0.0) ic = ic + (value_of(sat) < value_of(active) ? sat : active);
+    }
+    if (d_.has_breakdown && value_of(vce) > d_.breakdown_knee_V) ic = ic + (vce - d_.breakdown_knee_V) / d_.breakdown_resistance_ohm;
+    i[0] = sg * ic;
+    i[1] = sg * ib;
+    i[2] = -(i[0] + i[1]);
+  }
+  template <class S>
+  void charges(const S*, S* q) const {
+    for (int k = 0; k < 3; ++k) q[k] = S(0.0);
+  }
+
+ private:
+  BjtParameters p_;
+  BjtDerived d_;
+};
+
+std::shared_ptr<engine::Element> make_bjt(const std::string& name, const std::string& collector,
+                                          const std::string& base, const std::string& emitter,
+                                          const BjtParameters& p, ModelLevel level);
+
+}  // namespace coilkick::devices

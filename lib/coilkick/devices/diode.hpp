@@ -1,0 +1,139 @@
+#pragma once
+// Diodes, Zener diodes and TVS diodes: one parameter set, two levels.
+//
+// Physical level (terminals anode, cathode):
+//   forward: Shockley law I = I_s(T)·(exp_lim(v_j/(n·V_T)) − 1) behind the series resistance
+//     (W. Shockley, Bell Syst. Tech. J. 28, 435 (1949); emission coefficient n);
+//   reverse breakdown (if breakdown_voltage_V is finite): a knee I = I_t·exp_lim((u_j − u_0)/(n_b·V_T))
+//     with u = −v, behind R_b = dynamic resistance − n_b·V_T/I_t, placed so that the reverse voltage
+//     at the test current I_t equals the breakdown voltage; the breakdown voltage moves with the
+//     temperature coefficient;
+//   charge at the junction: depletion charge (C_j0, V_bi, m, FC) plus diffusion charge τ_T·I_f;
+//   a minimum conductance (1e-12 S) across the terminals keeps an off diode's nodes conditioned.
+// Piecewise-linear level: off (minimum conductance) / on (knee voltage + on-resistance) /
+//   breakdown (knee + dynamic resistance), continuous current. The knee and on-resistance are
+//   the tangent of the physical curve at pwl_reference_current_A unless given explicitly; the
+//   breakdown line passes through (breakdown voltage, test current) with the dynamic resistance.
+#include <limits>
+#include <memory>
+#include <string>
+
+#include "coilkick/devices/junction.hpp"
+#include "coilkick/devices/model_level.hpp"
+#include "coilkick/devices/terminal_device.hpp"
+
+namespace coilkick::devices {
+
+struct DiodeParameters {
+  // Forward conduction
+  double saturation_current_A = 1e-14;
+  double emission_coefficient = 1.0;
+  double series_resistance_ohm = 0.0;
+  // Charge storage
+  double transit_time_s = 0.0;
+  double zero_bias_capacitance_F = 0.0;
+  double built_in_potential_V = 0.7;
+  double grading_coefficient = 0.5;
+  double depletion_linearization_fraction = 0.5;
+  // Temperature
+  double energy_gap_eV = 1.11;
+  double saturation_current_temperature_exponent = 3.0;
+  double nominal_temperature_C = 25.0;
+  double temperature_C = 25.0;
+  // Reverse breakdown (infinite: none)
+  double breakdown_voltage_V = std::numeric_limits<double>::infinity();
+  double breakdown_test_current_A = 1e-3;
+  double breakdown_dynamic_resistance_ohm = 1.0;
+  double breakdown_knee_emission_coefficient = 1.0;
+  double breakdown_temperature_coefficient_per_K = 0.0;  // relative change of the voltage per K
+  // Piecewise-linear level (NaN: derive from the physical curve)
+  double knee_voltage_V = std::numeric_limits<double>::quiet_NaN();
+  double on_resistance_ohm = std::numeric_limits<double>::quiet_NaN();
+  double pwl_reference_current_A = 0.1;
+  // Numerical safeguards
+  double critical_current_A = 1e3;
+  double minimum_conductance_S = 1e-12;
+};
+
+// Throws std::invalid_argument "<owner>: <field> ..." for out-of-range values.
+void check_diode_parameters(const std::string& owner, const DiodeParameters& p);
+
+// Derived quantities shared by both levels.
+struct DiodeCurves {
+  ExpBranch forward;
+  bool has_breakdown = false;
+  ExpBranch breakdown;          // in the reverse voltage u = −v
+  double breakdown_voltage_V;   // at the simulated temperature, at the test current
+  DepletionParameters depletion;
+  // pwl segments
+  double knee_voltage_V, on_resistance_ohm, breakdown_knee_V, breakdown_resistance_ohm;
+};
+DiodeCurves derive_diode_curves(const DiodeParameters& p);
+
+// Forward voltage of the physical model at a forward current (A), by the explicit inverse
+// V = n·V_T·ln(1 + I/I_s) + R_s·I.
+double physical_forward_voltage_V(const DiodeParameters& p, double current_A);
+
+class PhysicalDiode final : public TerminalDevice<PhysicalDiode, 2> {
+ public:
+  PhysicalDiode(std::string name, std::string anode, std::string cathode, DiodeParameters p);
+  std::string kind() const override { return "diode (physical)"; }
+  const DiodeParameters& parameters() const { return p_; }
+  bool has_charges() const { return p_.zero_bias_capacitance_F > 0.0 || p_.transit_time_s > 0.0; }
+
+  template <class S>
+  void currents(const S* v, S* i) const {
+    const S u = v[0] - v[1];
+    S ia = branch_current(u, c_.forward) + p_.minimum_conductance_S * u;
+    if (c_.has_breakdown) ia = ia - branch_current(-u, c_.breakdown);
+    i[0] = ia;
+    i[1] = -ia;
+  }
+  template <class S>
+  void charges(const S* v, S* q) const {
+    const S u = v[0] - v[1];
+    S uj;
+    const S i_forward = branch_current(u, c_.forward, &uj);
+    const S qa = depletion_charge_C(uj, c_.depletion) + p_.transit_time_s * i_forward;
+    q[0] = qa;
+    q[1] = -qa;
+  }
+
+ private:
+  DiodeParameters p_;
+  DiodeCurves c_;
+};
+
+class PwlDiode final : public TerminalDevice<PwlDiode, 2> {
+ public:
+  PwlDiode(std::string name, std::string anode, std::string cathode, DiodeParameters p);
+  std::string kind() const override { return "diode (pwl)"; }
+  bool has_charges() const { return false; }
+  const DiodeCurves& segments() const { return c_; }
+
+  template <class S>
+  void currents(const S* v, S* i) const {
+    const S u = v[0] - v[1];
+    S ia = p_.minimum_conductance_S * u;
+    const double uv = value_of(u);
+    if (uv > c_.knee_voltage_V) ia = ia + (u - c_.knee_voltage_V) / c_.on_resistance_ohm;
+    if (c_.has_breakdown && -uv > c_.breakdown_knee_V) ia = ia - (-u - c_.breakdown_knee_V) / c_.breakdown_resistance_ohm;
+    i[0] = ia;
+    i[1] = -ia;
+  }
+  template <class S>
+  void charges(const S*, S* q) const {
+    q[0] = S(0.0);
+    q[1] = S(0.0);
+  }
+
+ private:
+  DiodeParameters p_;
+  DiodeCurves c_;
+};
+
+std::shared_ptr<engine::Element> make_diode(const std::string& name, const std::string& anode,
+                                            const std::string& cathode, const DiodeParameters& p,
+                                            ModelLevel level);
+
+}  // namespace coilkick::devices

@@ -1,0 +1,40 @@
+#include "coilkick/devices/junction.hpp"
+
+#include <algorithm>
+
+namespace coilkick::devices {
+
+double branch_junction_voltage_V(double u, const ExpBranch& b) {
+  // g(u_j) = u_j + R·I(u_j) − u is increasing; bracket the root and run Newton with bisection
+  // as a safeguard.
+  const double r = b.series_resistance_ohm;
+  auto g = [&](double uj) { return uj + r * branch_junction_current(uj, b) - u; };
+  auto dg = [&](double uj) {
+    const double x = (uj - b.offset_V) / b.emission_voltage_V;
+    const double di = b.scale_current_A / b.emission_voltage_V * std::exp(std::min(x, b.x_crit));
+    return 1.0 + r * di;
+  };
+  double lo = std::min(u, b.offset_V - 50.0 * b.emission_voltage_V);
+  double hi = std::max(u, b.offset_V);
+  // g(lo) <= 0 since u_j = lo <= u and I(lo) <= 0 for c = 1 (or tiny for c = 0); make sure.
+  while (g(lo) > 0.0) lo -= std::max(1.0, std::abs(lo));
+  while (g(hi) < 0.0) hi += std::max(1.0, std::abs(hi));
+  // Start near where the exponential carries the current u/R would give.
+  double x = std::clamp(b.offset_V + b.emission_voltage_V *
+                                         std::log(std::max(u - b.offset_V, 0.0) / (r * b.scale_current_A) + 1.0),
+                        lo, hi);
+  for (int it = 0; it < 200; ++it) {
+    const double gx = g(x);
+    if (gx > 0.0) hi = x;
+    else lo = x;
+    double next = x - gx / dg(x);
+    if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
+    if (std::abs(next - x) <= 1e-15 * std::max(1.0, std::abs(x)) || hi - lo <= 1e-15 * std::max(1.0, std::abs(x))) {
+      return next;
+    }
+    x = next;
+  }
+  return x;
+}
+
+}  // namespace coilkick::devices

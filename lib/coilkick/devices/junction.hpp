@@ -1,0 +1,122 @@
+#pragma once
+// Building blocks of the semiconductor models, as templates on the scalar type (see dual.hpp).
+//
+// Limited exponential: exp(x) up to x_c, then its tangent line exp(x_c)·(1 + x − x_c), so that
+// currents and conductances stay finite at any voltage the integrator may try and remain
+// continuous with a continuous first derivative. x_c is chosen per junction from a critical
+// current (default 1 kA: far above any operating point here). Linear continuation of the
+// exponential beyond a critical current is the junction-limiting technique of the circuit-
+// simulation literature, e.g. Vladimirescu, "The SPICE Book" (Wiley 1994), diode chapter —
+// named as a published method source only (from memory).
+//
+// Depletion charge: C_j(v) = C_j0/(1 − v/V_bi)^m below FC·V_bi, continued linearly in v above it
+// (Getreu, "Modeling the Bipolar Transistor", Tektronix 1976, ch. 3, from memory); the charge
+// is its integral, so it is continuous with a continuous capacitance.
+//
+// Exponential branch with series resistance: terminal voltage u = u_j + R·I(u_j) with
+// I(u_j) = I_s·(exp_lim((u_j − u_0)/(n·V_T)) − c). Solved for u_j by safeguarded Newton in
+// double precision, then two Newton steps in the scalar type so that first and second
+// derivatives of I(u) are exact (implicit-function theorem).
+#include <cmath>
+#include <limits>
+
+#include "coilkick/devices/dual.hpp"
+
+namespace coilkick::devices {
+
+// Boltzmann constant over the elementary charge, exact in the 2019 SI (k = 1.380649e-23 J/K,
+// e = 1.602176634e-19 C): V_T = k·T/q.
+constexpr double kBoltzmannOverCharge_V_per_K = 1.380649e-23 / 1.602176634e-19;
+constexpr double kZeroCelsius_K = 273.15;
+
+inline double thermal_voltage_V(double temperature_C) {
+  return kBoltzmannOverCharge_V_per_K * (temperature_C + kZeroCelsius_K);
+}
+
+// Saturation current at temperature T from its value at T_nom:
+// I_s(T) = I_s(T_nom)·(T/T_nom)^(xti/n)·exp((T/T_nom − 1)·E_g/(n·V_T(T)))
+// (Getreu 1976, ch. 2, temperature dependence; from memory).
+inline double saturation_current_at_A(double is_nom_A, double emission, double energy_gap_eV,
+                                      double temperature_exponent, double nominal_C,
+                                      double temperature_C) {
+  const double ratio = (temperature_C + kZeroCelsius_K) / (nominal_C + kZeroCelsius_K);
+  const double vt = thermal_voltage_V(temperature_C);
+  return is_nom_A * std::pow(ratio, temperature_exponent / emission) *
+         std::exp((ratio - 1.0) * energy_gap_eV / (emission * vt));
+}
+
+template <class S>
+S exp_limited(const S& x, double x_crit) {
+  if (value_of(x) <= x_crit) return exp(x);
+  const double ec = std::exp(x_crit);
+  return ec * (1.0 + (x - x_crit));
+}
+
+struct DepletionParameters {
+  double zero_bias_capacitance_F = 0.0;
+  double built_in_potential_V = 0.7;
+  double grading_coefficient = 0.5;
+  double linearization_fraction = 0.5;  // FC
+};
+
+template <class S>
+S depletion_charge_C(const S& v, const DepletionParameters& p) {
+  const double c0 = p.zero_bias_capacitance_F;
+  if (c0 == 0.0) return S(0.0);
+  const double vb = p.built_in_potential_V, m = p.grading_coefficient, fc = p.linearization_fraction;
+  const double vf = fc * vb;
+  if (value_of(v) < vf) {
+    return c0 * vb / (1.0 - m) * (1.0 - pow(1.0 - v / vb, 1.0 - m));
+  }
+  const double qf = c0 * vb / (1.0 - m) * (1.0 - std::pow(1.0 - fc, 1.0 - m));
+  const double k = c0 / std::pow(1.0 - fc, 1.0 + m);
+  const S dv = v - vf;
+  // C(v) = k·(1 − fc·(1 + m) + m·v/V_bi) integrated from vf.
+  return qf + k * ((1.0 - fc * (1.0 + m)) * dv + m / (2.0 * vb) * (v * v - vf * vf));
+}
+
+struct ExpBranch {
+  double scale_current_A = 1e-14;  // I_s
+  double offset_V = 0.0;           // u_0
+  double emission_voltage_V = 0.0257;  // n·V_T
+  double series_resistance_ohm = 0.0;
+  double minus_one = 1.0;          // c: 1 for a Shockley junction, 0 for a breakdown knee
+  double x_crit = 40.0;            // limit of the exponent, from the critical current
+
+  // Sets x_crit so that the limited exponential starts at `critical_current_A`.
+  void set_critical_current(double critical_current_A) {
+    x_crit = std::log(critical_current_A / scale_current_A + minus_one);
+  }
+};
+
+// Junction current I(u_j) of the branch.
+template <class S>
+S branch_junction_current(const S& uj, const ExpBranch& b) {
+  return b.scale_current_A * (exp_limited((uj - b.offset_V) / b.emission_voltage_V, b.x_crit) - b.minus_one);
+}
+
+// Junction voltage u_j for terminal voltage u (double precision, safeguarded Newton).
+double branch_junction_voltage_V(double u, const ExpBranch& b);
+
+// Branch current I(u) through the series resistance, with exact derivatives in S.
+template <class S>
+S branch_current(const S& u, const ExpBranch& b, S* junction_voltage = nullptr) {
+  const double r = b.series_resistance_ohm;
+  if (r == 0.0) {
+    if (junction_voltage) *junction_voltage = u;
+    return branch_junction_current(u, b);
+  }
+  S uj = S(branch_junction_voltage_V(value_of(u), b));
+  for (int k = 0; k < 2; ++k) {  // exact first and second derivatives
+    const S i = branch_junction_current(uj, b);
+    const S x = (uj - b.offset_V) / b.emission_voltage_V;
+    const S di = value_of(x) <= b.x_crit ? b.scale_current_A / b.emission_voltage_V * exp(x)
+                                         : S(b.scale_current_A / b.emission_voltage_V * std::exp(b.x_crit));
+    uj = uj - (uj + r * i - u) / (1.0 + r * di);
+  }
+  if (junction_voltage) *junction_voltage = uj;
+  // I(u_j) rather than (u − u_j)/R: no cancellation at small currents.
+  return branch_junction_current(uj, b);
+}
+
+}  // namespace coilkick::devices

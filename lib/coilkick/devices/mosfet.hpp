@@ -1,0 +1,158 @@
+#pragma once
+// MOSFETs, N and P channel, at two levels. Terminals: drain, gate, source.
+//
+// Physical level — square-law channel (H. Shichman & D. A. Hodges, IEEE J. Solid-State
+// Circuits SC-3, 285 (1968), from memory): with V_ov = V_GS − V_th,
+//   ohmic (V_DS < V_ov):      I_D = K·(V_ov·V_DS − V_DS²/2)·(1 + λ·V_DS)
+//   saturated (V_DS ≥ V_ov):  I_D = (K/2)·V_ov²·(1 + λ·V_DS)
+//   off (V_ov ≤ 0): 0; current and conductance continuous at both boundaries; the channel is
+//   symmetric (V_DS < 0 swaps drain and source).
+//   Constant gate–source and gate–drain capacitances; a body diode (source to drain for N)
+//   with Shockley law and its junction and diffusion charge; drain avalanche as a knee branch
+//   at the drain–source breakdown voltage (test current, dynamic resistance).
+//   Temperature: V_th(T) = V_th + tc·(T − T_nom), K(T) = K·(T/T_nom)^mobility exponent.
+// Piecewise-linear level: channel min(g·V_ov, V_DS/R_on) (off below threshold), body diode
+//   and avalanche as pwl diodes; R_on and g derived at pwl_gate_drive_V unless given.
+#include <limits>
+#include <memory>
+#include <string>
+
+#include "coilkick/devices/diode.hpp"
+#include "coilkick/devices/junction.hpp"
+#include "coilkick/devices/model_level.hpp"
+#include "coilkick/devices/terminal_device.hpp"
+
+namespace coilkick::devices {
+
+struct MosfetParameters {
+  Polarity polarity = Polarity::n;
+  double threshold_voltage_V = 2.0;  // magnitude
+  double transconductance_parameter_A_per_V2 = 1.0;  // K
+  double channel_length_modulation_per_V = 0.0;      // λ
+  double gate_source_capacitance_F = 0.0;
+  double gate_drain_capacitance_F = 0.0;
+  double threshold_temperature_coefficient_V_per_K = -4e-3;
+  double mobility_temperature_exponent = -1.5;
+  double nominal_temperature_C = 25.0;
+  double temperature_C = 25.0;
+  DiodeParameters body_diode;  // its breakdown fields are not used: see drain avalanche below
+  double drain_source_breakdown_voltage_V = std::numeric_limits<double>::infinity();
+  double breakdown_test_current_A = 250e-6;
+  double breakdown_dynamic_resistance_ohm = 1.0;
+  double breakdown_knee_emission_coefficient = 1.0;
+  // Piecewise-linear level (NaN: derive at pwl_gate_drive_V)
+  double on_resistance_ohm = std::numeric_limits<double>::quiet_NaN();
+  double pwl_transconductance_S = std::numeric_limits<double>::quiet_NaN();
+  double pwl_gate_drive_V = 5.0;
+  double minimum_conductance_S = 1e-12;
+  double critical_current_A = 1e3;
+};
+
+void check_mosfet_parameters(const std::string& owner, const MosfetParameters& p);
+
+struct MosfetDerived {
+  double sign, vth, k;
+  DiodeParameters body;      // at the simulated temperature, no breakdown
+  DiodeCurves body_curves;
+  bool has_breakdown;
+  ExpBranch breakdown;
+  double breakdown_knee_V, breakdown_resistance_ohm;
+  double on_resistance_ohm, pwl_transconductance_S;
+};
+MosfetDerived derive_mosfet(const MosfetParameters& p);
+
+template <class S>
+S square_law_channel_A(const S& vgs, const S& vds, const MosfetDerived& d, double lambda) {
+  // Drain current for vds >= 0.
+  const S vov = vgs - d.vth;
+  if (value_of(vov) <= 0.0) return S(0.0);
+  const S clm = 1.0 + lambda * vds;
+  if (value_of(vds) < value_of(vov)) return d.k * (vov * vds - 0.5 * vds * vds) * clm;
+  return 0.5 * d.k * vov * vov * clm;
+}
+
+class PhysicalMosfet final : public TerminalDevice<PhysicalMosfet, 3> {
+ public:
+  PhysicalMosfet(std::string name, std::string drain, std::string gate, std::string source, MosfetParameters p);
+  std::string kind() const override { return p_.polarity == Polarity::n ? "N-MOSFET (physical)" : "P-MOSFET (physical)"; }
+  bool has_charges() const { return true; }
+  const MosfetParameters& parameters() const { return p_; }
+
+  template <class S>
+  void currents(const S* v, S* i) const {
+    const double sg = d_.sign, g = p_.minimum_conductance_S;
+    const S vgs = sg * (v[1] - v[2]), vds = sg * (v[0] - v[2]);
+    S id = value_of(vds) >= 0.0 ? square_law_channel_A(vgs, vds, d_, p_.channel_length_modulation_per_V)
+                                : -square_law_channel_A(vgs - vds, -vds, d_, p_.channel_length_modulation_per_V);
+    id = id - branch_current(-vds, d_.body_curves.forward) + g * vds;
+    if (d_.has_breakdown) id = id + branch_current(vds, d_.breakdown);
+    const S ig = g * vgs;
+    i[0] = sg * id;
+    i[1] = sg * ig;
+    i[2] = -(i[0] + i[1]);
+  }
+  template <class S>
+  void charges(const S* v, S* q) const {
+    const double sg = d_.sign;
+    const S vgs = sg * (v[1] - v[2]), vgd = sg * (v[1] - v[0]), vsd = sg * (v[2] - v[0]);
+    S uj;
+    const S i_body = branch_current(vsd, d_.body_curves.forward, &uj);
+    const S q_body = depletion_charge_C(uj, d_.body_curves.depletion) + d_.body.transit_time_s * i_body;
+    const S q_gs = p_.gate_source_capacitance_F * vgs, q_gd = p_.gate_drain_capacitance_F * vgd;
+    q[0] = sg * (-q_gd - q_body);
+    q[1] = sg * (q_gs + q_gd);
+    q[2] = sg * (-q_gs + q_body);
+  }
+
+ private:
+  MosfetParameters p_;
+  MosfetDerived d_;
+};
+
+class PwlMosfet final : public TerminalDevice<PwlMosfet, 3> {
+ public:
+  PwlMosfet(std::string name, std::string drain, std::string gate, std::string source, MosfetParameters p);
+  std::string kind() const override { return p_.polarity == Polarity::n ? "N-MOSFET (pwl)" : "P-MOSFET (pwl)"; }
+  bool has_charges() const { return p_.gate_source_capacitance_F > 0.0 || p_.gate_drain_capacitance_F > 0.0; }
+  const MosfetDerived& segments() const { return d_; }
+
+  template <class S>
+  void currents(const S* v, S* i) const {
+    const double sg = d_.sign, g = p_.minimum_conductance_S;
+    const S vgs = sg * (v[1] - v[2]), vds = sg * (v[0] - v[2]);
+    const bool forward = value_of(vds) >= 0.0;
+    const S vov = (forward ? vgs : vgs - vds) - d_.vth;
+    const S vmag = forward ? vds : -vds;
+    S ich(0.0);
+    if (value_of(vov) > 0.0) {
+      const S sat = d_.pwl_transconductance_S * vov, ohm = vmag / d_.on_resistance_ohm;
+      ich = value_of(ohm) < value_of(sat) ? ohm : sat;
+    }
+    S id = (forward ? ich : -ich) + g * vds;
+    const auto& b = d_.body_curves;
+    if (-value_of(vds) > b.knee_voltage_V) id = id - (-vds - b.knee_voltage_V) / b.on_resistance_ohm;
+    if (d_.has_breakdown && value_of(vds) > d_.breakdown_knee_V) id = id + (vds - d_.breakdown_knee_V) / d_.breakdown_resistance_ohm;
+    i[0] = sg * id;
+    i[1] = sg * (g * vgs);
+    i[2] = -(i[0] + i[1]);
+  }
+  template <class S>
+  void charges(const S* v, S* q) const {
+    const double sg = d_.sign;
+    const S q_gs = p_.gate_source_capacitance_F * sg * (v[1] - v[2]);
+    const S q_gd = p_.gate_drain_capacitance_F * sg * (v[1] - v[0]);
+    q[0] = -sg * q_gd;
+    q[1] = sg * (q_gs + q_gd);
+    q[2] = -sg * q_gs;
+  }
+
+ private:
+  MosfetParameters p_;
+  MosfetDerived d_;
+};
+
+std::shared_ptr<engine::Element> make_mosfet(const std::string& name, const std::string& drain,
+                                             const std::string& gate, const std::string& source,
+                                             const MosfetParameters& p, ModelLevel level);
+
+}  // namespace coilkick::devices

@@ -1,0 +1,99 @@
+#pragma once
+// Adapter from device equations to the engine's Element interface.
+//
+// A device model (diode, transistor ...) with N terminals and no internal states derives from
+// TerminalDevice<Model, N> and provides two templates on the scalar type S:
+//   void currents(const S* v, S* i) const;  // static (resistive) current INTO each terminal, A
+//   void charges(const S* v, S* q) const;   // charge held at each terminal, C (sums to zero)
+// from the terminal voltages v (V). The adapter differentiates them exactly (dual.hpp) into
+// conductances, capacitances and the capacitance slope the Jacobian needs; the heat is
+// Σ v_k·i_k (channel "heat") and the stored energy is ∫ v·dq along the straight path from 0
+// (composite Gauss–Legendre quadrature; charges here are reciprocal so the integral is a
+// state function).
+#include <array>
+#include <vector>
+
+#include "coilkick/devices/dual.hpp"
+#include "coilkick/engine/element.hpp"
+
+namespace coilkick::devices {
+
+template <class Model, int N>
+class TerminalDevice : public engine::Element {
+ public:
+  using engine::Element::Element;
+
+  std::vector<engine::PowerChannelSpec> power_channels() const override {
+    return {{"heat", engine::PowerChannelSpec::Kind::dissipated}};
+  }
+
+  void load(const engine::ElementContext& ctx, engine::Stamper& out) const override {
+    using D = Dual<N>;
+    std::array<D, N> v, i, q;
+    for (int k = 0; k < N; ++k) v[idx(k)] = D::variable(ctx.value(k), k);
+    model().currents(v.data(), i.data());
+    D p(0.0);
+    for (int k = 0; k < N; ++k) {
+      out.add_flow(k, -i[idx(k)].v);
+      for (int j = 0; j < N; ++j) out.add_flow_slope(k, j, -i[idx(k)].g[idx(j)]);
+      p = p + v[idx(k)] * i[idx(k)];
+    }
+    out.add_power(0, p.v);
+    for (int j = 0; j < N; ++j) out.add_power_slope(0, j, p.g[idx(j)]);
+    if (!model().has_charges()) return;
+    model().charges(v.data(), q.data());
+    for (int k = 0; k < N; ++k) {
+      for (int j = 0; j < N; ++j) out.add_mass(k, j, q[idx(k)].g[idx(j)]);
+    }
+  }
+
+  void load_mass_slope(const engine::ElementContext& ctx, engine::Stamper& out) const override {
+    if (!model().has_charges()) return;
+    using D1 = Dual<1>;
+    using D = Dual<N, D1>;
+    std::array<D, N> v, q;
+    for (int k = 0; k < N; ++k) {
+      D1 inner;
+      inner.v = ctx.value(k);
+      inner.g[0] = ctx.rate(k);
+      v[idx(k)] = D::variable(inner, k);
+    }
+    model().charges(v.data(), q.data());
+    for (int k = 0; k < N; ++k) {
+      for (int j = 0; j < N; ++j) out.add_mass_slope(k, j, q[idx(k)].g[idx(j)].g[0]);
+    }
+  }
+
+  double stored_energy_J(const engine::ElementContext& ctx) const override {
+    if (!model().has_charges()) return 0.0;
+    // W = ∫0^1 Σ_k v_k · d q_k(s·v)/ds ds, 64 panels × 3-point Gauss–Legendre.
+    using D1 = Dual<1>;
+    std::array<double, N> v0;
+    for (int k = 0; k < N; ++k) v0[idx(k)] = ctx.value(k);
+    static const double nodes[3] = {-0.7745966692414834, 0.0, 0.7745966692414834};
+    static const double weights[3] = {5.0 / 9.0, 8.0 / 9.0, 5.0 / 9.0};
+    constexpr int panels = 64;
+    double w = 0.0;
+    for (int p = 0; p < panels; ++p) {
+      for (int g = 0; g < 3; ++g) {
+        const double s = (p + 0.5 + 0.5 * nodes[g]) / panels;
+        std::array<D1, N> v, q;
+        for (int k = 0; k < N; ++k) {
+          v[idx(k)].v = s * v0[idx(k)];
+          v[idx(k)].g[0] = v0[idx(k)];
+        }
+        model().charges(v.data(), q.data());
+        double integrand = 0.0;
+        for (int k = 0; k < N; ++k) integrand += v0[idx(k)] * q[idx(k)].g[0];
+        w += 0.5 * weights[g] / panels * integrand;
+      }
+    }
+    return w;
+  }
+
+ private:
+  const Model& model() const { return static_cast<const Model&>(*this); }
+  static constexpr std::size_t idx(int k) { return static_cast<std::size_t>(k); }
+};
+
+}  // namespace coilkick::devices

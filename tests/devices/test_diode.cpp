@@ -1,0 +1,140 @@
+// Diode, Zener and TVS models.
+#include <doctest/doctest.h>
+
+#include <boost/math/special_functions/lambert_w.hpp>
+#include <cmath>
+
+#include "coilkick/devices/diode.hpp"
+#include "device_fixture.hpp"
+
+using namespace coilkick::devices;
+
+namespace {
+DiodeParameters test_rectifier() {
+  // The test-vector diode of the reference list (invented): I_s = 5 nA, n = 1.8, R_s = 40 mΩ.
+  DiodeParameters p;
+  p.saturation_current_A = 5e-9;
+  p.emission_coefficient = 1.8;
+  p.series_resistance_ohm = 0.04;
+  p.zero_bias_capacitance_F = 30e-12;
+  p.transit_time_s = 3e-6;
+  p.temperature_C = 25.0;
+  p.nominal_temperature_C = 25.0;
+  return p;
+}
+double current(const PhysicalDiode& d, double v) {
+  double vv[2] = {v, 0.0}, i[2];
+  d.currents(vv, i);
+  return i[0];
+}
+}  // namespace
+
+TEST_CASE("physical diode current equals the Shockley law with series resistance") {
+  // Shockley, Bell Syst. Tech. J. 28 (1949): I = I_s·(exp(V_j/(n·V_T)) − 1), V = V_j + R_s·I.
+  // Exact current from terminal voltage: Banwell & Jayakumar, Electron. Lett. 36(4), 291 (2000):
+  //   I = (n·V_T/R_s)·W0((I_s·R_s/(n·V_T))·exp((V + I_s·R_s)/(n·V_T))) − I_s  (Boost.Math W0).
+  const DiodeParameters p = test_rectifier();
+  const PhysicalDiode d("d", "a", "k", p);
+  const double nvt = p.emission_coefficient * thermal_voltage_V(25.0);
+  const double is = p.saturation_current_A, rs = p.series_resistance_ohm;
+  for (double v : {0.3, 0.5, 0.7, 0.9, 1.0, 1.2}) {
+    CAPTURE(v);
+    const double z = is * rs / nvt * std::exp((v + is * rs) / nvt);
+    const double exact = nvt / rs * boost::math::lambert_w0(z) - is;
+    // 1e-9 relative: both are double-precision solutions of the same equation.
+    CHECK(current(d, v) == doctest::Approx(exact).epsilon(1e-9));
+  }
+  // The explicit inverse V(I) = n·V_T·ln(1 + I/I_s) + R_s·I round-trips.
+  for (double i : {1e-6, 1e-3, 0.03, 1.0}) {
+    CHECK(current(d, physical_forward_voltage_V(p, i)) == doctest::Approx(i).epsilon(1e-9));
+  }
+}
+
+TEST_CASE("thermal voltage from the exact SI constants") {
+  // k = 1.380649e-23 J/K and e = 1.602176634e-19 C (2019 SI, exact): V_T(25 °C) = 25.692579 mV.
+  CHECK(thermal_voltage_V(25.0) == doctest::Approx(25.692579e-3).epsilon(1e-7));
+  CHECK(thermal_voltage_V(100.0) == doctest::Approx(32.155579e-3).epsilon(1e-7));
+}
+
+TEST_CASE("diode Jacobian equals finite differences in every region") {
+  DiodeParameters p = test_rectifier();
+  p.breakdown_voltage_V = 12.0;
+  p.breakdown_test_current_A = 20e-3;
+  p.breakdown_dynamic_resistance_ohm = 5.0;
+  p.critical_current_A = 5.0;  // so that the limited-exponential region is reachable below 2 V
+  for (const auto level : {ModelLevel::physical, ModelLevel::pwl}) {
+    const auto b = test_support::bench_for(make_diode("d", "a", "k", p, level));
+    // forward, off, reverse leakage, breakdown, deep breakdown, limited exponential
+    for (double v : {0.71, 0.2, -3.0, -12.3, -14.0, 1.9, 0.9}) {
+      CAPTURE(v);
+      CAPTURE(to_string(level));
+      const auto cmp = test_support::jacobian_at(b, {v, 0.0});
+      CAPTURE(cmp.row_name);
+      CAPTURE(cmp.column_name);
+      CHECK(cmp.worst_error < 1e-5);  // central differences: ~1e-8 truncation/round-off; 1e-5 margin
+    }
+  }
+}
+
+TEST_CASE("physical diode: current and conductance continuous where the exponential is limited") {
+  DiodeParameters p = test_rectifier();
+  p.series_resistance_ohm = 0.0;
+  p.critical_current_A = 2.0;
+  const PhysicalDiode d("d", "a", "k", p);
+  const double nvt = p.emission_coefficient * thermal_voltage_V(25.0);
+  const double vc = nvt * std::log(2.0 / p.saturation_current_A + 1.0);
+  const double h = 1e-7;
+  const double gl = (current(d, vc) - current(d, vc - h)) / h, gr = (current(d, vc + h) - current(d, vc)) / h;
+  CHECK(current(d, vc + 1e-12) == doctest::Approx(current(d, vc - 1e-12)).epsilon(1e-9));
+  CHECK(gr == doctest::Approx(gl).epsilon(1e-4));  // C¹: one-sided slopes agree to O(h·I'')
+  // Beyond the limit the current grows linearly, so it stays finite far out.
+  CHECK(std::isfinite(current(d, 1e3)));
+  CHECK(current(d, 1e3) < 1e7);
+}
+
+TEST_CASE("pwl diode: continuous current at its segment boundaries") {
+  DiodeParameters p = test_rectifier();
+  p.breakdown_voltage_V = 15.0;
+  p.breakdown_test_current_A = 10e-3;
+  p.breakdown_dynamic_resistance_ohm = 8.0;
+  const PwlDiode d("d", "a", "k", p);
+  auto i = [&](double v) {
+    double vv[2] = {v, 0.0}, out[2];
+    d.currents(vv, out);
+    return out[0];
+  };
+  const auto& s = d.segments();
+  CHECK(i(s.knee_voltage_V + 1e-12) == doctest::Approx(i(s.knee_voltage_V - 1e-12)).epsilon(1e-9));
+  CHECK(i(-s.breakdown_knee_V - 1e-12) == doctest::Approx(i(-s.breakdown_knee_V + 1e-12)).epsilon(1e-9));
+}
+
+TEST_CASE("pwl and physical levels agree at the point the segments were derived from") {
+  DiodeParameters p = test_rectifier();
+  p.pwl_reference_current_A = 0.5;
+  p.breakdown_voltage_V = 15.0;
+  p.breakdown_test_current_A = 10e-3;
+  p.breakdown_dynamic_resistance_ohm = 8.0;
+  const PhysicalDiode phys("d", "a", "k", p);
+  const PwlDiode pwl("d", "a", "k", p);
+  const double v_ref = physical_forward_voltage_V(p, 0.5);
+  double vv[2] = {v_ref, 0.0}, i_pwl[2];
+  pwl.currents(vv, i_pwl);
+  // Same current (the pwl line is the tangent there); 1e-6 covers the 1e-12 S minimum conductance.
+  CHECK(i_pwl[0] == doctest::Approx(0.5).epsilon(1e-6));
+  CHECK(current(phys, v_ref) == doctest::Approx(0.5).epsilon(1e-9));
+  // Reverse: both carry the test current at the breakdown voltage.
+  double vr[2] = {-15.0, 0.0}, ir[2];
+  pwl.currents(vr, ir);
+  CHECK(-ir[0] == doctest::Approx(10e-3).epsilon(1e-6));
+  CHECK(-current(phys, -15.0) == doctest::Approx(10e-3).epsilon(1e-4));  // + forward leakage I_s
+}
+
+TEST_CASE("breakdown voltage follows its temperature coefficient") {
+  DiodeParameters p = test_rectifier();
+  p.breakdown_voltage_V = 24.0;
+  p.breakdown_test_current_A = 5e-3;
+  p.breakdown_temperature_coefficient_per_K = 9e-4;
+  p.temperature_C = 85.0;
+  const auto c = derive_diode_curves(p);
+  CHECK(c.breakdown_voltage_V == doctest::Approx(24.0 * (1 + 9e-4 * 60.0)));
+}
