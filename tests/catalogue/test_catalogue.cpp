@@ -135,7 +135,7 @@ TEST_CASE("catalogue transistors: V_BE and V_CE(sat) of the class (common practi
   CHECK(d.on_resistance_ohm < 0.5);
 }
 
-TEST_CASE("overrides change one parameter; an unknown override key is refused with a suggestion") {
+TEST_CASE("overrides change one parameter, and an unknown override key is refused with a suggestion") {
   const auto p = diode_parameters(cat().part("zener_500mw_12v"), {{"breakdown_voltage", 13.0}});
   CHECK(p.breakdown_voltage_V == 13.0);
   CHECK_THROWS_WITH_AS(diode_parameters(cat().part("zener_500mw_12v"), {{"breakdown_volt", 13.0}}),
