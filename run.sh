@@ -55,6 +55,7 @@ case "$cmd" in
     install_missing_packages
     configure_and_build -DCOILKICK_BUILD_BENCH=ON
     "$BUILD_DIR/bin/engine_bench" --benchmark_min_time=0.2
+    "$BUILD_DIR/bin/device_bench" --benchmark_min_time=0.2
     ;;
   *)
     echo "usage: ./run.sh demo|test|build|bench" >&2

@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include "coilkick/devices/bjt.hpp"
+#include "coilkick/devices/darlington.hpp"
 #include "device_fixture.hpp"
 
 using namespace coilkick::devices;
@@ -168,4 +169,49 @@ TEST_CASE("storage time of a saturated NPN against the charge-control estimate")
   // those equations with scipy gave 0.3 % difference; the 0.1 ns drive edge adds < 0.2 %.
   CHECK(ts == doctest::Approx(estimate).epsilon(0.03));
   CHECK(std::abs(r.energy().balance_error) < 1e-3);
+}
+
+TEST_CASE("pwl BJT: continuous current across the knee and the active/saturation crossover") {
+  const PwlBjt q("q", "c", "b", "e", small_npn());
+  const auto& s = q.segments();
+  const double e = 1e-12;
+  // Base–emitter knee (collector well above saturation).
+  const auto a = currents(q, {5.0, s.be_knee_V - e, 0.0}), b = currents(q, {5.0, s.be_knee_V + e, 0.0});
+  CHECK(b[1] == doctest::Approx(a[1]).epsilon(1e-9));
+  CHECK(b[0] == doctest::Approx(a[0]).epsilon(1e-9));
+  // Crossover where the saturation line meets β·I_B, at V_BE giving I_B = 1 mA.
+  const double vbe = s.be_knee_V + 1e-3 * s.be_resistance_ohm;
+  const double vx = s.sat_knee_V + s.beta_f * 1e-3 * s.sat_resistance_ohm;
+  const auto l = currents(q, {vx - e, vbe, 0.0}), r = currents(q, {vx + e, vbe, 0.0});
+  CHECK(r[0] == doctest::Approx(l[0]).epsilon(1e-9));
+}
+
+TEST_CASE("depletion charge: capacitance continuous where the singular law is linearised") {
+  // Getreu 1976 (from memory): C_j = C_j0/(1 − v/V_bi)^m below FC·V_bi, linear above.
+  const DepletionParameters d{20e-12, 0.75, 0.33, 0.5};
+  using D = Dual<1>;
+  const double vf = 0.5 * 0.75, e = 1e-9;
+  const D below = depletion_charge_C(D::variable(vf - e, 0), d), above = depletion_charge_C(D::variable(vf + e, 0), d);
+  CHECK(above.v == doctest::Approx(below.v).epsilon(1e-8));
+  CHECK(above.g[0] == doctest::Approx(below.g[0]).epsilon(1e-7));
+  CHECK(below.g[0] == doctest::Approx(20e-12 / std::pow(1.0 - 0.5, 0.33)).epsilon(1e-6));
+}
+
+TEST_CASE("Darlington pair saturates about one V_BE above a transistor's V_CE(sat) (common practice)") {
+  DarlingtonParameters p;
+  p.transistor = small_npn();
+  p.transistor.forward_beta = 60;
+  p.transistor.collector_resistance_ohm = 0.1;
+  p.transistor.collector_emitter_breakdown_voltage_V = 120.0;
+  Network net;
+  net.add_voltage_source("supply", "supply", Waveform::constant(24.0));
+  net.add_resistor("load", "supply", "c", 24.0);  // 1 A
+  net.add_voltage_source("drive", "in", Waveform::constant(5.0));
+  net.add_resistor("base_resistor", "in", "b", 2.2e3);
+  add_darlington(net, "pair", "c", "b", Network::ground, p, ModelLevel::physical);
+  Circuit c(net);
+  const auto op = solve_operating_point(c, 0.0);
+  const double vce = get_state(c, op, "node:c");
+  CHECK(vce > 0.7);  // a Darlington cannot saturate below the output V_BE
+  CHECK(vce < 1.3);
 }
