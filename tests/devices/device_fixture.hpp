@@ -4,11 +4,14 @@
 // voltages. The bench capacitance is large against the device's own (diffusion capacitance
 // reaches tens of µF at amperes) so that the capacitance matrix stays well conditioned and
 // finite differences of M⁻¹·f are not drowned in round-off.
+#include <array>
+#include <doctest/doctest.h>
 #include <memory>
 #include <string>
 #include <vector>
 
 #include "coilkick/coilkick.hpp"
+#include "coilkick/devices/model_level.hpp"
 #include "coilkick/engine/jacobian_check.hpp"
 
 namespace test_support {
@@ -34,6 +37,33 @@ inline coilkick::engine::JacobianComparison jacobian_at(const DeviceBench& b, co
   for (std::size_t k = 0; k < b.nodes.size(); ++k) x[b.circuit->state_index("node:" + b.nodes[k])] = voltages[k];
   (void)rate_scale;
   return coilkick::engine::compare_jacobian(*b.circuit, 1e-6, x.data());
+}
+
+// For a three-terminal device family: N and P polarity (P at mirrored voltages), both levels,
+// every listed region: the analytic Jacobian equals central finite differences.
+// Tolerance 1e-5 of the row scale: central differences reach ~1e-8 here (truncation and
+// round-off); anything wrong in a derivative shows as O(1).
+template <class P, class Make>
+void check_jacobian_in_regions(P p, Make make, const std::vector<std::array<double, 3>>& points) {
+  using coilkick::devices::ModelLevel;
+  using coilkick::devices::Polarity;
+  for (const auto pol : {Polarity::n, Polarity::p}) {
+    p.polarity = pol;
+    const double s = pol == Polarity::n ? 1.0 : -1.0;
+    for (const auto level : {ModelLevel::physical, ModelLevel::pwl}) {
+      const auto b = bench_for(make(p, level));
+      for (const auto& v : points) {
+        CAPTURE(v[0]);
+        CAPTURE(v[1]);
+        CAPTURE(v[2]);
+        CAPTURE(coilkick::devices::to_string(level));
+        const auto cmp = jacobian_at(b, {s * v[0], s * v[1], s * v[2]});
+        CAPTURE(cmp.row_name);
+        CAPTURE(cmp.column_name);
+        CHECK(cmp.worst_error < 1e-5);
+      }
+    }
+  }
 }
 
 }  // namespace test_support

@@ -65,25 +65,10 @@ TEST_CASE("N and P MOSFETs are mirror images") {
 }
 
 TEST_CASE("MOSFET Jacobian equals finite differences in every region") {
-  for (const auto pol : {Polarity::n, Polarity::p}) {
-    MosfetParameters p = logic_nmos();
-    p.polarity = pol;
-    const double s = pol == Polarity::n ? 1.0 : -1.0;
-    for (const auto level : {ModelLevel::physical, ModelLevel::pwl}) {
-      const auto b = test_support::bench_for(make_mosfet("m", "d", "g", "s", p, level));
-      // off, saturated, ohmic, reversed channel, body diode on, avalanche
-      for (const auto& v : std::vector<std::array<double, 3>>{
-               {10, 1.0, 0}, {10, 3.5, 0}, {0.3, 4.5, 0}, {-0.3, 4.5, 0}, {-0.8, 0, 0}, {66, 0, 0}}) {
-        CAPTURE(v[0]);
-        CAPTURE(v[1]);
-        CAPTURE(to_string(level));
-        const auto cmp = test_support::jacobian_at(b, {s * v[0], s * v[1], s * v[2]});
-        CAPTURE(cmp.row_name);
-        CAPTURE(cmp.column_name);
-        CHECK(cmp.worst_error < 1e-5);
-      }
-    }
-  }
+  // off, saturated, ohmic, reversed channel, body diode on, avalanche
+  test_support::check_jacobian_in_regions(
+      logic_nmos(), [](const MosfetParameters& q, ModelLevel l) { return make_mosfet("m", "d", "g", "s", q, l); },
+      {{10, 1.0, 0}, {10, 3.5, 0}, {0.3, 4.5, 0}, {-0.3, 4.5, 0}, {-0.8, 0, 0}, {66, 0, 0}});
 }
 
 TEST_CASE("pwl and physical MOSFET agree at the gate drive the segments come from") {

@@ -92,16 +92,12 @@ BjtDerived derive_bjt(const BjtParameters& p) {
                     p.base_collector_grading_coefficient, p.depletion_linearization_fraction};
   d.has_breakdown = std::isfinite(p.collector_emitter_breakdown_voltage_V);
   if (d.has_breakdown) {
-    const double it = p.breakdown_test_current_A;
-    const double nvt = p.breakdown_knee_emission_coefficient * d.vt;
-    d.breakdown.scale_current_A = it;
-    d.breakdown.emission_voltage_V = nvt;
-    d.breakdown.series_resistance_ohm = std::max(0.0, p.breakdown_dynamic_resistance_ohm - nvt / it);
-    d.breakdown.offset_V = p.collector_emitter_breakdown_voltage_V - d.breakdown.series_resistance_ohm * it;
-    d.breakdown.minus_one = 0.0;
-    d.breakdown.x_crit = std::log(p.critical_current_A / it);
-    d.breakdown_resistance_ohm = d.breakdown.series_resistance_ohm + nvt / it;
-    d.breakdown_knee_V = p.collector_emitter_breakdown_voltage_V - d.breakdown_resistance_ohm * it;
+    const BreakdownKnee k = make_breakdown_knee(p.collector_emitter_breakdown_voltage_V, p.breakdown_test_current_A,
+                                                p.breakdown_dynamic_resistance_ohm, p.breakdown_knee_emission_coefficient,
+                                                d.vt, p.critical_current_A);
+    d.breakdown = k.branch;
+    d.breakdown_resistance_ohm = k.pwl_resistance_ohm;
+    d.breakdown_knee_V = k.pwl_knee_V;
   }
   // pwl segments from the saturated operating point (I_C, I_C/forced beta).
   const double ic = p.pwl_reference_collector_current_A, ib = ic / p.pwl_forced_beta;

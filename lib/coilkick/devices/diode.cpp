@@ -65,16 +65,11 @@ DiodeCurves derive_diode_curves(const DiodeParameters& p) {
     const double bv = p.breakdown_voltage_V *
                       (1.0 + p.breakdown_temperature_coefficient_per_K * (p.temperature_C - p.nominal_temperature_C));
     c.breakdown_voltage_V = bv;
-    const double it = p.breakdown_test_current_A;
-    const double nvt = p.breakdown_knee_emission_coefficient * vt;
-    c.breakdown.scale_current_A = it;
-    c.breakdown.emission_voltage_V = nvt;
-    c.breakdown.series_resistance_ohm = std::max(0.0, p.breakdown_dynamic_resistance_ohm - nvt / it);
-    c.breakdown.offset_V = bv - c.breakdown.series_resistance_ohm * it;
-    c.breakdown.minus_one = 0.0;
-    c.breakdown.x_crit = std::log(p.critical_current_A / it);
-    c.breakdown_resistance_ohm = c.breakdown.series_resistance_ohm + nvt / it;
-    c.breakdown_knee_V = bv - c.breakdown_resistance_ohm * it;
+    const BreakdownKnee k = make_breakdown_knee(bv, p.breakdown_test_current_A, p.breakdown_dynamic_resistance_ohm,
+                                                p.breakdown_knee_emission_coefficient, vt, p.critical_current_A);
+    c.breakdown = k.branch;
+    c.breakdown_resistance_ohm = k.pwl_resistance_ohm;
+    c.breakdown_knee_V = k.pwl_knee_V;
   }
   return c;
 }

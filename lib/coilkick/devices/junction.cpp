@@ -4,6 +4,21 @@
 
 namespace coilkick::devices {
 
+BreakdownKnee make_breakdown_knee(double breakdown_voltage_V, double test_current_A, double dynamic_resistance_ohm,
+                                  double knee_emission_coefficient, double thermal_voltage_V, double critical_current_A) {
+  BreakdownKnee k;
+  const double nvt = knee_emission_coefficient * thermal_voltage_V;
+  k.branch.scale_current_A = test_current_A;
+  k.branch.emission_voltage_V = nvt;
+  k.branch.series_resistance_ohm = std::max(0.0, dynamic_resistance_ohm - nvt / test_current_A);
+  k.branch.offset_V = breakdown_voltage_V - k.branch.series_resistance_ohm * test_current_A;
+  k.branch.minus_one = 0.0;
+  k.branch.x_crit = std::log(critical_current_A / test_current_A);
+  k.pwl_resistance_ohm = k.branch.series_resistance_ohm + nvt / test_current_A;
+  k.pwl_knee_V = breakdown_voltage_V - k.pwl_resistance_ohm * test_current_A;
+  return k;
+}
+
 double branch_junction_voltage_V(double u, const ExpBranch& b) {
   // g(u_j) = u_j + R·I(u_j) − u is increasing; bracket the root and run Newton with bisection
   // as a safeguard.

@@ -89,6 +89,19 @@ struct ExpBranch {
   }
 };
 
+// Breakdown knee (Zener/TVS reverse, BJT collector–emitter, MOSFET drain avalanche): the branch
+// I = I_t·exp_lim((u_j − u_0)/(n_b·V_T)) behind R_b = r_dyn − n_b·V_T/I_t (at least 0), with u_0
+// placed so that the voltage at the test current I_t is the breakdown voltage and the slope there
+// is the dynamic resistance r_dyn; plus the straight line through the same point with that
+// slope for the pwl level.
+struct BreakdownKnee {
+  ExpBranch branch;
+  double pwl_knee_V = 0.0;          // where the pwl line crosses zero current
+  double pwl_resistance_ohm = 0.0;  // its slope: the dynamic resistance at the test current
+};
+BreakdownKnee make_breakdown_knee(double breakdown_voltage_V, double test_current_A, double dynamic_resistance_ohm,
+                                  double knee_emission_coefficient, double thermal_voltage_V, double critical_current_A);
+
 // Junction current I(u_j) of the branch.
 template <class S>
 S branch_junction_current(const S& uj, const ExpBranch& b) {

@@ -53,16 +53,12 @@ MosfetDerived derive_mosfet(const MosfetParameters& p) {
   d.body_curves = derive_diode_curves(d.body);
   d.has_breakdown = std::isfinite(p.drain_source_breakdown_voltage_V);
   if (d.has_breakdown) {
-    const double vt = thermal_voltage_V(p.temperature_C);
-    const double it = p.breakdown_test_current_A, nvt = p.breakdown_knee_emission_coefficient * vt;
-    d.breakdown.scale_current_A = it;
-    d.breakdown.emission_voltage_V = nvt;
-    d.breakdown.series_resistance_ohm = std::max(0.0, p.breakdown_dynamic_resistance_ohm - nvt / it);
-    d.breakdown.offset_V = p.drain_source_breakdown_voltage_V - d.breakdown.series_resistance_ohm * it;
-    d.breakdown.minus_one = 0.0;
-    d.breakdown.x_crit = std::log(p.critical_current_A / it);
-    d.breakdown_resistance_ohm = d.breakdown.series_resistance_ohm + nvt / it;
-    d.breakdown_knee_V = p.drain_source_breakdown_voltage_V - d.breakdown_resistance_ohm * it;
+    const BreakdownKnee k = make_breakdown_knee(p.drain_source_breakdown_voltage_V, p.breakdown_test_current_A,
+                                                p.breakdown_dynamic_resistance_ohm, p.breakdown_knee_emission_coefficient,
+                                                thermal_voltage_V(p.temperature_C), p.critical_current_A);
+    d.breakdown = k.branch;
+    d.breakdown_resistance_ohm = k.pwl_resistance_ohm;
+    d.breakdown_knee_V = k.pwl_knee_V;
   }
   const double vov = p.pwl_gate_drive_V - d.vth;
   d.on_resistance_ohm = std::isnan(p.on_resistance_ohm) ? 1.0 / (d.k * vov) : p.on_resistance_ohm;
