@@ -7,7 +7,7 @@
 //   void charges(const S* v, S* q) const;   // charge held at each terminal, C (sums to zero)
 // from the terminal voltages v (V). The adapter differentiates them exactly (dual.hpp) into
 // conductances, capacitances and the capacitance slope the Jacobian needs; the heat is
-// Σ v_k·i_k (channel "heat") and the stored energy is ∫ v·dq along the straight path from 0
+// Σ v_k·i_k (channel "heat") and the stored energy is ∫ v·dq along the straight path s·v from 0
 // (composite Gauss–Legendre quadrature; charges here are reciprocal so the integral is a
 // state function).
 #include <array>
@@ -66,7 +66,7 @@ class TerminalDevice : public engine::Element {
 
   double stored_energy_J(const engine::ElementContext& ctx) const override {
     if (!model().has_charges()) return 0.0;
-    // W = ∫0^1 Σ_k v_k · d q_k(s·v)/ds ds, 64 panels × 3-point Gauss–Legendre.
+    // W = ∫0^1 Σ_k (s·v_k) · d q_k(s·v)/ds ds, 64 panels × 3-point Gauss–Legendre.
     using D1 = Dual<1>;
     std::array<double, N> v0;
     for (int k = 0; k < N; ++k) v0[idx(k)] = ctx.value(k);
@@ -84,7 +84,7 @@ class TerminalDevice : public engine::Element {
         }
         model().charges(v.data(), q.data());
         double integrand = 0.0;
-        for (int k = 0; k < N; ++k) integrand += v0[idx(k)] * q[idx(k)].g[0];
+        for (int k = 0; k < N; ++k) integrand += s * v0[idx(k)] * q[idx(k)].g[0];  // v(s)·dq/ds
         w += 0.5 * weights[g] / panels * integrand;
       }
     }

@@ -1,0 +1,215 @@
+#include "coilkick/drivers/driver_network.hpp"
+
+#include <cmath>
+#include <stdexcept>
+
+#include "coilkick/catalogue/part_parameters.hpp"
+#include "coilkick/devices/bjt.hpp"
+#include "coilkick/devices/darlington.hpp"
+#include "coilkick/devices/diode.hpp"
+#include "coilkick/devices/mosfet.hpp"
+
+namespace coilkick::drivers {
+namespace {
+
+using engine::Network;
+
+struct Builder {
+  const DriverSpec& s;
+  const catalogue::Catalogue& parts;
+  BuiltDriver out;
+  devices::ModelLevel level() const { return s.analysis.model_level; }
+
+  Overrides with_temperature(Overrides o) const {
+    if (!o.count("temperature")) o["temperature"] = s.analysis.device_temperature_C;
+    return o;
+  }
+  const catalogue::PartRecord& part(const std::string& name, const char* field) const {
+    try {
+      return parts.part(name);
+    } catch (const std::invalid_argument& e) {
+      throw std::invalid_argument(std::string(field) + ": " + e.what());
+    }
+  }
+  // A diode-family part (diode, Zener, TVS) between anode and cathode.
+  void diode(const std::string& element, const std::string& part_name, const Overrides& o, const char* field,
+             const std::string& anode, const std::string& cathode) {
+    const auto& rec = part(part_name, field);
+    if (rec.family != "diode" && rec.family != "zener" && rec.family != "tvs") {
+      throw std::invalid_argument(std::string(field) + ": part '" + part_name + "' is a " + rec.family +
+                                  ", a diode, Zener or TVS is needed");
+    }
+    out.network.add(devices::make_diode(element, anode, cathode, catalogue::diode_parameters(rec, with_temperature(o)), level()));
+    out.clamp_elements.push_back(element);
+    out.clamp_parts.push_back(&rec);
+  }
+  void resistor(const std::string& element, const std::string& a, const std::string& b, double ohm, bool clamp) {
+    out.network.add_resistor(element, a, b, ohm);
+    if (clamp) out.clamp_elements.push_back(element);
+  }
+
+  void switch_stage() {
+    const auto& sw = s.switch_;
+    const auto& rec = part(sw.part, "switch.part");
+    out.switch_part = &rec;
+    const std::string top = to_string(sw.topology);
+    auto require = [&](std::initializer_list<const char*> fams) {
+      for (const char* f : fams) {
+        if (rec.family == f) return;
+      }
+      throw std::invalid_argument("switch.part: '" + sw.part + "' is a " + rec.family + ", which does not fit topology " + top);
+    };
+    const std::string c = "switch", b = "base";
+    switch (sw.topology) {
+      case Topology::low_side_npn:
+        require({"npn"});
+        out.network.add(devices::make_bjt("switch", c, b, Network::ground, catalogue::bjt_parameters(rec, with_temperature(sw.overrides)), level()));
+        break;
+      case Topology::low_side_nmos:
+        require({"nmos"});
+        out.mosfet = true;
+        out.network.add(devices::make_mosfet("switch", c, b, Network::ground, catalogue::mosfet_parameters(rec, with_temperature(sw.overrides)), level()));
+        break;
+      case Topology::low_side_darlington: {
+        require({"darlington_npn"});
+        devices::add_darlington(out.network, "switch", c, b, Network::ground,
+                                catalogue::darlington_parameters(rec, with_temperature(sw.overrides)), level());
+        out.switch_elements = {"switch.input", "switch.output", "switch.input_resistor", "switch.output_resistor"};
+        break;
+      }
+      case Topology::high_side_pnp:
+        require({"pnp"});
+        out.high_side = true;
+        out.network.add(devices::make_bjt("switch", c, b, "supply", catalogue::bjt_parameters(rec, with_temperature(sw.overrides)), level()));
+        break;
+      case Topology::high_side_pmos:
+        require({"pmos"});
+        out.high_side = true;
+        out.mosfet = true;
+        out.network.add(devices::make_mosfet("switch", c, b, "supply", catalogue::mosfet_parameters(rec, with_temperature(sw.overrides)), level()));
+        break;
+    }
+    if (out.switch_elements.empty()) out.switch_elements = {"switch"};
+    out.switch_control_terminal_element = sw.topology == Topology::low_side_darlington ? "switch.input" : "switch";
+    if (!out.high_side) {
+      resistor("base_resistor", "logic_out", b, sw.base_resistor_ohm, false);
+      out.switch_high_node = c;
+      out.switch_low_node = Network::ground;
+      return;
+    }
+    // Level shifter: logic -> NPN, its collector pulls the switch's base/gate down through the
+    // base (gate) resistor; the pull-up holds the switch off.
+    const auto& ls = part(sw.level_shifter_part, "switch.level_shifter_part");
+    if (ls.family != "npn") throw std::invalid_argument("switch.level_shifter_part: '" + ls.name + "' is a " + ls.family + ", an NPN is needed");
+    out.network.add(devices::make_bjt("level_shifter", "shifter_collector", "shifter_base", Network::ground,
+                                      catalogue::bjt_parameters(ls, with_temperature(sw.level_shifter_overrides)), level()));
+    resistor("shifter_base_resistor", "logic_out", "shifter_base", sw.level_shifter_base_resistor_ohm, false);
+    resistor("base_resistor", b, "shifter_collector", sw.base_resistor_ohm, false);
+    resistor("pullup_resistor", b, "supply", sw.pullup_resistor_ohm, false);
+    out.switch_high_node = "supply";
+    out.switch_low_node = c;
+  }
+
+  void coil() {
+    const auto& cs = s.coil;
+    out.coil_resistance_ohm = coil_resistance_ohm(cs);
+    engine::CoilParameters p{cs.inductance_H, out.coil_resistance_ohm, cs.core_loss_resistance_ohm};
+    // Coil current flows from the supply side to the switched end (low side) or from the
+    // switched end to ground (high side): positive in the on-state either way.
+    const std::string a = out.high_side ? "switch" : "supply", k = out.high_side ? Network::ground : "switch";
+    out.network.add_coil("coil", a, k, p);
+    if (cs.winding_capacitance_F > 0.0) out.network.add_capacitor("winding_capacitance", a, k, cs.winding_capacitance_F);
+    if (s.switch_.board_stray_capacitance_F > 0.0) {
+      out.network.add_capacitor("board_stray", "switch", Network::ground, s.switch_.board_stray_capacitance_F);
+    }
+  }
+
+  void clamp() {
+    const auto& cl = s.clamp;
+    // "Across the coil" joins the switched end to the coil's other end (supply or ground);
+    // "across the switch" joins it to the switch's other end.
+    const std::string sw = "switch";
+    const std::string coil_far = out.high_side ? Network::ground : "supply";
+    const std::string switch_far = out.high_side ? "supply" : Network::ground;
+    // Diode orientation: conducts from the switched end towards the coil's far end (low side),
+    // or from ground towards the switched end (high side).
+    auto across_coil_anode = [&](const std::string& near, const std::string& far) { return out.high_side ? far : near; };
+    auto across_coil_cathode = [&](const std::string& near, const std::string& far) { return out.high_side ? near : far; };
+    switch (cl.kind) {
+      case ClampKind::none:
+        break;
+      case ClampKind::diode:
+        diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part",
+              across_coil_anode(sw, coil_far), across_coil_cathode(sw, coil_far));
+        break;
+      case ClampKind::diode_zener:
+        // switched end -> diode -> clamp_mid -> Zener (reverse) -> far end (low side); mirrored high side.
+        if (!out.high_side) {
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", sw, "clamp_mid");
+          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", coil_far, "clamp_mid");
+        } else {
+          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", "clamp_mid", coil_far);
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", sw);
+        }
+        break;
+      case ClampKind::diode_resistor:
+        if (!out.high_side) {
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", sw, "clamp_mid");
+          resistor("clamp_resistor", "clamp_mid", coil_far, cl.resistor_ohm, true);
+        } else {
+          resistor("clamp_resistor", coil_far, "clamp_mid", cl.resistor_ohm, true);
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", sw);
+        }
+        break;
+      case ClampKind::rc_across_coil:
+        snubber(sw, coil_far, "snubber");
+        break;
+      case ClampKind::rc_across_switch:
+        snubber(sw, switch_far, "snubber");
+        break;
+      case ClampKind::tvs_across_switch:
+        // Reverse-biased across the switch: cathode on the switch's positive end.
+        if (!out.high_side) diode("clamp_tvs", cl.tvs_part, cl.tvs_overrides, "clamp.tvs_part", Network::ground, sw);
+        else diode("clamp_tvs", cl.tvs_part, cl.tvs_overrides, "clamp.tvs_part", sw, "supply");
+        break;
+      case ClampKind::active_clamp:
+        // Zener from the switched end to the control terminal, with a blocking diode so the
+        // Zener never conducts forward in the on-state.
+        if (!out.high_side) {
+          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", "clamp_mid", sw);
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", "base");
+        } else {
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "base", "clamp_mid");
+          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", sw, "clamp_mid");
+        }
+        break;
+    }
+    if (cl.add_rc_snubber_across_coil && cl.kind != ClampKind::rc_across_coil) snubber(sw, coil_far, "extra_snubber");
+    if (!out.clamp_elements.empty()) out.clamp_current_element = out.clamp_elements.front();
+  }
+
+  void snubber(const std::string& near, const std::string& far, const std::string& prefix) {
+    const std::string mid = prefix + "_mid";
+    resistor(prefix + "_resistor", near, mid, s.clamp.snubber_resistance_ohm, true);
+    out.network.add_capacitor(prefix + "_capacitor", mid, far, s.clamp.snubber_capacitance_F);
+    out.clamp_elements.push_back(prefix + "_capacitor");
+  }
+};
+
+}  // namespace
+
+BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalogue& parts) {
+  check_driver_spec(spec);
+  Builder b{spec, parts, {}};
+  auto& net = b.out.network;
+  net.add_voltage_source("supply", "supply", engine::Waveform::constant(spec.supply.voltage_V));
+  const auto& d = spec.drive;
+  net.add_voltage_source("logic", "logic", engine::Waveform::edge(d.high_level_V, 0.0, d.switch_off_at_s, d.fall_time_s));
+  net.add_resistor("logic_output", "logic", "logic_out", d.output_resistance_ohm);
+  b.switch_stage();
+  b.coil();
+  b.clamp();
+  return std::move(b.out);
+}
+
+}  // namespace coilkick::drivers

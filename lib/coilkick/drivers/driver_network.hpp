@@ -1,0 +1,39 @@
+#pragma once
+// Builds the engine network of a driver: supply, logic output, switch stage (with level shifter
+// and pull-up for high-side switches), coil with winding capacitance and core loss, board stray
+// capacitance, and the clamp. Node and element names are fixed so that metrics and reports can
+// find them:
+//   nodes: "supply", "logic", "logic_out", "base" (switch base or gate), "switch" (the switch's
+//          collector/drain, i.e. the coil's switched end), "clamp_mid", "snubber_mid";
+//   elements: "coil", "switch" (or "switch.input"/"switch.output" for a Darlington),
+//          "base_resistor", "clamp_diode", "clamp_zener", "clamp_resistor", "clamp_tvs",
+//          "snubber_resistor", "snubber_capacitor", "level_shifter", "pullup_resistor" ...
+#include <string>
+#include <vector>
+
+#include "coilkick/catalogue/catalogue.hpp"
+#include "coilkick/drivers/driver_spec.hpp"
+#include "coilkick/engine/network.hpp"
+
+namespace coilkick::drivers {
+
+struct BuiltDriver {
+  engine::Network network;
+  bool high_side = false;
+  bool mosfet = false;
+  // Switch voltage = v(switch_high_node) − v(switch_low_node).
+  std::string switch_high_node, switch_low_node;
+  std::vector<std::string> switch_elements;  // their heat is the switch's energy
+  std::vector<std::string> clamp_elements;   // their heat is the clamp's energy
+  std::string clamp_current_element;         // its terminal-0 current is the clamp current
+  std::string switch_control_terminal_element;  // element whose terminal 1 is the switch's base/gate
+  const catalogue::PartRecord* switch_part = nullptr;
+  std::vector<const catalogue::PartRecord*> clamp_parts;  // for the rating checks
+  double coil_resistance_ohm = 0.0;
+};
+
+// Throws std::invalid_argument naming the field for an impossible combination (e.g. an NPN
+// part on a MOSFET topology), and the catalogue's errors for unknown parts.
+BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalogue& parts);
+
+}  // namespace coilkick::drivers

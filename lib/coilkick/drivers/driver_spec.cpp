@@ -1,0 +1,131 @@
+#include "coilkick/drivers/driver_spec.hpp"
+
+#include <cmath>
+#include <stdexcept>
+
+#include "coilkick/drivers/copper.hpp"
+#include "coilkick/engine/closest_name.hpp"
+#include "coilkick/engine/parameter_check.hpp"
+
+namespace coilkick::drivers {
+namespace {
+const std::vector<std::pair<std::string, Topology>>& topologies() {
+  static const std::vector<std::pair<std::string, Topology>> t{
+      {"low_side_npn", Topology::low_side_npn}, {"low_side_nmos", Topology::low_side_nmos},
+      {"low_side_darlington", Topology::low_side_darlington}, {"high_side_pnp", Topology::high_side_pnp},
+      {"high_side_pmos", Topology::high_side_pmos}};
+  return t;
+}
+const std::vector<std::pair<std::string, ClampKind>>& clamp_kinds() {
+  static const std::vector<std::pair<std::string, ClampKind>> k{
+      {"none", ClampKind::none}, {"diode", ClampKind::diode}, {"diode_zener", ClampKind::diode_zener},
+      {"diode_resistor", ClampKind::diode_resistor}, {"rc_across_coil", ClampKind::rc_across_coil},
+      {"rc_across_switch", ClampKind::rc_across_switch}, {"tvs_across_switch", ClampKind::tvs_across_switch},
+      {"active_clamp", ClampKind::active_clamp}};
+  return k;
+}
+template <class E>
+E parse(const std::vector<std::pair<std::string, E>>& table, const std::string& word, const char* what) {
+  std::vector<std::string> names;
+  for (const auto& [n, e] : table) {
+    if (n == word) return e;
+    names.push_back(n);
+  }
+  throw std::invalid_argument(std::string("unknown ") + what + " '" + word + "'" + engine::did_you_mean(word, names));
+}
+template <class E>
+std::string name_of(const std::vector<std::pair<std::string, E>>& table, E e) {
+  for (const auto& [n, x] : table) {
+    if (x == e) return n;
+  }
+  return "?";
+}
+}  // namespace
+
+Topology parse_topology(const std::string& word) { return parse(topologies(), word, "switch topology"); }
+std::string to_string(Topology t) { return name_of(topologies(), t); }
+const std::vector<std::string>& topology_names() {
+  static const std::vector<std::string> n = [] {
+    std::vector<std::string> v;
+    for (const auto& [k, t] : topologies()) v.push_back(k);
+    return v;
+  }();
+  return n;
+}
+ClampKind parse_clamp_kind(const std::string& word) { return parse(clamp_kinds(), word, "clamp kind"); }
+std::string to_string(ClampKind k) { return name_of(clamp_kinds(), k); }
+const std::vector<ClampKind>& all_clamp_kinds() {
+  static const std::vector<ClampKind> k = [] {
+    std::vector<ClampKind> v;
+    for (const auto& [n, c] : clamp_kinds()) v.push_back(c);
+    return v;
+  }();
+  return k;
+}
+
+double coil_resistance_ohm(const CoilSpec& c) {
+  return copper_resistance_ohm(c.resistance_at_20C_ohm, c.temperature_C, c.copper_temperature_coefficient_per_K);
+}
+
+double release_current_A(const CoilSpec& c) {
+  if (!std::isnan(c.release_current_A)) return c.release_current_A;
+  if (!std::isnan(c.release_voltage_V)) return c.release_voltage_V / coil_resistance_ohm(c);
+  return std::nan("");
+}
+
+void check_driver_spec(const DriverSpec& s) {
+  using engine::require_non_negative;
+  using engine::require_positive;
+  require_positive("supply", "voltage_V", s.supply.voltage_V);
+  engine::require_closed_range("supply", "tolerance", s.supply.tolerance, 0.0, 0.5);
+  require_positive("drive", "high_level_V", s.drive.high_level_V);
+  require_positive("drive", "output_resistance_ohm", s.drive.output_resistance_ohm);
+  require_positive("drive", "rise_time_s", s.drive.rise_time_s);
+  require_positive("drive", "fall_time_s", s.drive.fall_time_s);
+  require_positive("drive", "switch_off_at_s", s.drive.switch_off_at_s);
+  require_non_negative("drive", "period_s", s.drive.period_s);
+  require_positive("switch", "base_resistor_ohm", s.switch_.base_resistor_ohm);
+  require_positive("switch", "pullup_resistor_ohm", s.switch_.pullup_resistor_ohm);
+  require_positive("switch", "level_shifter_base_resistor_ohm", s.switch_.level_shifter_base_resistor_ohm);
+  require_non_negative("switch", "board_stray_capacitance_F", s.switch_.board_stray_capacitance_F);
+  require_positive("coil", "resistance_at_20C_ohm", s.coil.resistance_at_20C_ohm);
+  engine::require_open_range("coil", "temperature_C", s.coil.temperature_C, -60.0, 250.0);
+  require_non_negative("coil", "copper_temperature_coefficient_per_K", s.coil.copper_temperature_coefficient_per_K);
+  require_positive("coil", "inductance_H", s.coil.inductance_H);
+  require_non_negative("coil", "winding_capacitance_F", s.coil.winding_capacitance_F);
+  engine::require_positive_or_infinite("coil", "core_loss_resistance_ohm", s.coil.core_loss_resistance_ohm);
+  if (!std::isnan(s.coil.release_current_A)) require_positive("coil", "release_current_A", s.coil.release_current_A);
+  if (!std::isnan(s.coil.release_voltage_V)) require_positive("coil", "release_voltage_V", s.coil.release_voltage_V);
+  if (!std::isnan(s.coil.release_current_A) && !std::isnan(s.coil.release_voltage_V)) {
+    throw std::invalid_argument("coil: give release_current_A or release_voltage_V, not both");
+  }
+  if (!std::isnan(s.coil.operate_current_A)) require_positive("coil", "operate_current_A", s.coil.operate_current_A);
+  if (!std::isnan(s.coil.operate_voltage_V)) require_positive("coil", "operate_voltage_V", s.coil.operate_voltage_V);
+  const double i_full = s.supply.voltage_V / coil_resistance_ohm(s.coil);
+  const double i_rel = release_current_A(s.coil);
+  if (!std::isnan(i_rel) && !(i_rel < i_full)) {
+    throw std::invalid_argument("coil: the release current (" + std::to_string(i_rel) +
+                                " A) must be below the on-state current supply/resistance (" +
+                                std::to_string(i_full) + " A)");
+  }
+  if (s.clamp.kind == ClampKind::diode_resistor) require_positive("clamp", "resistor_ohm", s.clamp.resistor_ohm);
+  if (s.clamp.kind == ClampKind::rc_across_coil || s.clamp.kind == ClampKind::rc_across_switch ||
+      s.clamp.add_rc_snubber_across_coil) {
+    require_positive("clamp", "snubber_resistance_ohm", s.clamp.snubber_resistance_ohm);
+    require_positive("clamp", "snubber_capacitance_F", s.clamp.snubber_capacitance_F);
+  }
+  engine::require_open_range("analysis", "device_temperature_C", s.analysis.device_temperature_C, -60.0, 250.0);
+  require_non_negative("analysis", "stop_time_s", s.analysis.stop_time_s);
+  if (s.analysis.stop_time_s > 0.0 && !(s.analysis.stop_time_s > s.drive.switch_off_at_s + s.drive.fall_time_s)) {
+    throw std::invalid_argument("analysis: stop_time_s must be after the switch-off edge (drive.switch_off_at_s + fall_time_s)");
+  }
+  engine::require_open_range("analysis", "relative_tolerance", s.analysis.relative_tolerance, 0.0, 0.1);
+  require_positive("analysis", "voltage_tolerance_V", s.analysis.voltage_tolerance_V);
+  require_positive("analysis", "current_tolerance_A", s.analysis.current_tolerance_A);
+  engine::require_closed_range("analysis", "switch_voltage_derating", s.analysis.switch_voltage_derating, 0.1, 1.0);
+  require_positive("analysis", "logic_pin_current_limit_A", s.analysis.logic_pin_current_limit_A);
+  require_positive("analysis", "energy_balance_limit", s.analysis.energy_balance_limit);
+  require_positive("analysis", "maximum_wall_time_s", s.analysis.maximum_wall_time_s);
+}
+
+}  // namespace coilkick::drivers

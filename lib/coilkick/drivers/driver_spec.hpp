@@ -1,0 +1,117 @@
+#pragma once
+// What a designer describes: supply, logic drive, switch topology and part, coil, clamp, and
+// how to analyse it. All quantities in SI units, named with their unit. Parts are catalogue
+// names (models/) with optional per-parameter overrides.
+#include <limits>
+#include <map>
+#include <string>
+#include <vector>
+
+#include "coilkick/catalogue/part_parameters.hpp"
+#include "coilkick/devices/model_level.hpp"
+
+namespace coilkick::drivers {
+
+using catalogue::Overrides;
+
+struct SupplySpec {
+  double voltage_V = 24.0;
+  double tolerance = 0.0;  // relative, e.g. 0.1 for ±10 % (used by tolerance analysis)
+};
+
+struct DriveSpec {
+  double high_level_V = 3.3;            // logic output high level
+  double output_resistance_ohm = 50.0;  // logic output resistance
+  double rise_time_s = 10e-9;
+  double fall_time_s = 10e-9;
+  double switch_off_at_s = 1e-3;  // start of the switch-off edge; the run starts in the on-state at 0
+  // Optional repetition (for clamp_average_power_W): period of the on/off cycle; 0 = single.
+  double period_s = 0.0;
+};
+
+enum class Topology { low_side_npn, low_side_nmos, low_side_darlington, high_side_pnp, high_side_pmos };
+Topology parse_topology(const std::string& word);
+std::string to_string(Topology t);
+const std::vector<std::string>& topology_names();
+
+struct SwitchSpec {
+  Topology topology = Topology::low_side_npn;
+  std::string part = "npn_small_signal_40v";
+  Overrides overrides;
+  double base_resistor_ohm = 1e3;  // base or gate resistor of the switch (from the logic, or
+                                   // from the level shifter for high-side switches)
+  double pullup_resistor_ohm = 10e3;  // high side: base–emitter / gate–source pull-up
+  // High side: the NPN level shifter and its base resistor from the logic output.
+  std::string level_shifter_part = "npn_small_signal_40v";
+  Overrides level_shifter_overrides;
+  double level_shifter_base_resistor_ohm = 4.7e3;
+  double board_stray_capacitance_F = 10e-12;  // switch node to ground
+};
+
+struct CoilSpec {
+  double resistance_at_20C_ohm = 48.0;
+  double temperature_C = 20.0;
+  double copper_temperature_coefficient_per_K = 0.00393;  // IEC 60028
+  double inductance_H = 0.35;
+  double winding_capacitance_F = 0.0;
+  double core_loss_resistance_ohm = std::numeric_limits<double>::infinity();
+  // Release (drop-out) threshold: current, or voltage over the hot resistance. NaN: not given.
+  double release_current_A = std::numeric_limits<double>::quiet_NaN();
+  double release_voltage_V = std::numeric_limits<double>::quiet_NaN();
+  double operate_current_A = std::numeric_limits<double>::quiet_NaN();
+  double operate_voltage_V = std::numeric_limits<double>::quiet_NaN();
+};
+
+enum class ClampKind {
+  none, diode, diode_zener, diode_resistor, rc_across_coil, rc_across_switch, tvs_across_switch, active_clamp
+};
+ClampKind parse_clamp_kind(const std::string& word);
+std::string to_string(ClampKind k);
+const std::vector<ClampKind>& all_clamp_kinds();
+
+struct ClampSpec {
+  ClampKind kind = ClampKind::diode;
+  std::string diode_part = "rectifier_1a";
+  Overrides diode_overrides;
+  std::string zener_part = "zener_500mw_12v";  // diode_zener and active_clamp
+  Overrides zener_overrides;
+  std::string tvs_part = "tvs_400w_33v";
+  Overrides tvs_overrides;
+  double resistor_ohm = 100.0;             // diode_resistor
+  double snubber_resistance_ohm = 100.0;   // rc_across_coil / rc_across_switch
+  double snubber_capacitance_F = 100e-9;
+  bool add_rc_snubber_across_coil = false; // combination: this clamp plus an RC across the coil
+};
+
+struct AnalysisSpec {
+  devices::ModelLevel model_level = devices::ModelLevel::physical;
+  double device_temperature_C = 25.0;
+  double stop_time_s = 0.0;   // 0: automatic (switch-off + enough for the decay)
+  bool stop_when_decayed = true;  // end once the coil current is below half the lowest threshold
+  double relative_tolerance = 1e-6;
+  double voltage_tolerance_V = 1e-6;
+  double current_tolerance_A = 1e-9;
+  double switch_voltage_derating = 0.8;  // keep the peak below 80 % of the rating (common practice)
+  double logic_pin_current_limit_A = 20e-3;
+  double energy_balance_limit = 1e-3;    // a run above this relative error is flagged inaccurate
+  double maximum_wall_time_s = 60.0;
+};
+
+struct DriverSpec {
+  std::string name = "driver";
+  SupplySpec supply;
+  DriveSpec drive;
+  SwitchSpec switch_;
+  CoilSpec coil;
+  ClampSpec clamp;
+  AnalysisSpec analysis;
+};
+
+// Throws std::invalid_argument naming the field (e.g. "coil.inductance_H must be > 0").
+void check_driver_spec(const DriverSpec& s);
+
+// Hot-coil resistance (IEC 60028) and the release current (from current or voltage).
+double coil_resistance_ohm(const CoilSpec& c);
+double release_current_A(const CoilSpec& c);  // NaN if neither is given
+
+}  // namespace coilkick::drivers

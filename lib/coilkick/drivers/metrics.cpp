@@ -1,0 +1,48 @@
+#include "coilkick/drivers/metrics.hpp"
+
+#include <stdexcept>
+
+#include "coilkick/engine/closest_name.hpp"
+
+namespace coilkick::drivers {
+
+void Metrics::set(const std::string& name, double value) {
+  for (auto& [n, v] : items_) {
+    if (n == name) {
+      v = value;
+      return;
+    }
+  }
+  items_.emplace_back(name, value);
+}
+
+bool Metrics::has(const std::string& name) const {
+  for (const auto& [n, v] : items_) {
+    if (n == name) return true;
+  }
+  return false;
+}
+
+double Metrics::get(const std::string& name) const {
+  std::vector<std::string> names;
+  for (const auto& [n, v] : items_) {
+    if (n == name) return v;
+    names.push_back(n);
+  }
+  throw std::invalid_argument("no metric named '" + name + "'" + engine::did_you_mean(name, names));
+}
+
+const std::vector<std::string>& metric_names() {
+  static const std::vector<std::string> n{
+      // on-state
+      "coil_current_at_switch_off_A", "drive_current_A", "forced_beta", "switch_saturation_voltage_V",
+      "coil_voltage_on_V", "logic_pin_current_A",
+      // switch-off
+      "switch_voltage_peak_V", "switch_voltage_peak_time_s", "switch_voltage_rating_V", "switch_voltage_margin",
+      "clamp_current_peak_A", "clamp_energy_J", "coil_resistance_energy_J", "switch_energy_J",
+      "energy_balance_error", "release_time_s", "current_decay_time_10pct_s", "switch_off_delay_s",
+      "ringing_frequency_Hz", "clamp_average_power_W"};
+  return n;
+}
+
+}  // namespace coilkick::drivers

@@ -1,0 +1,23 @@
+#pragma once
+// Named metrics of a run. Names are stable and end in their SI unit (see README, "Metrics").
+#include <string>
+#include <utility>
+#include <vector>
+
+namespace coilkick::drivers {
+
+class Metrics {
+ public:
+  void set(const std::string& name, double value);
+  double get(const std::string& name) const;  // throws for unknown names (with a suggestion)
+  bool has(const std::string& name) const;
+  const std::vector<std::pair<std::string, double>>& items() const { return items_; }
+
+ private:
+  std::vector<std::pair<std::string, double>> items_;
+};
+
+// The metric names, in report order.
+const std::vector<std::string>& metric_names();
+
+}  // namespace coilkick::drivers

@@ -1,0 +1,24 @@
+#pragma once
+// Rating checks: each compares one result with a limit and says pass / warn / fail, with the
+// numbers behind the verdict.
+#include <string>
+#include <vector>
+
+namespace coilkick::drivers {
+
+enum class CheckStatus { pass, warn, fail };
+std::string to_string(CheckStatus s);
+
+struct RatingCheck {
+  std::string name;      // e.g. "switch_voltage"
+  CheckStatus status = CheckStatus::pass;
+  double value = 0.0;    // the result checked
+  double limit = 0.0;    // the limit it is checked against
+  std::string unit;      // of value and limit
+  std::string detail;    // one sentence: what was compared and why
+};
+
+// Worst status of a list (fail > warn > pass).
+CheckStatus overall_status(const std::vector<RatingCheck>& checks);
+
+}  // namespace coilkick::drivers
