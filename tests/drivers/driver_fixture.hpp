@@ -1,0 +1,45 @@
+#pragma once
+// Driver descriptions shared by the driver tests.
+#include "coilkick/catalogue/catalogue.hpp"
+#include "coilkick/drivers/switch_off.hpp"
+
+namespace test_support {
+
+inline const coilkick::catalogue::Catalogue& catalogue() {
+  static const coilkick::catalogue::Catalogue c = coilkick::catalogue::load_default_catalogue();
+  return c;
+}
+
+// A 12 V / 400 ohm / 0.6 H relay-like coil (invented test values) on a low-side NPN, release
+// threshold 3 mA, no winding or board capacitance. With `ideal`, every part is pwl with
+// near-ideal segments: diode knee 0.7 V and 1 mΩ, Zener/TVS/transistor breakdown flat.
+inline coilkick::drivers::DriverSpec relay_case(bool ideal) {
+  using namespace coilkick::drivers;
+  DriverSpec s;
+  s.supply.voltage_V = 12.0;
+  s.drive.high_level_V = 5.0;
+  s.drive.switch_off_at_s = 1e-4;
+  s.switch_.topology = Topology::low_side_npn;
+  s.switch_.part = "npn_small_signal_40v";
+  s.switch_.base_resistor_ohm = 1e3;
+  s.switch_.board_stray_capacitance_F = 0.0;
+  s.coil.resistance_at_20C_ohm = 400.0;
+  s.coil.inductance_H = 0.6;
+  s.coil.release_current_A = 3e-3;
+  s.clamp.zener_part = "zener_500mw_15v";
+  s.clamp.tvs_part = "tvs_400w_33v";
+  s.clamp.resistor_ohm = 400.0;
+  s.analysis.relative_tolerance = 1e-8;
+  if (ideal) {
+    s.analysis.model_level = coilkick::devices::ModelLevel::pwl;
+    s.clamp.diode_overrides = {{"knee_voltage", 0.7}, {"on_resistance", 1e-3}};
+    const Overrides flat_breakdown{{"knee_voltage", 0.7}, {"on_resistance", 1e-3},
+                                   {"breakdown_dynamic_resistance", 1e-3}, {"breakdown_knee_emission_coefficient", 1e-4}};
+    s.clamp.zener_overrides = flat_breakdown;
+    s.clamp.tvs_overrides = flat_breakdown;
+    s.switch_.overrides = {{"breakdown_dynamic_resistance", 1e-3}, {"breakdown_knee_emission_coefficient", 1e-4}};
+  }
+  return s;
+}
+
+}  // namespace test_support
