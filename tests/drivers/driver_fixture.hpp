@@ -27,6 +27,7 @@ inline coilkick::drivers::DriverSpec relay_case(bool ideal) {
   s.coil.inductance_H = 0.6;
   s.coil.release_current_A = 3e-3;
   s.clamp.zener_part = "zener_500mw_15v";
+  s.clamp.active_clamp_zener_part = "zener_500mw_15v";
   s.clamp.tvs_part = "tvs_400w_33v";
   s.clamp.resistor_ohm = 400.0;
   s.analysis.relative_tolerance = 1e-8;
@@ -36,6 +37,7 @@ inline coilkick::drivers::DriverSpec relay_case(bool ideal) {
     const Overrides flat_breakdown{{"knee_voltage", 0.7}, {"on_resistance", 1e-3},
                                    {"breakdown_dynamic_resistance", 1e-3}, {"breakdown_knee_emission_coefficient", 1e-4}};
     s.clamp.zener_overrides = flat_breakdown;
+    s.clamp.active_clamp_zener_overrides = flat_breakdown;
     s.clamp.tvs_overrides = flat_breakdown;
     s.switch_.overrides = {{"breakdown_dynamic_resistance", 1e-3}, {"breakdown_knee_emission_coefficient", 1e-4}};
   }

@@ -5,6 +5,7 @@
 #include <limits>
 #include <sstream>
 
+#include "coilkick/drivers/si_format.hpp"
 #include "coilkick/engine/errors.hpp"
 
 namespace coilkick::drivers {
@@ -16,14 +17,16 @@ std::string describe_clamp_parts(const ClampSpec& c) {
     case ClampKind::none: o << "-"; break;
     case ClampKind::diode: o << c.diode_part; break;
     case ClampKind::diode_zener: o << c.diode_part << " + " << c.zener_part; break;
-    case ClampKind::diode_resistor: o << c.diode_part << " + " << c.resistor_ohm << " ohm"; break;
+    case ClampKind::diode_resistor: o << c.diode_part << " + " << format_si(c.resistor_ohm, "ohm"); break;
     case ClampKind::rc_across_coil:
-    case ClampKind::rc_across_switch: o << c.snubber_resistance_ohm << " ohm + " << c.snubber_capacitance_F * 1e9 << " nF"; break;
+    case ClampKind::rc_across_switch:
+      o << format_si(c.snubber_resistance_ohm, "ohm") << " + " << format_si(c.snubber_capacitance_F, "F");
+      break;
     case ClampKind::tvs_across_switch: o << c.tvs_part; break;
-    case ClampKind::active_clamp: o << c.zener_part << " + " << c.diode_part; break;
+    case ClampKind::active_clamp: o << c.active_clamp_zener_part << " + " << c.diode_part; break;
   }
   if (c.add_rc_snubber_across_coil && c.kind != ClampKind::rc_across_coil) {
-    o << " + RC " << c.snubber_resistance_ohm << " ohm/" << c.snubber_capacitance_F * 1e9 << " nF";
+    o << " + RC " << format_si(c.snubber_resistance_ohm, "ohm") << "/" << format_si(c.snubber_capacitance_F, "F");
   }
   return o.str();
 }

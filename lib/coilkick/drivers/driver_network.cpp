@@ -176,11 +176,13 @@ struct Builder {
         // Zener from the switched end to the control terminal, with a blocking diode so the
         // Zener never conducts forward in the on-state.
         if (!out.high_side) {
-          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", "clamp_mid", sw);
+          diode("clamp_zener", cl.active_clamp_zener_part, cl.active_clamp_zener_overrides,
+                "clamp.active_clamp_zener_part", "clamp_mid", sw);
           diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", "base");
         } else {
           diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "base", "clamp_mid");
-          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", sw, "clamp_mid");
+          diode("clamp_zener", cl.active_clamp_zener_part, cl.active_clamp_zener_overrides,
+                "clamp.active_clamp_zener_part", sw, "clamp_mid");
         }
         break;
     }

@@ -129,3 +129,17 @@ void check_driver_spec(const DriverSpec& s) {
 }
 
 }  // namespace coilkick::drivers
+
+namespace coilkick::drivers {
+CoilSpec coil_spec_from_part(const catalogue::PartRecord& coil) {
+  if (coil.family != "coil") throw std::invalid_argument("part '" + coil.name + "' is a " + coil.family + ", not a coil");
+  CoilSpec c;
+  c.resistance_at_20C_ohm = coil.parameter("resistance_at_20C");
+  c.inductance_H = coil.parameter("inductance");
+  if (coil.has_parameter("winding_capacitance")) c.winding_capacitance_F = coil.parameter("winding_capacitance");
+  if (coil.has_parameter("core_loss_resistance")) c.core_loss_resistance_ohm = coil.parameter("core_loss_resistance");
+  if (coil.has_parameter("release_voltage")) c.release_voltage_V = coil.parameter("release_voltage");
+  if (coil.has_parameter("operate_voltage")) c.operate_voltage_V = coil.parameter("operate_voltage");
+  return c;
+}
+}  // namespace coilkick::drivers

@@ -73,8 +73,10 @@ struct ClampSpec {
   ClampKind kind = ClampKind::diode;
   std::string diode_part = "rectifier_1a";
   Overrides diode_overrides;
-  std::string zener_part = "zener_500mw_12v";  // diode_zener and active_clamp
+  std::string zener_part = "zener_500mw_12v";  // diode_zener: its voltage adds to the supply
   Overrides zener_overrides;
+  std::string active_clamp_zener_part = "zener_500mw_33v";  // active_clamp: measured from ground
+  Overrides active_clamp_zener_overrides;
   std::string tvs_part = "tvs_400w_33v";
   Overrides tvs_overrides;
   double resistor_ohm = 100.0;             // diode_resistor
@@ -114,4 +116,10 @@ void check_driver_spec(const DriverSpec& s);
 double coil_resistance_ohm(const CoilSpec& c);
 double release_current_A(const CoilSpec& c);  // NaN if neither is given
 
+}  // namespace coilkick::drivers
+
+namespace coilkick::drivers {
+// Coil values from a catalogue coil record (resistance at 20 °C, inductance, winding
+// capacitance, core loss, operate and release voltages where given).
+CoilSpec coil_spec_from_part(const catalogue::PartRecord& coil);
 }  // namespace coilkick::drivers
