@@ -1,0 +1,23 @@
+#include "coilkick/analyses/run_summary.hpp"
+
+#include "coilkick/drivers/switch_off.hpp"
+#include "coilkick/engine/errors.hpp"
+
+namespace coilkick::analyses {
+
+RunSummary summarize_run(const drivers::DriverSpec& spec, const catalogue::Catalogue& parts) {
+  RunSummary s;
+  try {
+    auto r = drivers::simulate_switch_off(spec, parts);
+    s.metrics = std::move(r.metrics);
+    s.checks = std::move(r.checks);
+    s.status = drivers::overall_status(s.checks);
+  } catch (const engine::SimulationError& e) {
+    s.error = std::string("simulation failed: ") + e.what();
+  } catch (const std::invalid_argument& e) {
+    s.error = std::string("invalid at this point: ") + e.what();
+  }
+  return s;
+}
+
+}  // namespace coilkick::analyses

@@ -1,0 +1,35 @@
+#pragma once
+// Clamp suggestions: searches preferred values for the driver's clamp — every Zener of the
+// catalogue (E24 voltages, IEC 60063) for diode+Zener and for the active clamp, every TVS for
+// the clamp across the switch, E12 resistors (10 ohm … 10 kohm) for diode+resistor, and E3
+// resistor × capacitor pairs (10 ohm … 1 kohm × 10 nF … 10 µF) for an RC across the coil —
+// and ranks those that meet both limits by release time (fastest first), with the margins.
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "coilkick/analyses/run_summary.hpp"
+#include "coilkick/scenario/scenario.hpp"
+
+namespace coilkick::analyses {
+
+struct SuggestLimits {
+  double max_release_time_s = 0.0;
+  double max_switch_voltage_V = 0.0;
+};
+
+struct Suggestion {
+  drivers::ClampSpec clamp;
+  std::string parts;            // description for reports
+  RunSummary run;
+  bool meets = false;           // both limits met and no rating check failed
+  double release_margin = 0.0;  // (limit − release time)/limit
+  double voltage_margin = 0.0;  // (limit − peak)/limit
+};
+
+// All candidates, those that meet the limits first (fastest release first), then the others.
+std::vector<Suggestion> suggest_clamps(const scenario::Scenario& s, const catalogue::Catalogue& parts,
+                                       const SuggestLimits& limits, int threads,
+                                       const std::function<void(int, int)>& progress = {});
+
+}  // namespace coilkick::analyses
