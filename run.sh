@@ -12,7 +12,7 @@ BUILD_DIR=${COILKICK_BUILD_DIR:-build}
 JOBS=${COILKICK_JOBS:-$(nproc)}
 
 # Debian packages the build and tests need (all from the Debian archive).
-PACKAGES=(cmake g++ make libboost-dev libeigen3-dev libtomlplusplus-dev doctest-dev libbenchmark-dev
+PACKAGES=(cmake g++ make libboost-dev libeigen3-dev libtomlplusplus-dev libcli11-dev nlohmann-json3-dev doctest-dev libbenchmark-dev
           python3 python3-numpy python3-scipy)
 
 install_missing_packages() {

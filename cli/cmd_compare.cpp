@@ -1,0 +1,102 @@
+// coilkick compare FILE: every clamp kind on the driver, side by side, fastest release first.
+#include <cmath>
+#include <fstream>
+#include <iomanip>
+#include <stdexcept>
+
+#include "coilkick/drivers/compare.hpp"
+#include "commands.hpp"
+#include "report_format.hpp"
+#include "svg_plot.hpp"
+
+namespace coilkick::cli {
+namespace {
+
+// Kinds whose parts and values the scenario gives (none is always applicable).
+std::vector<drivers::ClampKind> applicable_kinds(const scenario::Scenario& s) {
+  using drivers::ClampKind;
+  auto has = [&](const char* key) { return s.locations.count(key) > 0; };
+  std::vector<ClampKind> k{ClampKind::none};
+  if (has("clamp.diode_part")) k.push_back(ClampKind::diode);
+  if (has("clamp.diode_part") && has("clamp.zener_part")) k.push_back(ClampKind::diode_zener);
+  if (has("clamp.diode_part") && has("clamp.resistor")) k.push_back(ClampKind::diode_resistor);
+  if (has("clamp.snubber_resistance") && has("clamp.snubber_capacitance")) {
+    k.push_back(ClampKind::rc_across_coil);
+    k.push_back(ClampKind::rc_across_switch);
+  }
+  if (has("clamp.tvs_part")) k.push_back(ClampKind::tvs_across_switch);
+  if (has("clamp.diode_part") && has("clamp.active_clamp_zener_part")) k.push_back(ClampKind::active_clamp);
+  return k;
+}
+
+}  // namespace
+
+int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::string& plot_path, std::ostream& out) {
+  const Loaded l = load(o);
+  const auto& d = l.scenario.driver;
+  const auto rows = drivers::compare_clamps(d, l.parts, applicable_kinds(l.scenario));
+  if (!csv_path.empty()) {
+    std::ofstream f(csv_path);
+    if (!f) throw std::invalid_argument("--csv: cannot write '" + csv_path + "'");
+    f << "clamp_kind,parts,overall,error";
+    for (const auto& n : drivers::metric_names()) f << "," << n;
+    f << "\n";
+    for (const auto& r : rows) {
+      f << drivers::to_string(r.kind) << ",\"" << r.parts << "\"," << (r.result ? drivers::to_string(drivers::overall_status(r.result->checks)) : "error")
+        << ",\"" << r.error << "\"";
+      for (const auto& n : drivers::metric_names()) f << "," << (r.result ? csv_number(r.result->metrics.get(n)) : "");
+      f << "\n";
+    }
+  }
+  if (!plot_path.empty()) {
+    std::ofstream f(plot_path);
+    if (!f) throw std::invalid_argument("--plot: cannot write '" + plot_path + "'");
+    f << comparison_svg(rows, "coilkick compare — " + d.name);
+  }
+  if (o.json) {
+    nlohmann::json a = nlohmann::json::array();
+    for (const auto& r : rows) {
+      nlohmann::json j{{"clamp_kind", drivers::to_string(r.kind)}, {"parts", r.parts}};
+      if (r.result) {
+        j["metrics"] = metrics_json(r.result->metrics);
+        j["checks"] = checks_json(r.result->checks);
+        j["overall"] = drivers::to_string(drivers::overall_status(r.result->checks));
+      } else {
+        j["error"] = r.error;
+      }
+      a.push_back(j);
+    }
+    out << nlohmann::json{{"scenario", d.name}, {"file", o.file}, {"rows", a}, {"caution", kCaution}}.dump(2) << "\n";
+    return 0;
+  }
+  out << "coilkick compare — " << d.name << " (" << o.file << ")\n"
+      << drivers::to_string(d.switch_.topology) << " with " << d.switch_.part << ", " << devices::to_string(d.analysis.model_level)
+      << " models; fastest release first; times from the start of the switch-off edge\n\n";
+  out << std::left << std::setw(18) << "clamp" << std::setw(34) << "parts" << std::right << std::setw(11) << "peak"
+      << std::setw(8) << "margin" << std::setw(11) << "release" << std::setw(11) << "to 10 %" << std::setw(11) << "clamp E"
+      << std::setw(11) << "switch E" << "  checks\n";
+  for (const auto& r : rows) {
+    out << std::left << std::setw(18) << drivers::to_string(r.kind) << std::setw(34) << r.parts << std::right;
+    if (!r.result) {
+      out << "  " << r.error << "\n";
+      continue;
+    }
+    const auto& m = r.result->metrics;
+    std::string flags;
+    for (const auto& c : r.result->checks) {
+      if (c.status != drivers::CheckStatus::pass) flags += (flags.empty() ? "" : ", ") + c.name + " " + drivers::to_string(c.status);
+    }
+    const double margin = m.get("switch_voltage_margin");
+    out << std::setw(11) << metric_text("x_V", m.get("switch_voltage_peak_V")) << std::setw(8)
+        << (std::isnan(margin) ? std::string("-") : std::to_string(static_cast<int>(std::lround(100 * margin))) + "%")
+        << std::setw(11) << metric_text("x_s", m.get("release_time_s")) << std::setw(11)
+        << metric_text("x_s", m.get("current_decay_time_10pct_s")) << std::setw(11) << metric_text("x_J", m.get("clamp_energy_J"))
+        << std::setw(11) << metric_text("x_J", m.get("switch_energy_J")) << "  " << (flags.empty() ? "all pass" : flags) << "\n";
+  }
+  out << "\nmargin: peak switch voltage over the switch's rating; keep below "
+      << static_cast<int>(100 * d.analysis.switch_voltage_derating) << " % (common practice).\n\n"
+      << kCaution << "\n";
+  return 0;
+}
+
+}  // namespace coilkick::cli

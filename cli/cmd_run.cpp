@@ -1,0 +1,108 @@
+// coilkick run FILE: one driver — on-state check, switch-off metrics, rating checks.
+#include <cmath>
+#include <fstream>
+#include <iomanip>
+#include <stdexcept>
+
+#include "coilkick/analyses/parallel.hpp"
+#include "coilkick/drivers/compare.hpp"
+#include "coilkick/drivers/switch_off.hpp"
+#include "commands.hpp"
+#include "report_format.hpp"
+
+namespace coilkick::cli {
+
+Loaded load(const CommonOptions& o) {
+  Loaded l;
+  l.parts.load_directory(o.models_dir.empty() ? catalogue::default_models_directory() : o.models_dir);
+  l.scenario = scenario::read_scenario_file(o.file, l.parts);
+  return l;
+}
+
+int thread_count(const CommonOptions& o) { return o.threads > 0 ? o.threads : analyses::default_thread_count(); }
+
+namespace {
+
+struct Line {
+  const char* label;
+  const char* metric;
+};
+
+void section(std::ostream& out, const char* title, const std::vector<Line>& lines, const drivers::Metrics& m) {
+  out << title << "\n";
+  for (const auto& l : lines) {
+    out << "  " << std::left << std::setw(34) << l.label << std::setw(14) << metric_text(l.metric, m.get(l.metric)) << "  "
+        << l.metric << "\n";
+  }
+}
+
+void write_waveforms(const drivers::SwitchOffResult& r, const std::string& path) {
+  std::ofstream f(path);
+  if (!f) throw std::invalid_argument("--waveforms: cannot write '" + path + "'");
+  const auto& t = *r.transient;
+  const auto& c = t.circuit();
+  f << "time_s,switch_voltage_V,coil_current_A,clamp_current_A";
+  std::vector<std::string> nodes = c.node_names();
+  for (const auto& n : nodes) f << ",node_" << n << "_V";
+  f << "\n";
+  const auto& w = r.waveforms;
+  for (Eigen::Index i = 0; i < w.time_s.size(); ++i) {
+    f << csv_number(w.time_s[i]) << "," << csv_number(w.switch_voltage_V[i]) << "," << csv_number(w.coil_current_A[i]) << ","
+      << csv_number(w.clamp_current_A[i]);
+    const double* x = t.states().row(i).data();
+    for (const auto& n : nodes) f << "," << csv_number(c.node_voltage_V(n, w.time_s[i], x));
+    f << "\n";
+  }
+}
+
+}  // namespace
+
+int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_on_check, std::ostream& out) {
+  const Loaded l = load(o);
+  const auto& d = l.scenario.driver;
+  const auto r = drivers::simulate_switch_off(d, l.parts);
+  if (!waveforms_csv.empty()) write_waveforms(r, waveforms_csv);
+  const auto status = drivers::overall_status(r.checks);
+  if (o.json) {
+    nlohmann::json j{{"scenario", d.name},
+                     {"file", o.file},
+                     {"topology", drivers::to_string(d.switch_.topology)},
+                     {"switch_part", d.switch_.part},
+                     {"clamp_kind", drivers::to_string(d.clamp.kind)},
+                     {"clamp_parts", drivers::describe_clamp_parts(d.clamp)},
+                     {"model_level", devices::to_string(d.analysis.model_level)},
+                     {"metrics", metrics_json(r.metrics)},
+                     {"checks", checks_json(r.checks)},
+                     {"overall", drivers::to_string(status)},
+                     {"solver", {{"accepted_steps", r.transient->statistics().accepted_steps},
+                                 {"rejected_steps", r.transient->statistics().rejected_steps}}},
+                     {"caution", kCaution}};
+    out << j.dump(2) << "\n";
+  } else {
+    out << "coilkick run — " << d.name << " (" << o.file << ")\n"
+        << drivers::to_string(d.switch_.topology) << " with " << d.switch_.part << ", clamp " << drivers::to_string(d.clamp.kind)
+        << " (" << drivers::describe_clamp_parts(d.clamp) << "), " << devices::to_string(d.analysis.model_level) << " models\n\n";
+    section(out, "On-state", {{"coil current", "coil_current_at_switch_off_A"}, {"drive current (base/gate)", "drive_current_A"},
+                              {"forced gain", "forced_beta"}, {"switch voltage", "switch_saturation_voltage_V"},
+                              {"coil voltage", "coil_voltage_on_V"}, {"logic pin current", "logic_pin_current_A"}}, r.metrics);
+    out << "\n";
+    section(out, "Switch-off (times from the start of the switch-off edge)",
+            {{"peak switch voltage", "switch_voltage_peak_V"}, {"  at", "switch_voltage_peak_time_s"},
+             {"switch voltage rating", "switch_voltage_rating_V"}, {"peak over rating", "switch_voltage_margin"},
+             {"clamp peak current", "clamp_current_peak_A"}, {"energy into the clamp", "clamp_energy_J"},
+             {"energy into the coil resistance", "coil_resistance_energy_J"}, {"energy into the switch", "switch_energy_J"},
+             {"release time", "release_time_s"}, {"current down to 10 %", "current_decay_time_10pct_s"},
+             {"switch-off delay", "switch_off_delay_s"}, {"ringing frequency", "ringing_frequency_Hz"},
+             {"clamp average power", "clamp_average_power_W"}, {"energy balance error", "energy_balance_error"}},
+            r.metrics);
+    out << "\nRating checks\n";
+    for (const auto& c : r.checks) {
+      out << "  " << status_word(c.status) << "  " << std::left << std::setw(36) << c.name << std::setw(12)
+          << metric_text("x_" + c.unit, c.value) << " limit " << std::setw(12) << metric_text("x_" + c.unit, c.limit) << c.detail << "\n";
+    }
+    out << "  overall: " << status_word(status) << "\n\n" << kCaution << "\n";
+  }
+  return fail_on_check && status == drivers::CheckStatus::fail ? 1 : 0;
+}
+
+}  // namespace coilkick::cli

@@ -1,0 +1,35 @@
+#pragma once
+// The coilkick commands. Each returns the process exit code: 0 done, 1 a rating check failed
+// and --fail-on-check was given, 2 bad input (file, key, value, option), 3 solver failure.
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include "coilkick/catalogue/catalogue.hpp"
+#include "coilkick/scenario/scenario.hpp"
+
+namespace coilkick::cli {
+
+struct CommonOptions {
+  std::string file;
+  std::string models_dir;  // empty: default models directory
+  bool json = false;
+  bool quiet = false;
+  int threads = 0;  // 0: all cores
+};
+
+struct Loaded {
+  catalogue::Catalogue parts;
+  scenario::Scenario scenario;
+};
+Loaded load(const CommonOptions& o);  // throws CatalogueError / ScenarioError
+int thread_count(const CommonOptions& o);
+
+int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_on_check, std::ostream& out);
+int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::string& plot_path, std::ostream& out);
+int cmd_sweep(const CommonOptions& o, const std::vector<std::string>& vary, const std::string& output, std::ostream& out);
+int cmd_tolerance(const CommonOptions& o, int samples, unsigned long long seed, std::ostream& out);
+int cmd_suggest(const CommonOptions& o, const std::string& max_release_time, const std::string& max_switch_voltage, int top,
+                std::ostream& out);
+
+}  // namespace coilkick::cli

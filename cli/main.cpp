@@ -1,0 +1,96 @@
+// coilkick command-line tool: run, compare, sweep, tolerance, suggest (and demo).
+#include <CLI/CLI.hpp>
+#include <filesystem>
+#include <iostream>
+
+#include "coilkick/catalogue/catalogue.hpp"
+#include "coilkick/engine/errors.hpp"
+#include "coilkick/scenario/scenario.hpp"
+#include "commands.hpp"
+
+using namespace coilkick::cli;
+
+namespace {
+void common(CLI::App* app, CommonOptions& o, bool with_file = true) {
+  if (with_file) app->add_option("FILE", o.file, "scenario file (TOML)")->required();
+  app->add_option("--models", o.models_dir, "models directory (default: the bundled models/)");
+  app->add_flag("--json", o.json, "print the results as JSON");
+  app->add_flag("--quiet", o.quiet, "no progress bar");
+  app->add_option("--threads", o.threads, "worker threads (default: all cores)")->check(CLI::Range(1, 1024));
+}
+}  // namespace
+
+int main(int argc, char** argv) {
+  CLI::App app{"coilkick — switch-off transients of relay, solenoid and contactor drivers, and clamp choice"};
+  app.require_subcommand(1);
+  CommonOptions o;
+  std::string waveforms, csv, plot, output, max_release, max_voltage;
+  std::vector<std::string> vary;
+  bool fail_on_check = false;
+  int samples = 1000, top = 15;
+  unsigned long long seed = 1;
+
+  auto* run = app.add_subcommand("run", "one driver: on-state check, switch-off metrics, rating checks");
+  common(run, o);
+  run->add_option("--waveforms", waveforms, "write the waveforms to this CSV file");
+  run->add_flag("--fail-on-check", fail_on_check, "exit with 1 when a rating check fails");
+
+  auto* compare = app.add_subcommand("compare", "every applicable clamp kind on the driver, side by side");
+  common(compare, o);
+  compare->add_option("--csv", csv, "write the comparison as CSV to this file");
+  compare->add_option("--plot", plot, "write the comparison chart as SVG to this file");
+
+  auto* sweep = app.add_subcommand("sweep", "grid sweep over numeric keys; CSV of metrics per point");
+  common(sweep, o);
+  sweep->add_option("--vary", vary, "KEY=START:STOP:COUNT, e.g. clamp.zener.overrides.breakdown_voltage=5:40:36")->required();
+  sweep->add_option("--output", output, "write the CSV to this file instead of standard output");
+
+  auto* tol = app.add_subcommand("tolerance", "corners and Monte Carlo over the spreads the file declares");
+  common(tol, o);
+  tol->add_option("--samples", samples, "Monte Carlo samples (default 1000)")->check(CLI::Range(0, 10000000));
+  tol->add_option("--seed", seed, "random seed (default 1); the same seed gives the same numbers on any thread count");
+
+  auto* suggest = app.add_subcommand("suggest", "preferred-value clamps that meet release-time and voltage limits");
+  common(suggest, o);
+  suggest->add_option("--max-release-time", max_release, "longest acceptable release time, e.g. \"3 ms\"")->required();
+  suggest->add_option("--max-switch-voltage", max_voltage, "highest acceptable switch voltage, e.g. \"48 V\"")->required();
+  suggest->add_option("--top", top, "how many to list (default 15)")->check(CLI::Range(1, 1000));
+
+  auto* demo = app.add_subcommand("demo", "compare every clamp on the bundled greenhouse-valve scenario");
+  common(demo, o, false);
+  demo->add_option("--csv", csv, "write the comparison as CSV to this file");
+  demo->add_option("--plot", plot, "write the comparison chart as SVG to this file");
+
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::CallForHelp& e) {
+    return app.exit(e);
+  } catch (const CLI::CallForAllHelp& e) {
+    return app.exit(e);
+  } catch (const CLI::ParseError& e) {
+    app.exit(e);
+    return 2;  // bad input
+  }
+  try {
+    if (run->parsed()) return cmd_run(o, waveforms, fail_on_check, std::cout);
+    if (compare->parsed()) return cmd_compare(o, csv, plot, std::cout);
+    if (sweep->parsed()) return cmd_sweep(o, vary, output, std::cout);
+    if (tol->parsed()) return cmd_tolerance(o, samples, seed, std::cout);
+    if (suggest->parsed()) return cmd_suggest(o, max_release, max_voltage, top, std::cout);
+    if (demo->parsed()) {
+      const std::string models = o.models_dir.empty() ? coilkick::catalogue::default_models_directory() : o.models_dir;
+      o.file = (std::filesystem::path(models) / "scenarios" / "greenhouse_valve.toml").string();
+      return cmd_compare(o, csv, plot, std::cout);
+    }
+  } catch (const coilkick::engine::SimulationError& e) {
+    std::cerr << "coilkick: simulation failed: " << e.what() << "\n";
+    return 3;
+  } catch (const std::invalid_argument& e) {
+    std::cerr << "coilkick: " << e.what() << "\n";
+    return 2;
+  } catch (const std::exception& e) {
+    std::cerr << "coilkick: internal error: " << e.what() << "\n";
+    return 4;
+  }
+  return 2;
+}
