@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # coilkick's one entry point: installs missing Debian packages, builds, and runs.
-#   ./run.sh demo    build, then run the bundled demo switch-off
+#   ./run.sh demo    build, then compare every clamp on the bundled demo scenario (table + chart)
 #   ./run.sh test    build, then run every test through CTest
 #   ./run.sh build   configure (Release, build/) and build only
 #   ./run.sh bench   build with the benchmarks and run them (never part of the tests)
@@ -44,7 +44,9 @@ case "$cmd" in
   demo)
     install_missing_packages
     configure_and_build
-    "$BUILD_DIR/bin/coilkick" demo
+    mkdir -p "$BUILD_DIR/demo"
+    "$BUILD_DIR/bin/coilkick" demo --csv "$BUILD_DIR/demo/compare.csv" --plot "$BUILD_DIR/demo/compare.svg"
+    echo "run.sh: comparison table in $BUILD_DIR/demo/compare.csv, chart in $BUILD_DIR/demo/compare.svg"
     ;;
   test)
     install_missing_packages

@@ -31,6 +31,7 @@ void axes(std::ostringstream& o, const Panel& p, const std::string& ylabel, bool
     << "' fill='#fbfaf7' stroke='#555'/>\n";
   const double ty = nice_step(p.vmax - p.vmin, 5);
   for (double v = std::ceil(p.vmin / ty) * ty; v <= p.vmax + 1e-12; v += ty) {
+    if (std::abs(v) < 1e-9 * ty) v = 0.0;  // no "-0" label
     o << "<line x1='" << p.x0 << "' x2='" << p.x0 + p.w << "' y1='" << p.py(v) << "' y2='" << p.py(v)
       << "' stroke='#e2dfd8'/><text x='" << p.x0 - 6 << "' y='" << p.py(v) + 4 << "' text-anchor='end' font-size='11'>"
       << v << "</text>\n";

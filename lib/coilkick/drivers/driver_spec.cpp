@@ -101,6 +101,22 @@ void check_driver_spec(const DriverSpec& s) {
   }
   if (!std::isnan(s.coil.operate_current_A)) require_positive("coil", "operate_current_A", s.coil.operate_current_A);
   if (!std::isnan(s.coil.operate_voltage_V)) require_positive("coil", "operate_voltage_V", s.coil.operate_voltage_V);
+  // Upper bounds: far outside any coil driver, they catch typos and unit slips ("24 kV").
+  auto at_most = [](const char* owner, const char* field, double v, double limit) {
+    if (v > limit) {
+      throw std::invalid_argument(std::string(owner) + ": " + field + " must be at most " + std::to_string(limit) +
+                                  " (far outside a coil driver), got " + std::to_string(v));
+    }
+  };
+  at_most("supply", "voltage_V", s.supply.voltage_V, 1500.0);  // IEC 61810-1 scope ends at 1500 V DC
+  at_most("drive", "high_level_V", s.drive.high_level_V, 30.0);
+  at_most("coil", "inductance_H", s.coil.inductance_H, 1000.0);
+  at_most("coil", "resistance_at_20C_ohm", s.coil.resistance_at_20C_ohm, 1e7);
+  at_most("coil", "winding_capacitance_F", s.coil.winding_capacitance_F, 1e-3);
+  at_most("switch", "board_stray_capacitance_F", s.switch_.board_stray_capacitance_F, 1e-3);
+  at_most("clamp", "snubber_capacitance_F", s.clamp.snubber_capacitance_F, 1.0);
+  at_most("drive", "switch_off_at_s", s.drive.switch_off_at_s, 100.0);
+  at_most("analysis", "stop_time_s", s.analysis.stop_time_s, 1000.0);
   const double i_full = s.supply.voltage_V / coil_resistance_ohm(s.coil);
   const double i_rel = release_current_A(s.coil);
   if (!std::isnan(i_rel) && !(i_rel < i_full)) {

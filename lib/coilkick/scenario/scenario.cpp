@@ -428,6 +428,19 @@ class Reader {
           key = name;
         }
       }
+      if (key.empty()) {
+        // A message about several fields: point at the last of them in the file.
+        int line = -1;
+        for (const auto& n : numeric_table()) {
+          const std::string f = n.spec_field;
+          const auto colon = f.find(": ");
+          if (f.empty() || colon == std::string::npos || !seen_.count(n.key)) continue;
+          if (msg.find(f.substr(colon + 2)) != std::string::npos && at(n.key).line > line) {
+            line = at(n.key).line;
+            key = n.key;
+          }
+        }
+      }
       if (key.empty() && msg.find("release current") != std::string::npos) {
         key = seen_.count("coil.release_current") ? "coil.release_current" : "coil.release_voltage";
       }

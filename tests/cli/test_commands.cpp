@@ -1,0 +1,187 @@
+// The coilkick commands end to end on the bundled demo scenarios, JSON keys, and the program's
+// exit codes and messages for bad input.
+#include <doctest/doctest.h>
+
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <sstream>
+#include <sys/wait.h>
+
+#include "coilkick/catalogue/catalogue.hpp"
+#include "coilkick/drivers/metrics.hpp"
+#include "commands.hpp"
+
+using namespace coilkick;
+using namespace coilkick::cli;
+
+namespace {
+std::string scenario_path(const char* name) { return catalogue::default_models_directory() + "/scenarios/" + name; }
+
+std::string scratch(const std::string& name, const std::string& text) {
+  const auto dir = std::filesystem::temp_directory_path() / "coilkick_cli_test";
+  std::filesystem::create_directories(dir);
+  const auto p = (dir / name).string();
+  std::ofstream(p) << text;
+  return p;
+}
+
+const char* kPwlScenario = R"(name = "cli test"
+[supply]
+voltage = "12 V"
+[drive]
+high_level = "5 V"
+switch_off_at = "100 us"
+[coil]
+resistance = "400 ohm"
+inductance = "600 mH"
+release_current = "3 mA"
+[switch]
+topology = "low_side_npn"
+part = "npn_small_signal_40v"
+base_resistor = "1 kohm"
+[clamp]
+kind = "diode"
+diode_part = "rectifier_1a"
+zener_part = "zener_500mw_15v"
+[analysis]
+model_level = "pwl"
+[tolerances]
+coil_resistance = "10 %"
+)";
+
+struct Outcome {
+  int code;
+  std::string output;  // stdout and stderr
+};
+Outcome run_program(const std::string& args) {
+  const std::string cmd = std::string(COILKICK_PROGRAM) + " " + args + " 2>&1";
+  FILE* p = popen(cmd.c_str(), "r");
+  std::string out;
+  char buf[4096];
+  while (p && fgets(buf, sizeof buf, p)) out += buf;
+  const int status = p ? pclose(p) : -1;
+  return {WIFEXITED(status) ? WEXITSTATUS(status) : -1, out};
+}
+}  // namespace
+
+TEST_CASE("run: readable report with checks and the caution, JSON with every metric") {
+  CommonOptions o;
+  o.file = scenario_path("greenhouse_valve.toml");
+  std::ostringstream text;
+  CHECK(cmd_run(o, "", false, text) == 0);
+  CHECK(text.str().find("Rating checks") != std::string::npos);
+  CHECK(text.str().find("release_time_s") != std::string::npos);
+  CHECK(text.str().find("simulation is not a qualification") != std::string::npos);
+  o.json = true;
+  std::ostringstream js;
+  const std::string csv = scratch("waves.csv", "");
+  CHECK(cmd_run(o, csv, false, js) == 0);
+  const auto j = nlohmann::json::parse(js.str());
+  // JSON keys are stable: exactly the documented metric names.
+  std::vector<std::string> keys;
+  for (const auto& [k, v] : j.at("metrics").items()) keys.push_back(k);
+  std::vector<std::string> expected = drivers::metric_names();
+  std::sort(keys.begin(), keys.end());
+  std::sort(expected.begin(), expected.end());
+  CHECK(keys == expected);
+  for (const char* k : {"scenario", "file", "topology", "switch_part", "clamp_kind", "clamp_parts", "model_level", "checks", "overall", "caution"}) {
+    CHECK(j.contains(k));
+  }
+  std::ifstream w(csv);
+  std::string header;
+  std::getline(w, header);
+  CHECK(header.rfind("time_s,switch_voltage_V,coil_current_A,clamp_current_A", 0) == 0);
+}
+
+TEST_CASE("compare: every applicable clamp of the scenario, CSV and SVG written") {
+  CommonOptions o;
+  o.file = scenario_path("fan_relay.toml");
+  const std::string csv = scratch("compare.csv", ""), svg = scratch("compare.svg", "");
+  std::ostringstream out;
+  CHECK(cmd_compare(o, csv, svg, out) == 0);
+  for (const char* kind : {"none", "diode", "diode_zener", "diode_resistor", "rc_across_coil", "rc_across_switch", "tvs_across_switch", "active_clamp"}) {
+    CHECK(out.str().find(kind) != std::string::npos);
+  }
+  std::ifstream c(csv);
+  int lines = 0;
+  for (std::string l; std::getline(c, l);) ++lines;
+  CHECK(lines == 9);  // header + 8 clamp kinds
+  std::ifstream s(svg);
+  std::string first;
+  std::getline(s, first);
+  CHECK(first.rfind("<svg", 0) == 0);
+}
+
+TEST_CASE("sweep: CSV with one row per grid point") {
+  CommonOptions o;
+  o.file = scratch("sweep.toml", kPwlScenario);
+  o.quiet = true;
+  std::ostringstream out;
+  CHECK(cmd_sweep(o, {"coil.inductance=0.3:0.6:4", "supply.voltage=11V:13V:2"}, "", out) == 0);
+  std::istringstream in(out.str());
+  std::string header;
+  std::getline(in, header);
+  CHECK(header.rfind("coil.inductance,supply.voltage,overall,error,", 0) == 0);
+  int rows = 0;
+  for (std::string l; std::getline(in, l);) ++rows;
+  CHECK(rows == 8);
+}
+
+TEST_CASE("tolerance: summary, worst cases, and the same JSON on 1 and 2 threads") {
+  CommonOptions o;
+  o.file = scratch("tol.toml", kPwlScenario);
+  o.quiet = true;
+  o.json = true;
+  std::ostringstream a, b;
+  o.threads = 1;
+  CHECK(cmd_tolerance(o, 20, 7, a) == 0);
+  o.threads = 2;
+  CHECK(cmd_tolerance(o, 20, 7, b) == 0);
+  CHECK(a.str() == b.str());
+  const auto j = nlohmann::json::parse(a.str());
+  CHECK(j.at("corners") == 2);
+  CHECK(j.at("samples") == 20);
+  CHECK(j.at("summary").contains("release_time_s"));
+  o.json = false;
+  std::ostringstream text;
+  CHECK(cmd_tolerance(o, 5, 7, text) == 0);
+  CHECK(text.str().find("Worst release time") != std::string::npos);
+}
+
+TEST_CASE("suggest: a ranked list that meets the limits") {
+  CommonOptions o;
+  o.file = scratch("suggest.toml", kPwlScenario);
+  o.quiet = true;
+  std::ostringstream out;
+  CHECK(cmd_suggest(o, "0.8 ms", "32 V", 5, out) == 0);
+  CHECK(out.str().find("rank") != std::string::npos);
+  CHECK(out.str().find("zener_500mw_18v") != std::string::npos);
+  CHECK_THROWS_WITH_AS(cmd_suggest(o, "0.8 V", "32 V", 5, out), doctest::Contains("--max-release-time"), std::invalid_argument);
+}
+
+TEST_CASE("the program: exit codes and messages") {
+  CHECK(run_program("--help").code == 0);
+  CHECK(run_program("run --help").code == 0);
+  const auto demo = run_program("demo --quiet");
+  CHECK(demo.code == 0);
+  CHECK(demo.output.find("diode_zener") != std::string::npos);
+  // Bad input: exit code 2 with file:line:column.
+  const std::string bad = scratch("bad.toml", std::string(kPwlScenario) + "[coil.more]\n");
+  const auto r = run_program("run " + bad);
+  CHECK(r.code == 2);
+  CHECK(r.output.find(bad + ":23:") != std::string::npos);
+  const auto missing = run_program("run /nonexistent.toml");
+  CHECK(missing.code == 2);
+  CHECK(missing.output.find("cannot open") != std::string::npos);
+  CHECK(run_program("tolerance " + bad + " --samples -3").code == 2);
+  CHECK(run_program("frobnicate").code == 2);
+  CHECK(run_program("sweep " + scratch("ok.toml", kPwlScenario) + " --vary coil.inductanse=1:2:2").code == 2);
+  // A solver failure is an error (exit 3), not a result.
+  std::string text = kPwlScenario;
+  text.insert(text.find("[tolerances]"), "maximum_wall_time = \"1 us\"\n");
+  const auto failed = run_program("run " + scratch("slow2.toml", text));
+  CHECK(failed.code == 3);
+  CHECK(failed.output.find("wall-time budget") != std::string::npos);
+}

@@ -1,0 +1,166 @@
+// Scenario files: units with SI prefixes, and a table of bad inputs — each gives one clear
+// message naming the key and its file:line:column.
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <string>
+#include <vector>
+
+#include "../drivers/driver_fixture.hpp"
+#include "coilkick/scenario/quantity.hpp"
+#include "coilkick/scenario/scenario.hpp"
+
+using namespace coilkick;
+using namespace coilkick::scenario;
+
+TEST_CASE("quantities: SI prefixes and units, checked against the expected dimension") {
+  CHECK(parse_quantity("4.7 kohm", Dimension::resistance) == doctest::Approx(4700.0));
+  CHECK(parse_quantity("4.7 k\xCE\xA9", Dimension::resistance) == doctest::Approx(4700.0));  // kΩ
+  CHECK(parse_quantity("550 mH", Dimension::inductance) == doctest::Approx(0.55));
+  CHECK(parse_quantity("24 V", Dimension::voltage) == 24.0);
+  CHECK(parse_quantity("20 ns", Dimension::time) == doctest::Approx(20e-9));
+  CHECK(parse_quantity("30 pF", Dimension::capacitance) == doctest::Approx(30e-12));
+  CHECK(parse_quantity("10 \xC2\xB5" "F", Dimension::capacitance) == doctest::Approx(10e-6));  // µF
+  CHECK(parse_quantity("60 degC", Dimension::temperature) == 60.0);
+  CHECK(parse_quantity("10 %", Dimension::ratio) == doctest::Approx(0.1));
+  CHECK(parse_quantity("1e-3", Dimension::time) == 1e-3);  // SI base unit implied
+  CHECK_THROWS_WITH_AS(parse_quantity("30 pF", Dimension::inductance), doctest::Contains("is a capacitance, but an inductance"),
+                       std::invalid_argument);
+  CHECK_THROWS_WITH_AS(parse_quantity("3 furlongs", Dimension::time), doctest::Contains("unknown unit"), std::invalid_argument);
+  CHECK_THROWS_WITH_AS(parse_quantity("nan V", Dimension::voltage), doctest::Contains("not a finite number"), std::invalid_argument);
+}
+
+namespace {
+// A valid scenario, one statement per line; rows below replace or append lines.
+std::vector<std::string> base_lines() {
+  return {
+      "name = \"test driver\"",             // 1
+      "[supply]",                           // 2
+      "voltage = \"12 V\"",                 // 3
+      "[drive]",                            // 4
+      "high_level = \"5 V\"",               // 5
+      "switch_off_at = \"100 us\"",         // 6
+      "[coil]",                             // 7
+      "resistance = \"400 ohm\"",           // 8
+      "inductance = \"600 mH\"",            // 9
+      "release_current = \"3 mA\"",         // 10
+      "[switch]",                           // 11
+      "topology = \"low_side_npn\"",        // 12
+      "part = \"npn_small_signal_40v\"",    // 13
+      "base_resistor = \"1 kohm\"",         // 14
+      "[clamp]",                            // 15
+      "kind = \"diode_zener\"",             // 16
+      "diode_part = \"rectifier_1a\"",      // 17
+      "zener_part = \"zener_500mw_15v\"",   // 18
+      "[analysis]",                         // 19
+      "model_level = \"pwl\"",              // 20
+  };
+}
+std::string join(const std::vector<std::string>& lines) {
+  std::string s;
+  for (const auto& l : lines) s += l + "\n";
+  return s;
+}
+struct Row {
+  const char* what;
+  int replace_line;      // 1-based line to replace, 0: append
+  std::string text;      // new line content ("" with replace: delete the line's content)
+  int expect_line;       // line the message must name
+  const char* expect;    // part of the message
+};
+}  // namespace
+
+TEST_CASE("the base scenario is valid and reads as written") {
+  const auto s = read_scenario_text(join(base_lines()), "base.toml", test_support::catalogue());
+  CHECK(s.driver.supply.voltage_V == 12.0);
+  CHECK(s.driver.coil.inductance_H == doctest::Approx(0.6));
+  CHECK(s.driver.switch_.base_resistor_ohm == doctest::Approx(1e3));
+  CHECK(s.driver.clamp.zener_part == "zener_500mw_15v");
+  CHECK(s.locations.at("coil.inductance").line == 9);
+}
+
+TEST_CASE("bad scenario inputs: one clear message with file:line:column each") {
+  const std::vector<Row> rows{
+      {"TOML syntax", 2, "[supply", 2, "TOML syntax"},
+      {"unknown section", 2, "[suply]", 2, "unknown section or key (did you mean 'supply'?)"},
+      {"unknown key", 9, "inductnce = \"600 mH\"", 9, "unknown key (did you mean 'coil.inductance'?)"},
+      {"missing supply voltage", 3, "", 2, "key 'supply.voltage': is required"},
+      {"missing topology", 12, "", 11, "key 'switch.topology': is required"},
+      {"missing switch part", 13, "", 11, "key 'switch.part': is required"},
+      {"missing clamp kind", 16, "", 15, "key 'clamp.kind': is required"},
+      {"capacitance given for an inductance", 9, "inductance = \"30 pF\"", 9, "is a capacitance, but an inductance"},
+      {"unknown unit", 9, "inductance = \"550 mX\"", 9, "unknown unit 'mX'"},
+      {"not a number", 3, "voltage = \"twelve V\"", 3, "does not start with a number"},
+      {"NaN string", 3, "voltage = \"nan V\"", 3, "not a finite number"},
+      {"negative inductance", 9, "inductance = \"-1 H\"", 9, "key 'coil.inductance': coil: inductance_H must be finite and > 0"},
+      {"zero resistance", 8, "resistance = 0", 8, "key 'coil.resistance': coil: resistance_at_20C_ohm must be finite and > 0"},
+      {"boolean for a voltage", 3, "voltage = true", 3, "must be a number or a quantity string"},
+      {"number for a topology", 12, "topology = 5", 12, "must be a string, not an integer"},
+      {"unknown topology", 12, "topology = \"low_side_npm\"", 12, "unknown switch topology 'low_side_npm' (did you mean 'low_side_npn'?)"},
+      {"unknown clamp kind", 16, "kind = \"diode_zenner\"", 16, "unknown clamp kind 'diode_zenner' (did you mean 'diode_zener'?)"},
+      {"unknown switch part", 13, "part = \"npn_small_signal_40\"", 13, "no part named 'npn_small_signal_40' in the catalogue (did you mean 'npn_small_signal_40v'?)"},
+      {"part of the wrong family", 13, "part = \"zener_500mw_12v\"", 13, "does not fit topology low_side_npn"},
+      {"unknown coil part", 8, "part = \"greenhouse_valve\"", 8, "key 'coil.part': no part named 'greenhouse_valve' in the catalogue (did you mean 'greenhouse_valve_24v'?)"},
+      {"override of an unknown parameter", 0, "[switch.overrides]\nforward_bet = 150", 22, "'forward_bet' is not a parameter of npn part 'npn_small_signal_40v' (did you mean 'forward_beta'?)"},
+      {"override with the wrong unit", 0, "[clamp.zener.overrides]\nbreakdown_voltage = \"20 A\"", 22, "is a current, but a voltage"},
+      {"release current above the on-state current", 10, "release_current = \"50 mA\"", 10, "must be below the on-state current"},
+      {"release current and release voltage", 10, "release_current = \"3 mA\"\nrelease_voltage = \"1 V\"", 11, "give release_current_A or release_voltage_V, not both"},
+      {"stop time before switch-off", 0, "stop_time = \"50 us\"", 21, "stop_time_s must be after the switch-off edge"},
+      {"Zener clamp without a Zener", 18, "", 15, "key 'clamp.zener_part': is required for clamp.kind = diode_zener"},
+      {"diode + resistor without a resistor", 16, "kind = \"diode_resistor\"", 15, "key 'clamp.resistor': is required for clamp.kind = diode_resistor"},
+      {"RC snubber without values", 16, "kind = \"rc_across_coil\"", 15, "key 'clamp.snubber_resistance': is required"},
+      {"high side without a pull-up", 12, "topology = \"high_side_pnp\"", 11, "key 'switch.pullup_resistor': is required for a high-side switch"},
+      {"key given twice", 0, "model_level = \"pwl\"", 21, "TOML syntax"},
+      {"huge supply voltage", 3, "voltage = \"1e300 V\"", 3, "key 'supply.voltage': supply: voltage_V must be at most"},
+      {"unknown model level", 20, "model_level = \"fast\"", 20, "model level must be \"pwl\" or \"physical\""},
+      {"relative tolerance out of range", 0, "relative_tolerance = 0.5", 21, "key 'analysis.relative_tolerance'"},
+      {"array for a value", 3, "voltage = [12]", 3, "must be a number or a quantity string such as \"4.7 kohm\", not an array"},
+      {"coil temperature out of range", 10, "temperature = \"300 degC\"", 10, "key 'coil.temperature': coil: temperature_C must be inside"},
+      {"temperature with a prefix", 0, "device_temperature = \"25 kdegC\"", 21, "a temperature takes no prefix"},
+      {"tolerance without its pair", 0, "[tolerances]\ncoil_temperature_min = \"-10 degC\"", 22, "give both tolerances.coil_temperature_min and tolerances.coil_temperature_max"},
+      {"spread out of range", 0, "[tolerances]\ncoil_resistance = \"60 %\"", 22, "must be a relative spread in [0, 50 %)"},
+      {"top-level unknown key", 1, "title = \"x\"", 1, "unknown section or key"},
+      {"section given as a value", 0, "[tolerances]\n[tolerances.inner]", 22, "unknown key"},
+  };
+  CHECK(rows.size() >= 30);
+  int k = 0;
+  for (const auto& r : rows) {
+    CAPTURE(r.what);
+    auto lines = base_lines();
+    if (r.replace_line > 0) lines[static_cast<std::size_t>(r.replace_line - 1)] = r.text;
+    else lines.push_back(r.text);
+    const std::string name = "bad_" + std::to_string(k++) + ".toml";
+    std::string msg = "no error";
+    try {
+      (void)read_scenario_text(join(lines), name, test_support::catalogue());
+    } catch (const ScenarioError& e) {
+      msg = e.what();
+    }
+    CAPTURE(msg);
+    CHECK(msg.rfind(name + ":" + std::to_string(r.expect_line) + ":", 0) == 0);
+    CHECK(msg.find(r.expect) != std::string::npos);
+  }
+}
+
+TEST_CASE("an unreadable file is a clear error") {
+  CHECK_THROWS_WITH_AS(read_scenario_file("/nonexistent/dir/x.toml", test_support::catalogue()),
+                       doctest::Contains("/nonexistent/dir/x.toml:1:1: cannot open"), ScenarioError);
+}
+
+TEST_CASE("numeric keys set by name, part overrides included") {
+  auto s = read_scenario_text(join(base_lines()), "base.toml", test_support::catalogue());
+  set_numeric_key(s, "coil.inductance", 0.3, test_support::catalogue());
+  CHECK(s.driver.coil.inductance_H == 0.3);
+  set_numeric_key(s, "clamp.zener.overrides.breakdown_voltage", 20.0, test_support::catalogue());
+  CHECK(s.driver.clamp.zener_overrides.at("breakdown_voltage") == 20.0);
+  CHECK_THROWS_WITH_AS(set_numeric_key(s, "coil.inductanse", 1.0, test_support::catalogue()),
+                       doctest::Contains("did you mean 'coil.inductance'"), ScenarioError);
+}
+
+TEST_CASE("every bundled scenario reads") {
+  for (const char* f : {"greenhouse_valve.toml", "fan_relay.toml"}) {
+    CAPTURE(f);
+    const auto s = read_scenario_file(catalogue::default_models_directory() + "/scenarios/" + f, test_support::catalogue());
+    CHECK(!s.driver.name.empty());
+  }
+}
