@@ -82,7 +82,7 @@ TEST_CASE("a sweep point that is invalid is reported with its error, the others 
   CHECK(points[2].run.ok());
 }
 
-TEST_CASE("tolerance: corners and samples; identical numbers on 1 and 2 threads") {
+TEST_CASE("tolerance: corners and samples, identical numbers on 1 and 2 threads") {
   const auto s = pwl_scenario();
   const auto a = analyses::run_tolerance(s, test_support::catalogue(), 12, 42, 1);
   const auto b = analyses::run_tolerance(s, test_support::catalogue(), 12, 42, 2);
