@@ -185,3 +185,22 @@ TEST_CASE("the program: exit codes and messages") {
   CHECK(failed.code == 3);
   CHECK(failed.output.find("wall-time budget") != std::string::npos);
 }
+
+TEST_CASE("sweep, tolerance and suggest on the bundled demo scenario (physical models)") {
+  CommonOptions o;
+  o.file = scenario_path("greenhouse_valve.toml");
+  o.quiet = true;
+  std::ostringstream sweep;
+  CHECK(cmd_sweep(o, {"clamp.zener.overrides.breakdown_voltage=12V:24V:3"}, "", sweep) == 0);
+  int rows = 0;
+  std::istringstream in(sweep.str());
+  for (std::string l; std::getline(in, l);) rows += l.find(",pass,") != std::string::npos || l.find(",warn,") != std::string::npos ||
+                                                    l.find(",fail,") != std::string::npos;
+  CHECK(rows == 3);
+  std::ostringstream tol;
+  CHECK(cmd_tolerance(o, 4, 3, tol) == 0);
+  CHECK(tol.str().find("64 corners and 4 Monte Carlo samples") != std::string::npos);
+  std::ostringstream sug;
+  CHECK(cmd_suggest(o, "5 ms", "48 V", 5, sug) == 0);
+  CHECK(sug.str().find("candidates meet both") != std::string::npos);
+}
