@@ -13,7 +13,8 @@ JOBS=${COILKICK_JOBS:-$(nproc)}
 
 # Debian packages the build and tests need (all from the Debian archive).
 PACKAGES=(cmake g++ make libboost-dev libeigen3-dev libtomlplusplus-dev libcli11-dev nlohmann-json3-dev doctest-dev libbenchmark-dev
-          python3 python3-numpy python3-scipy)
+          python3 python3-dev pybind11-dev python3-pybind11 python3-numpy python3-scipy python3-pandas
+          python3-matplotlib python3-pytest python3-nbclient python3-nbformat python3-ipykernel python3-distributed)
 
 install_missing_packages() {
   local missing=()

@@ -10,31 +10,11 @@
 #include "svg_plot.hpp"
 
 namespace coilkick::cli {
-namespace {
-
-// Kinds whose parts and values the scenario gives (none is always applicable).
-std::vector<drivers::ClampKind> applicable_kinds(const scenario::Scenario& s) {
-  using drivers::ClampKind;
-  auto has = [&](const char* key) { return s.locations.count(key) > 0; };
-  std::vector<ClampKind> k{ClampKind::none};
-  if (has("clamp.diode_part")) k.push_back(ClampKind::diode);
-  if (has("clamp.diode_part") && has("clamp.zener_part")) k.push_back(ClampKind::diode_zener);
-  if (has("clamp.diode_part") && has("clamp.resistor")) k.push_back(ClampKind::diode_resistor);
-  if (has("clamp.snubber_resistance") && has("clamp.snubber_capacitance")) {
-    k.push_back(ClampKind::rc_across_coil);
-    k.push_back(ClampKind::rc_across_switch);
-  }
-  if (has("clamp.tvs_part")) k.push_back(ClampKind::tvs_across_switch);
-  if (has("clamp.diode_part") && has("clamp.active_clamp_zener_part")) k.push_back(ClampKind::active_clamp);
-  return k;
-}
-
-}  // namespace
 
 int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::string& plot_path, std::ostream& out) {
   const Loaded l = load(o);
   const auto& d = l.scenario.driver;
-  const auto rows = drivers::compare_clamps(d, l.parts, applicable_kinds(l.scenario));
+  const auto rows = drivers::compare_clamps(d, l.parts, scenario::applicable_clamp_kinds(l.scenario));
   if (!csv_path.empty()) {
     std::ofstream f(csv_path);
     if (!f) throw std::invalid_argument("--csv: cannot write '" + csv_path + "'");

@@ -117,28 +117,38 @@ scenario::Scenario apply_spreads(const scenario::Scenario& s, const std::vector<
   return r;
 }
 
-ToleranceResult run_tolerance(const scenario::Scenario& s, const catalogue::Catalogue& parts, int samples,
-                              unsigned long long seed, int threads, const std::function<void(int, int)>& progress) {
+std::vector<ToleranceRun> tolerance_plan(const std::vector<Spread>& spreads, int samples, unsigned long long seed) {
   if (samples < 0 || samples > 10000000) throw std::invalid_argument("tolerance: --samples must be from 0 to 10,000,000");
-  ToleranceResult r;
-  r.spreads = scenario_spreads(s, parts);
-  const std::size_t k = r.spreads.size();
+  const std::size_t k = spreads.size();
   if (k > 12) throw std::invalid_argument("tolerance: more than 12 spreads (4096 corners)");
+  std::vector<ToleranceRun> plan;
   const int n_corners = k == 0 ? 0 : 1 << k;
   for (int c = 0; c < n_corners; ++c) {
     ToleranceRun run;
     run.label = "corner " + std::to_string(c + 1);
-    for (std::size_t j = 0; j < k; ++j) run.values.push_back((c >> j) & 1 ? r.spreads[j].high : r.spreads[j].low);
-    r.corners.push_back(std::move(run));
+    for (std::size_t j = 0; j < k; ++j) run.values.push_back((c >> j) & 1 ? spreads[j].high : spreads[j].low);
+    plan.push_back(std::move(run));
   }
   for (int i = 0; i < samples; ++i) {
     ToleranceRun run;
     run.label = "sample " + std::to_string(i + 1);
     std::seed_seq sq{static_cast<unsigned>(seed & 0xffffffffu), static_cast<unsigned>(seed >> 32), static_cast<unsigned>(i)};
     std::mt19937_64 g(sq);
-    for (const auto& sp : r.spreads) run.values.push_back(draw(sp, g));
-    r.samples.push_back(std::move(run));
+    for (const auto& sp : spreads) run.values.push_back(draw(sp, g));
+    plan.push_back(std::move(run));
   }
+  return plan;
+}
+
+ToleranceResult run_tolerance(const scenario::Scenario& s, const catalogue::Catalogue& parts, int samples,
+                              unsigned long long seed, int threads, const std::function<void(int, int)>& progress) {
+  ToleranceResult r;
+  r.spreads = scenario_spreads(s, parts);
+  const std::size_t k = r.spreads.size();
+  const int n_corners = k == 0 ? 0 : 1 << k;
+  auto plan = tolerance_plan(r.spreads, samples, seed);
+  r.corners.assign(plan.begin(), plan.begin() + n_corners);
+  r.samples.assign(plan.begin() + n_corners, plan.end());
   const int total = n_corners + samples;
   parallel_for(total, threads, [&](int i) {
     ToleranceRun& run = i < n_corners ? r.corners[static_cast<std::size_t>(i)] : r.samples[static_cast<std::size_t>(i - n_corners)];

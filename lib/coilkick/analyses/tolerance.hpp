@@ -51,6 +51,11 @@ struct ToleranceResult {
   const ToleranceRun& run(int index) const { return index < static_cast<int>(corners.size()) ? corners[static_cast<std::size_t>(index)] : samples[static_cast<std::size_t>(index) - corners.size()]; }
 };
 
+// The runs of a tolerance analysis without running them: corners first, then samples (values
+// only). run_tolerance and the Python/distributed paths share it, so every path runs the same
+// points.
+std::vector<ToleranceRun> tolerance_plan(const std::vector<Spread>& spreads, int samples, unsigned long long seed);
+
 ToleranceResult run_tolerance(const scenario::Scenario& s, const catalogue::Catalogue& parts, int samples,
                               unsigned long long seed, int threads, const std::function<void(int, int)>& progress = {});
 

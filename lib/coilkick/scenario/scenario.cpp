@@ -504,6 +504,22 @@ void set_numeric_key(Scenario& s, const std::string& key, double value, const ca
                       "clamp.zener.overrides.breakdown_voltage)" + engine::did_you_mean(key, names));
 }
 
+std::vector<drivers::ClampKind> applicable_clamp_kinds(const Scenario& s) {
+  using drivers::ClampKind;
+  auto has = [&](const char* key) { return s.locations.count(key) > 0; };
+  std::vector<ClampKind> k{ClampKind::none};
+  if (has("clamp.diode_part")) k.push_back(ClampKind::diode);
+  if (has("clamp.diode_part") && has("clamp.zener_part")) k.push_back(ClampKind::diode_zener);
+  if (has("clamp.diode_part") && has("clamp.resistor")) k.push_back(ClampKind::diode_resistor);
+  if (has("clamp.snubber_resistance") && has("clamp.snubber_capacitance")) {
+    k.push_back(ClampKind::rc_across_coil);
+    k.push_back(ClampKind::rc_across_switch);
+  }
+  if (has("clamp.tvs_part")) k.push_back(ClampKind::tvs_across_switch);
+  if (has("clamp.diode_part") && has("clamp.active_clamp_zener_part")) k.push_back(ClampKind::active_clamp);
+  return k;
+}
+
 std::vector<std::pair<std::string, std::string>> numeric_keys() {
   std::vector<std::pair<std::string, std::string>> out;
   for (const auto& n : numeric_table()) out.emplace_back(n.key, n.unit);

@@ -53,6 +53,9 @@ Scenario read_scenario_text(const std::string& text, const std::string& name, co
 // Throws ScenarioError naming the key (with a suggestion) if it is not a numeric key.
 void set_numeric_key(Scenario& s, const std::string& key, double value, const catalogue::Catalogue& parts);
 
+// The clamp kinds whose parts and values the scenario gives (and `none`), for comparisons.
+std::vector<drivers::ClampKind> applicable_clamp_kinds(const Scenario& s);
+
 // Every numeric key with its SI unit symbol, for --help and the README.
 std::vector<std::pair<std::string, std::string>> numeric_keys();
 

@@ -1,0 +1,144 @@
+// Sweep points, tolerance plans and points, suggestions: the compute-heavy parts of the
+// Python analyses, each releasing the GIL while it runs on C++ threads. The Python package
+// splits the work across an executor (concurrent.futures or dask) by calling these on chunks.
+#include <pybind11/stl.h>
+
+#include "bindings.hpp"
+#include "coilkick/analyses/parallel.hpp"
+#include "coilkick/analyses/run_summary.hpp"
+#include "coilkick/analyses/suggest.hpp"
+#include "coilkick/analyses/tolerance.hpp"
+
+namespace py = pybind11;
+
+namespace coilkick::python {
+namespace {
+
+py::dict summary_dict(const analyses::RunSummary& r) {
+  py::dict metrics;
+  for (const auto& [k, v] : r.metrics.items()) metrics[py::str(k)] = v;
+  py::list failed;
+  for (const auto& c : r.checks) {
+    if (c.status == drivers::CheckStatus::fail) failed.append(c.name);
+  }
+  py::dict d;
+  d["metrics"] = metrics;
+  d["overall"] = r.ok() ? drivers::to_string(r.status) : std::string("error");
+  d["error"] = r.error;
+  d["failed_checks"] = failed;
+  return d;
+}
+
+int threads_or_default(int t) { return t > 0 ? t : analyses::default_thread_count(); }
+
+}  // namespace
+
+void DefineAnalyses(py::module_& m) {
+  m.def(
+      "run_points",
+      [](const PyScenario& s, const std::vector<std::string>& keys, const std::vector<std::vector<double>>& values, int threads) {
+        std::vector<analyses::RunSummary> out(values.size());
+        {
+          py::gil_scoped_release release;
+          analyses::parallel_for(static_cast<int>(values.size()), threads_or_default(threads), [&](int i) {
+            scenario::Scenario si = s.scenario;
+            const auto& v = values[static_cast<std::size_t>(i)];
+            try {
+              if (v.size() != keys.size()) throw std::invalid_argument("each point needs one value per key");
+              for (std::size_t k = 0; k < keys.size(); ++k) scenario::set_numeric_key(si, keys[k], v[k], *s.parts);
+            } catch (const std::invalid_argument& e) {
+              out[static_cast<std::size_t>(i)].error = std::string("invalid at this point: ") + e.what();
+              return;
+            }
+            out[static_cast<std::size_t>(i)] = analyses::summarize_run(si.driver, *s.parts);
+          });
+        }
+        py::list l;
+        for (const auto& r : out) l.append(summary_dict(r));
+        return l;
+      },
+      py::arg("scenario"), py::arg("keys"), py::arg("values"), py::arg("threads") = 0,
+      "Run the scenario at each point (one value per key, SI base units); list of {metrics, overall, error, failed_checks}.");
+
+  m.def(
+      "tolerance_spreads",
+      [](const PyScenario& s) {
+        py::list l;
+        for (const auto& sp : analyses::scenario_spreads(s.scenario, *s.parts)) {
+          py::dict d;
+          d["name"] = sp.name;
+          d["low"] = sp.low;
+          d["nominal"] = sp.nominal;
+          d["high"] = sp.high;
+          d["distribution"] = sp.uniform ? "uniform" : "normal, tolerance at 3 sigma";
+          l.append(d);
+        }
+        return l;
+      },
+      py::arg("scenario"), "The spreads the scenario declares, with absolute low/nominal/high values.");
+
+  m.def(
+      "tolerance_points",
+      [](const PyScenario& s, int samples, unsigned long long seed, const std::vector<int>& indices, int threads) {
+        const auto spreads = analyses::scenario_spreads(s.scenario, *s.parts);
+        const auto plan = analyses::tolerance_plan(spreads, samples, seed);
+        for (int i : indices) {
+          if (i < 0 || i >= static_cast<int>(plan.size())) throw std::invalid_argument("tolerance point index out of range");
+        }
+        std::vector<analyses::RunSummary> out(indices.size());
+        {
+          py::gil_scoped_release release;
+          analyses::parallel_for(static_cast<int>(indices.size()), threads_or_default(threads), [&](int k) {
+            const auto& run = plan[static_cast<std::size_t>(indices[static_cast<std::size_t>(k)])];
+            out[static_cast<std::size_t>(k)] =
+                analyses::summarize_run(analyses::apply_spreads(s.scenario, spreads, run.values, *s.parts).driver, *s.parts);
+          });
+        }
+        py::list l;
+        for (std::size_t k = 0; k < indices.size(); ++k) {
+          py::dict d = summary_dict(out[k]);
+          const auto& run = plan[static_cast<std::size_t>(indices[k])];
+          d["index"] = indices[k];
+          d["label"] = run.label;
+          d["values"] = run.values;
+          l.append(d);
+        }
+        return l;
+      },
+      py::arg("scenario"), py::arg("samples"), py::arg("seed"), py::arg("indices"), py::arg("threads") = 0,
+      "Run the given points of the tolerance plan (corners first, then samples); the same index gives the same point "
+      "in any process.");
+
+  m.def(
+      "tolerance_point_count",
+      [](const PyScenario& s, int samples) {
+        const auto k = analyses::scenario_spreads(s.scenario, *s.parts).size();
+        return (k == 0 ? 0 : 1 << k) + samples;
+      },
+      py::arg("scenario"), py::arg("samples"));
+
+  m.def(
+      "suggest",
+      [](const PyScenario& s, double max_release_time_s, double max_switch_voltage_V, int threads) {
+        std::vector<analyses::Suggestion> list;
+        {
+          py::gil_scoped_release release;
+          list = analyses::suggest_clamps(s.scenario, *s.parts, {max_release_time_s, max_switch_voltage_V}, threads_or_default(threads));
+        }
+        py::list l;
+        for (const auto& g : list) {
+          py::dict d = summary_dict(g.run);
+          d["clamp_kind"] = drivers::to_string(g.clamp.kind);
+          d["parts"] = g.parts;
+          d["meets_limits"] = g.meets;
+          d["release_margin"] = g.release_margin;
+          d["voltage_margin"] = g.voltage_margin;
+          l.append(d);
+        }
+        return l;
+      },
+      py::arg("scenario"), py::arg("max_release_time_s"), py::arg("max_switch_voltage_V"), py::arg("threads") = 0,
+      "Preferred-value clamps ranked against the limits (see README, 'suggest').");
+}
+
+}  // namespace coilkick::python

@@ -1,0 +1,112 @@
+// Switch-off results: metrics, checks, and waveforms as numpy arrays that share the result's
+// memory (no copy; the array keeps the result alive).
+#include <pybind11/numpy.h>
+#include <pybind11/stl.h>
+
+#include "bindings.hpp"
+#include "coilkick/drivers/compare.hpp"
+#include "coilkick/drivers/switch_off.hpp"
+
+namespace py = pybind11;
+
+namespace coilkick::python {
+namespace {
+
+struct PyRun {
+  std::shared_ptr<const drivers::SwitchOffResult> r;
+};
+
+py::dict metrics_dict(const drivers::Metrics& m) {
+  py::dict d;
+  for (const auto& [k, v] : m.items()) d[py::str(k)] = v;
+  return d;
+}
+
+py::list checks_list(const std::vector<drivers::RatingCheck>& checks) {
+  py::list l;
+  for (const auto& c : checks) {
+    py::dict d;
+    d["name"] = c.name;
+    d["status"] = drivers::to_string(c.status);
+    d["value"] = c.value;
+    d["limit"] = c.limit;
+    d["unit"] = c.unit;
+    d["detail"] = c.detail;
+    l.append(d);
+  }
+  return l;
+}
+
+// A 1-D view of an Eigen vector owned by the result; `owner` keeps it alive.
+py::array_t<double> view(const Eigen::VectorXd& v, py::handle owner) {
+  return py::array_t<double>({static_cast<py::ssize_t>(v.size())}, {static_cast<py::ssize_t>(sizeof(double))}, v.data(), owner);
+}
+
+}  // namespace
+
+void DefineResults(py::module_& m) {
+  py::class_<PyRun>(m, "RunResult", "One switch-off: on-state check, metrics (SI unit in each name), rating checks, waveforms.")
+      .def_property_readonly("metrics", [](const PyRun& p) { return metrics_dict(p.r->metrics); },
+                             "dict of metric name -> value in the unit its name ends with (NaN where not applicable)")
+      .def_property_readonly("checks", [](const PyRun& p) { return checks_list(p.r->checks); },
+                             "list of rating checks: name, status (pass/warn/fail), value, limit, unit, detail")
+      .def_property_readonly("overall", [](const PyRun& p) { return drivers::to_string(drivers::overall_status(p.r->checks)); },
+                             "worst check status")
+      .def_property_readonly("time_s", [](py::object self) { return view(self.cast<const PyRun&>().r->waveforms.time_s, self); },
+                             "accepted time points (s), from the on-state at 0; shares memory with the result")
+      .def_property_readonly("switch_voltage_V",
+                             [](py::object self) { return view(self.cast<const PyRun&>().r->waveforms.switch_voltage_V, self); },
+                             "voltage across the switch (V) at time_s")
+      .def_property_readonly("coil_current_A",
+                             [](py::object self) { return view(self.cast<const PyRun&>().r->waveforms.coil_current_A, self); },
+                             "coil current (A) at time_s")
+      .def_property_readonly("clamp_current_A",
+                             [](py::object self) { return view(self.cast<const PyRun&>().r->waveforms.clamp_current_A, self); },
+                             "current through the first clamp part (A) at time_s")
+      .def(
+          "node_voltage_V", [](const PyRun& p, const std::string& node) {
+            const Eigen::VectorXd v = p.r->transient->node_voltage_V(node);
+            return py::array_t<double>(static_cast<py::ssize_t>(v.size()), v.data());
+          },
+          py::arg("node"), "voltage of a node (V) at time_s (a copy); nodes: supply, logic, base, switch ...")
+      .def_property_readonly("node_names", [](const PyRun& p) { return p.r->transient->circuit().node_names(); })
+      .def_property_readonly("switch_off_at_s", [](const PyRun& p) { return p.r->spec.drive.switch_off_at_s; },
+                             "start of the switch-off edge (s)")
+      .def_property_readonly("accepted_steps", [](const PyRun& p) { return p.r->transient->statistics().accepted_steps; });
+
+  m.def(
+      "run",
+      [](const PyScenario& s) {
+        std::shared_ptr<const drivers::SwitchOffResult> r;
+        {
+          // The switch-off takes milliseconds to seconds: let other Python threads run.
+          py::gil_scoped_release release;
+          r = std::make_shared<const drivers::SwitchOffResult>(drivers::simulate_switch_off(s.scenario.driver, *s.parts));
+        }
+        return PyRun{r};
+      },
+      py::arg("scenario"), "Simulate one switch-off of the scenario's driver.");
+
+  m.def(
+      "compare",
+      [](const PyScenario& s, const std::vector<std::string>& kinds) {
+        std::vector<drivers::ClampKind> k;
+        for (const auto& name : kinds) k.push_back(drivers::parse_clamp_kind(name));
+        std::vector<drivers::ComparisonRow> rows;
+        {
+          py::gil_scoped_release release;
+          rows = drivers::compare_clamps(s.scenario.driver, *s.parts, k);
+        }
+        py::list out;
+        for (auto& row : rows) {
+          py::object result = py::none();
+          if (row.result) result = py::cast(PyRun{std::make_shared<const drivers::SwitchOffResult>(std::move(*row.result))});
+          out.append(py::make_tuple(drivers::to_string(row.kind), row.parts, result, row.error));
+        }
+        return out;
+      },
+      py::arg("scenario"), py::arg("kinds"),
+      "Run the given clamp kinds on the driver; list of (kind, parts, RunResult or None, error), fastest release first.");
+}
+
+}  // namespace coilkick::python

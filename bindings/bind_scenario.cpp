@@ -1,0 +1,58 @@
+// Scenarios: parsed from TOML text (a file read by Python, or a dict the package turns into
+// TOML), so a bad key in a dict gives the same message as in a file.
+#include <pybind11/stl.h>
+
+#include "bindings.hpp"
+#include "coilkick/drivers/compare.hpp"
+
+namespace py = pybind11;
+
+namespace coilkick::python {
+
+PyScenario rebuild_scenario(const std::string& text, const std::string& name, const std::string& models_dir,
+                            const std::vector<std::pair<std::string, double>>& assignments) {
+  PyScenario p;
+  p.text = text;
+  p.name = name;
+  p.models_dir = models_dir;
+  p.parts = catalogue_for(models_dir);
+  p.scenario = scenario::read_scenario_text(text, name, *p.parts);
+  for (const auto& [k, v] : assignments) scenario::set_numeric_key(p.scenario, k, v, *p.parts);
+  p.assignments = assignments;
+  return p;
+}
+
+void DefineScenario(py::module_& m) {
+  py::class_<PyScenario>(m, "Scenario", "A driver description read from scenario TOML (see README, 'Scenario files').")
+      .def(py::init(&rebuild_scenario), py::arg("text"), py::arg("name"), py::arg("models_dir") = "",
+           py::arg("assignments") = std::vector<std::pair<std::string, double>>{},
+           "Parse scenario TOML `text`; `name` is used in messages as the file name. `assignments` are numeric keys "
+           "(SI base units) set after parsing.")
+      .def_readonly("text", &PyScenario::text, "The scenario's TOML text.")
+      .def_readonly("source_name", &PyScenario::name, "File name used in messages.")
+      .def_readonly("models_dir", &PyScenario::models_dir, "Models directory ('' = default).")
+      .def_readonly("assignments", &PyScenario::assignments, "Numeric keys set after parsing, (key, value in SI base units).")
+      .def_property_readonly("name", [](const PyScenario& p) { return p.scenario.driver.name; }, "The scenario's name.")
+      .def_property_readonly("topology", [](const PyScenario& p) { return drivers::to_string(p.scenario.driver.switch_.topology); })
+      .def_property_readonly("clamp_kind", [](const PyScenario& p) { return drivers::to_string(p.scenario.driver.clamp.kind); })
+      .def_property_readonly("clamp_parts", [](const PyScenario& p) { return drivers::describe_clamp_parts(p.scenario.driver.clamp); })
+      .def_property_readonly("supply_voltage_V", [](const PyScenario& p) { return p.scenario.driver.supply.voltage_V; })
+      .def_property_readonly("applicable_clamp_kinds", [](const PyScenario& p) {
+            std::vector<std::string> out;
+            for (auto k : scenario::applicable_clamp_kinds(p.scenario)) out.push_back(drivers::to_string(k));
+            return out;
+          }, "clamp kinds whose parts the scenario gives (and none)")
+      .def(
+          "with_value",
+          [](const PyScenario& p, const std::string& key, double value) {
+            auto a = p.assignments;
+            a.emplace_back(key, value);
+            return rebuild_scenario(p.text, p.name, p.models_dir, a);
+          },
+          py::arg("key"), py::arg("value"),
+          "A copy with one numeric key set (value in the key's SI base unit), e.g. "
+          "with_value('clamp.zener.overrides.breakdown_voltage', 20.0).");
+  m.def("numeric_keys", &scenario::numeric_keys, "Numeric scenario keys with their SI units.");
+}
+
+}  // namespace coilkick::python

@@ -1,0 +1,11 @@
+// coilkick._core — the compiled part of the Python package.
+#include "bindings.hpp"
+
+PYBIND11_MODULE(_core, m) {
+  m.doc() = "coilkick compiled core: switch-off transients of inductive loads and clamp choice";
+  coilkick::python::DefineErrors(m);
+  coilkick::python::DefineCatalogue(m);
+  coilkick::python::DefineScenario(m);
+  coilkick::python::DefineResults(m);
+  coilkick::python::DefineAnalyses(m);
+}

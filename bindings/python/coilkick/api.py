@@ -1,0 +1,210 @@
+"""The public Python API of coilkick (re-exported by the package)."""
+import itertools
+import os
+from dataclasses import dataclass
+from typing import Any, Dict, List, Optional
+
+import numpy as np
+import pandas as pd
+
+from . import _core
+from .toml_text import to_toml
+
+
+class AttrDict(dict):
+    """A dict whose keys are also attributes: metrics.release_time_s."""
+
+    def __getattr__(self, name):
+        try:
+            return self[name]
+        except KeyError:
+            raise AttributeError(name) from None
+
+    def to_dict(self):
+        return dict(self)
+
+
+def part_names(family: str = "", models_dir: str = "") -> List[str]:
+    """Catalogue part names, optionally of one family (diode, zener, tvs, npn, pnp, nmos, pmos, darlington_npn, coil)."""
+    return _core.part_names(models_dir, family)
+
+
+def part_info(name: str, models_dir: str = "") -> Dict[str, Any]:
+    """One catalogue part: parameters and ratings as {key: (value, SI unit, source)}."""
+    return _core.part_info(name, models_dir)
+
+
+def load_scenario(path, models_dir: str = "") -> "_core.Scenario":
+    """Read a scenario TOML file. Errors: ScenarioError "file:line:column: key 'x': ..."."""
+    path = os.fspath(path)
+    try:
+        with open(path, "rb") as f:
+            text = f.read().decode("utf-8")
+    except OSError:
+        raise _core.ScenarioError("%s:1:1: cannot open the scenario file for reading" % path) from None
+    return _core.Scenario(text, path, models_dir)
+
+
+def scenario_from_dict(d: Dict[str, Any], models_dir: str = "", name: str = "<dict>") -> "_core.Scenario":
+    """A scenario from a dict in the file's schema, e.g. {"supply": {"voltage": "24 V"}, ...}.
+    A bad key gives the same message as in a file (the location names the generated text)."""
+    return _core.Scenario(to_toml(d), name, models_dir)
+
+
+class RunResult:
+    """One switch-off. metrics: AttrDict (SI unit in each name); checks: list of AttrDict;
+    time_s, switch_voltage_V, coil_current_A, clamp_current_A: numpy arrays sharing the result's memory."""
+
+    def __init__(self, core):
+        self._core = core
+        self.metrics = AttrDict(core.metrics)
+        self.checks = [AttrDict(c) for c in core.checks]
+        self.overall = core.overall
+
+    time_s = property(lambda self: self._core.time_s, doc="accepted time points (s)")
+    switch_voltage_V = property(lambda self: self._core.switch_voltage_V, doc="voltage across the switch (V)")
+    coil_current_A = property(lambda self: self._core.coil_current_A, doc="coil current (A)")
+    clamp_current_A = property(lambda self: self._core.clamp_current_A, doc="current through the first clamp part (A)")
+    switch_off_at_s = property(lambda self: self._core.switch_off_at_s, doc="start of the switch-off edge (s)")
+
+    def node_voltage_V(self, node: str) -> np.ndarray:
+        """Voltage of a node (V) at time_s (nodes: supply, logic, base, switch ...)."""
+        return self._core.node_voltage_V(node)
+
+    def to_dict(self) -> Dict[str, Any]:
+        return {"metrics": dict(self.metrics), "checks": [dict(c) for c in self.checks], "overall": self.overall}
+
+    def __repr__(self):
+        m = self.metrics
+        return "RunResult(peak %.4g V, release %.4g s, %s)" % (m["switch_voltage_peak_V"], m["release_time_s"], self.overall)
+
+
+def run(scenario) -> RunResult:
+    """Simulate one switch-off of the scenario's driver (on-state DC point, then the switch-off edge)."""
+    return RunResult(_core.run(scenario))
+
+
+@dataclass
+class ComparisonRow:
+    kind: str
+    parts: str
+    result: Optional[RunResult]
+    error: str
+
+    def to_dict(self):
+        return {"kind": self.kind, "parts": self.parts, "error": self.error,
+                "result": self.result.to_dict() if self.result else None}
+
+
+def compare(scenario, kinds: Optional[List[str]] = None) -> List[ComparisonRow]:
+    """Every applicable clamp kind (or the given ones) on the driver, fastest release first."""
+    kinds = list(scenario.applicable_clamp_kinds if kinds is None else kinds)
+    return [ComparisonRow(k, p, RunResult(r) if r is not None else None, e) for k, p, r, e in _core.compare(scenario, kinds)]
+
+
+def _axis_values(spec):
+    if isinstance(spec, tuple) and len(spec) == 3:
+        start, stop, count = spec
+        count = int(count)
+        if count < 1:
+            raise ValueError("sweep: a (start, stop, count) axis needs count >= 1")
+        return [float(start)] if count == 1 else [float(start + (stop - start) * k / (count - 1)) for k in range(count)]
+    return [float(v) for v in spec]
+
+
+def _frame(rows, lead_columns):
+    records = []
+    for lead, r in zip(lead_columns, rows):
+        rec = dict(lead)
+        rec["overall"] = r["overall"]
+        rec["error"] = r["error"]
+        rec["failed_checks"] = ", ".join(r["failed_checks"])
+        rec.update(r["metrics"])
+        records.append(rec)
+    return pd.DataFrame.from_records(records)
+
+
+def _sweep_chunk(text, name, models_dir, assignments, keys, values):
+    """One chunk of sweep points in a worker (module level so that executors can pickle it)."""
+    s = _core.Scenario(text, name, models_dir, assignments)
+    return _core.run_points(s, keys, values, 1)
+
+
+def _chunks(n, chunk_size):
+    if chunk_size is None:
+        chunk_size = max(1, n // 32)
+    return [list(range(i, min(n, i + chunk_size))) for i in range(0, n, chunk_size)]
+
+
+def sweep(scenario, vary: Dict[str, Any], executor=None, threads: int = 0, chunk_size: Optional[int] = None) -> pd.DataFrame:
+    """Grid sweep over numeric keys. vary: {key: (start, stop, count) or [values]} in SI base units; the grid is
+    the product, first key slowest. Returns a DataFrame: the keys, overall, error, failed_checks, every metric.
+    With `executor` (concurrent.futures style: submit() returning futures; a dask Client works) the grid is
+    split into chunks run there; the numbers are the same as without."""
+    keys = list(vary.keys())
+    axes = [_axis_values(vary[k]) for k in keys]
+    points = [list(p) for p in itertools.product(*axes)]
+    if executor is None:
+        rows = _core.run_points(scenario, keys, points, threads)
+    else:
+        futures = [executor.submit(_sweep_chunk, scenario.text, scenario.source_name, scenario.models_dir,
+                                   list(scenario.assignments), keys, [points[i] for i in idx])
+                   for idx in _chunks(len(points), chunk_size)]
+        rows = [row for f in futures for row in f.result()]
+    return _frame(rows, [dict(zip(keys, p)) for p in points])
+
+
+def _tolerance_chunk(text, name, models_dir, assignments, samples, seed, indices):
+    s = _core.Scenario(text, name, models_dir, assignments)
+    return _core.tolerance_points(s, samples, seed, indices, 1)
+
+
+class ToleranceResult:
+    """Corners and Monte Carlo samples. spreads, runs, summary: DataFrames; worst(metric): the run with the
+    largest value; counts: runs per overall status."""
+
+    def __init__(self, spreads, rows):
+        self.spreads = pd.DataFrame.from_records(spreads)
+        names = [s["name"] for s in spreads]
+        self.runs = _frame(rows, [dict(label=r["label"], **dict(zip(names, r["values"]))) for r in rows])
+        metrics = [c for c in self.runs.columns if c not in ["label", "overall", "error", "failed_checks"] + names]
+        ok = self.runs[self.runs["error"] == ""]
+        q = {}
+        for m in metrics:
+            v = ok[m].to_numpy(dtype=float)
+            v = v[np.isfinite(v)]
+            if len(v):
+                q[m] = {"min": v.min(), "p01": np.percentile(v, 1), "p50": np.percentile(v, 50),
+                        "p99": np.percentile(v, 99), "max": v.max(), "mean": v.mean(),
+                        "std": v.std(ddof=1) if len(v) > 1 else 0.0, "count": len(v)}
+        self.summary = pd.DataFrame(q).T
+        self.counts = self.runs["overall"].value_counts().to_dict()
+
+    def worst(self, metric: str = "switch_voltage_peak_V") -> pd.Series:
+        ok = self.runs[self.runs["error"] == ""]
+        return ok.loc[ok[metric].astype(float).idxmax()]
+
+
+def tolerance(scenario, samples: int = 1000, seed: int = 1, executor=None, threads: int = 0,
+              chunk_size: Optional[int] = None) -> ToleranceResult:
+    """Corners (every combination of the spreads' extremes) then `samples` Monte Carlo runs; sample i depends only on
+    (seed, i), so the result is the same locally, on threads, or on an executor."""
+    n = _core.tolerance_point_count(scenario, samples)
+    spreads = _core.tolerance_spreads(scenario)
+    if executor is None:
+        rows = _core.tolerance_points(scenario, samples, seed, list(range(n)), threads)
+    else:
+        futures = [executor.submit(_tolerance_chunk, scenario.text, scenario.source_name, scenario.models_dir,
+                                   list(scenario.assignments), samples, seed, idx)
+                   for idx in _chunks(n, chunk_size)]
+        rows = [row for f in futures for row in f.result()]
+    return ToleranceResult(spreads, rows)
+
+
+def suggest(scenario, max_release_time_s: float, max_switch_voltage_V: float, threads: int = 0) -> pd.DataFrame:
+    """Preferred-value clamps (E24 Zeners, TVS, E12 resistors, E3 RC pairs) ranked against the limits:
+    those meeting both first, fastest release first."""
+    rows = _core.suggest(scenario, float(max_release_time_s), float(max_switch_voltage_V), threads)
+    lead = [{"clamp_kind": r["clamp_kind"], "parts": r["parts"], "meets_limits": r["meets_limits"],
+             "release_margin": r["release_margin"], "voltage_margin": r["voltage_margin"]} for r in rows]
+    return _frame(rows, lead)

@@ -1,0 +1,145 @@
+"""Plots of coilkick results (matplotlib), in a style of our own: switch-off waveforms with clamps
+overlaid, the clamp comparison chart, release time against peak switch voltage with the switch
+rating and its derated limit, and Monte Carlo histograms. Every axis is labelled with its unit."""
+import numpy as np
+
+# A palette of our own: distinguishable hues at similar lightness.
+PALETTE = ["#1b6f8a", "#c2571a", "#4d8c2a", "#8a3f8f", "#b8901a", "#2f4fa8", "#a8324a", "#5c6b73"]
+LIMIT_COLOUR = "#a8324a"
+
+
+def _plt():
+    import matplotlib.pyplot as plt
+    return plt
+
+
+def _style(ax):
+    ax.set_facecolor("#fbfaf7")
+    ax.grid(True, color="#e2dfd8", linewidth=0.8)
+    for side in ("top", "right"):
+        ax.spines[side].set_visible(False)
+
+
+def _results(items):
+    """(label, RunResult) pairs from comparison rows, a dict, or a list of pairs."""
+    if isinstance(items, dict):
+        return list(items.items())
+    out = []
+    for it in items:
+        if hasattr(it, "kind"):
+            if it.result is not None:
+                out.append((it.kind, it.result))
+        else:
+            out.append(it)
+    return out
+
+
+def switch_off(items, t_end_s=None, title=None):
+    """Switch voltage (top) and coil current (bottom) against the time after switch-off, one line per result.
+    items: comparison rows, {label: RunResult}, or [(label, RunResult)]. Returns the figure."""
+    plt = _plt()
+    pairs = _results(items)
+    fig, (av, ai) = plt.subplots(2, 1, sharex=True, figsize=(8, 6))
+    if t_end_s is None:
+        t = [r.metrics["current_decay_time_10pct_s"] for _, r in pairs]
+        t = [x for x in t if np.isfinite(x)]
+        t_end_s = 1.3 * max(t) if t else None
+    for k, (label, r) in enumerate(pairs):
+        tt = (r.time_s - r.switch_off_at_s) * 1e3
+        keep = tt >= 0 if t_end_s is None else (tt >= 0) & (tt <= t_end_s * 1e3)
+        c = PALETTE[k % len(PALETTE)]
+        av.plot(tt[keep], r.switch_voltage_V[keep], color=c, label=label, linewidth=1.5)
+        ai.plot(tt[keep], r.coil_current_A[keep] * 1e3, color=c, linewidth=1.5)
+    rating = next((r.metrics["switch_voltage_rating_V"] for _, r in pairs), float("nan"))
+    if np.isfinite(rating):
+        av.axhline(rating, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="switch rating")
+    av.set_ylabel("switch voltage (V)")
+    ai.set_ylabel("coil current (mA)")
+    ai.set_xlabel("time after the start of switch-off (ms)")
+    for ax in (av, ai):
+        _style(ax)
+    av.legend(fontsize=8, frameon=False, loc="upper right")
+    if title:
+        fig.suptitle(title)
+    fig.tight_layout()
+    return fig
+
+
+def comparison(rows, title=None):
+    """Clamp comparison chart: release time and peak switch voltage per clamp kind (bars), with the rating."""
+    plt = _plt()
+    pairs = _results(rows)
+    labels = [k for k, _ in pairs]
+    release = [r.metrics["release_time_s"] * 1e3 for _, r in pairs]
+    peak = [r.metrics["switch_voltage_peak_V"] for _, r in pairs]
+    fig, (a1, a2) = plt.subplots(1, 2, figsize=(10, 4))
+    y = np.arange(len(labels))
+    a1.barh(y, release, color=PALETTE[0])
+    a1.set_yticks(y, labels)
+    a1.set_xlabel("release time (ms)")
+    a2.barh(y, peak, color=PALETTE[1])
+    a2.set_yticks(y, [""] * len(labels))
+    a2.set_xlabel("peak switch voltage (V)")
+    rating = next((r.metrics["switch_voltage_rating_V"] for _, r in pairs), float("nan"))
+    if np.isfinite(rating):
+        a2.axvline(rating, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="rating")
+        a2.legend(fontsize=8, frameon=False)
+    for ax in (a1, a2):
+        _style(ax)
+        ax.invert_yaxis()
+    if title:
+        fig.suptitle(title)
+    fig.tight_layout()
+    return fig
+
+
+def release_vs_peak(df, rating_V=None, derating=0.8, label_column=None, title=None):
+    """Release time against peak switch voltage (e.g. a Zener-voltage sweep), with the switch rating and the
+    derated limit as vertical lines. df: a DataFrame with release_time_s and switch_voltage_peak_V."""
+    plt = _plt()
+    fig, ax = plt.subplots(figsize=(7, 4.5))
+    ok = df[df["error"] == ""] if "error" in df else df
+    ax.plot(ok["switch_voltage_peak_V"], ok["release_time_s"] * 1e3, marker="o", markersize=3.5, color=PALETTE[0], linewidth=1.2)
+    if label_column is not None:
+        for _, row in ok.iterrows():
+            ax.annotate("%g" % row[label_column], (row["switch_voltage_peak_V"], row["release_time_s"] * 1e3),
+                        fontsize=7, xytext=(3, 3), textcoords="offset points")
+    if rating_V is None and "switch_voltage_rating_V" in ok and len(ok):
+        rating_V = float(ok["switch_voltage_rating_V"].iloc[0])
+    if rating_V is not None and np.isfinite(rating_V):
+        ax.axvline(rating_V, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="switch rating %.0f V" % rating_V)
+        ax.axvline(derating * rating_V, color=LIMIT_COLOUR, linestyle=":", linewidth=1,
+                   label="derated limit %.0f %%" % (100 * derating))
+        ax.legend(fontsize=8, frameon=False)
+    ax.set_xlabel("peak switch voltage (V)")
+    ax.set_ylabel("release time (ms)")
+    _style(ax)
+    if title:
+        ax.set_title(title)
+    fig.tight_layout()
+    return fig
+
+
+_SCALE = {"_V": (1, "V"), "_A": (1e3, "mA"), "_s": (1e3, "ms"), "_J": (1e3, "mJ"), "_W": (1, "W"), "_Hz": (1, "Hz")}
+
+
+def histograms(result, metrics=("switch_voltage_peak_V", "release_time_s", "clamp_energy_J"), bins=30, title=None):
+    """Monte Carlo histograms of a ToleranceResult (samples only; corners marked as ticks)."""
+    plt = _plt()
+    fig, axes = plt.subplots(1, len(metrics), figsize=(4 * len(metrics), 3.5))
+    axes = np.atleast_1d(axes)
+    runs = result.runs[result.runs["error"] == ""]
+    samples = runs[runs["label"].str.startswith("sample")]
+    corners = runs[runs["label"].str.startswith("corner")]
+    for ax, m in zip(axes, metrics):
+        factor, unit = next((v for k, v in _SCALE.items() if m.endswith(k)), (1, ""))
+        ax.hist(samples[m].astype(float) * factor, bins=bins, color=PALETTE[0], alpha=0.85)
+        for v in corners[m].astype(float) * factor:
+            ax.axvline(v, color=PALETTE[1], linewidth=0.6, alpha=0.6)
+        ax.set_xlabel("%s (%s)" % (m, unit) if unit else m)
+        ax.set_ylabel("samples")
+        _style(ax)
+    if title:
+        fig.suptitle(title)
+    fig.tight_layout()
+    return fig

@@ -1,0 +1,35 @@
+"""Turns a scenario dict into scenario TOML text, so that dicts and files go through one reader
+and give the same messages. Keys nest as in the file: {"coil": {"inductance": "550 mH"}}."""
+import math
+
+
+def _value(v, where):
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, (int, float)):
+        if isinstance(v, float) and not math.isfinite(v):
+            return '"%s"' % v  # the reader says it is not a finite number, naming the key
+        return repr(float(v)) if isinstance(v, float) else str(v)
+    if isinstance(v, str):
+        return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'
+    raise TypeError("scenario key %s: a value must be a number, a string or a boolean, not %s" % (where, type(v).__name__))
+
+
+def to_toml(d, _prefix=""):
+    """TOML text for a nested dict of scenario sections and keys."""
+    if not isinstance(d, dict):
+        raise TypeError("a scenario must be a dict of sections, got %s" % type(d).__name__)
+    lines, tables = [], []
+    for k, v in d.items():
+        if not isinstance(k, str):
+            raise TypeError("scenario keys must be strings, got %r" % (k,))
+        if isinstance(v, dict):
+            tables.append((k, v))
+        else:
+            lines.append("%s = %s" % (k, _value(v, _prefix + k)))
+    for k, v in tables:
+        name = _prefix + k
+        lines.append("[%s]" % name)
+        body = to_toml(v, name + ".")
+        lines.append(body)
+    return "\n".join(line for line in lines if line != "") + "\n"

@@ -1,0 +1,135 @@
+"""The Python binding layer: results equal the CLI's, errors carry the same messages, arrays are
+views (no copy), long calls release the GIL, analyses return DataFrames."""
+import json
+import subprocess
+import threading
+import time
+from concurrent.futures import ThreadPoolExecutor
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import coilkick
+
+
+def test_python_results_equal_the_cli(valve, program):
+    r = coilkick.run(valve)
+    out = subprocess.run([program, "run", valve.source_name, "--json"], capture_output=True, text=True, check=True)
+    cli = json.loads(out.stdout)["metrics"]
+    assert set(cli) == set(r.metrics)
+    for k, v in r.metrics.items():
+        if np.isnan(v):
+            assert cli[k] is None, k
+        else:
+            assert cli[k] == v, k  # the same computation: bit-identical through JSON's round-trip digits
+
+
+def test_attribute_access_and_to_dict(valve):
+    r = coilkick.run(valve)
+    assert r.metrics.release_time_s == r.metrics["release_time_s"]
+    d = r.to_dict()
+    assert d["overall"] in ("pass", "warn", "fail")
+    assert {c["name"] for c in d["checks"]} >= {"switch_voltage", "accuracy"}
+    assert r.checks[0].status in ("pass", "warn", "fail")
+
+
+def test_waveforms_are_views_without_copy(valve):
+    r = coilkick.run(valve)
+    a, b = r.coil_current_A, r.coil_current_A
+    assert not a.flags["OWNDATA"]
+    assert np.shares_memory(a, b)  # two accesses see the same C++ buffer
+    assert a.shape == r.time_s.shape
+    assert r.time_s[0] == 0.0 and np.all(np.diff(r.time_s) > 0)
+    assert len(r.node_voltage_V("switch")) == len(r.time_s)
+
+
+def test_dict_scenario_bad_key_gives_the_file_message(relay_dict, tmp_path):
+    relay_dict["coil"]["inductnce"] = relay_dict["coil"].pop("inductance")
+    with pytest.raises(coilkick.ScenarioError) as from_dict:
+        coilkick.scenario_from_dict(relay_dict)
+    text = coilkick.toml_text.to_toml(relay_dict)
+    path = tmp_path / "bad.toml"
+    path.write_text(text)
+    with pytest.raises(coilkick.ScenarioError) as from_file:
+        coilkick.load_scenario(path)
+    tail = "key 'coil.inductnce': unknown key (did you mean 'coil.inductance'?)"
+    assert str(from_dict.value).endswith(tail)
+    assert str(from_file.value).endswith(tail)
+    assert str(from_dict.value).replace("<dict>", str(path)) == str(from_file.value)
+    assert isinstance(from_dict.value, ValueError)
+
+
+def test_exceptions_carry_the_messages(relay_dict):
+    with pytest.raises(coilkick.ScenarioError, match="cannot open"):
+        coilkick.load_scenario("/nonexistent/x.toml")
+    relay_dict["coil"]["inductance"] = "30 pF"
+    with pytest.raises(coilkick.ScenarioError, match="is a capacitance, but an inductance"):
+        coilkick.scenario_from_dict(relay_dict)
+    relay_dict["coil"]["inductance"] = "600 mH"
+    relay_dict["analysis"]["maximum_wall_time"] = "1 us"
+    s = coilkick.scenario_from_dict(relay_dict)
+    with pytest.raises(coilkick.SimulationError, match="wall-time budget"):
+        coilkick.run(s)
+    with pytest.raises(ValueError, match="no part named"):
+        coilkick.part_info("no_such_part")
+
+
+def test_sweep_dataframe_and_executor_give_the_same_numbers(relay_dict):
+    s = coilkick.scenario_from_dict(relay_dict)
+    vary = {"clamp.zener.overrides.breakdown_voltage": (5.0, 25.0, 5), "supply.voltage": [11.0, 13.0]}
+    local = coilkick.sweep(s, vary, threads=2)
+    assert isinstance(local, pd.DataFrame) and len(local) == 10
+    assert list(local.columns[:2]) == list(vary)
+    with ThreadPoolExecutor(max_workers=2) as ex:
+        remote = coilkick.sweep(s, vary, executor=ex, chunk_size=3)
+    pd.testing.assert_frame_equal(local, remote)
+    # A higher Zener voltage: faster release, higher peak (first axis slowest, second fastest).
+    at11 = local[local["supply.voltage"] == 11.0]
+    assert at11["release_time_s"].is_monotonic_decreasing
+    assert at11["switch_voltage_peak_V"].is_monotonic_increasing
+
+
+def test_tolerance_local_threads_and_executor_agree(relay_dict):
+    s = coilkick.scenario_from_dict(relay_dict)
+    a = coilkick.tolerance(s, samples=10, seed=5, threads=1)
+    b = coilkick.tolerance(s, samples=10, seed=5, threads=2)
+    with ThreadPoolExecutor(max_workers=2) as ex:
+        c = coilkick.tolerance(s, samples=10, seed=5, executor=ex, chunk_size=4)
+    pd.testing.assert_frame_equal(a.runs, b.runs)
+    pd.testing.assert_frame_equal(a.runs, c.runs)
+    assert len(a.runs) == 8 + 10  # 3 spreads (supply, coil resistance, Zener 5 %) -> 8 corners
+    assert a.worst("switch_voltage_peak_V")["label"].startswith("corner")
+    assert "release_time_s" in a.summary.index
+
+
+def test_suggest_ranks_meeting_candidates_first(relay_dict):
+    s = coilkick.scenario_from_dict(relay_dict)
+    df = coilkick.suggest(s, 0.8e-3, 32.0, threads=2)
+    meets = df[df["meets_limits"]]
+    assert len(meets) > 0
+    assert (meets["switch_voltage_peak_V"] <= 32.0).all()
+    assert meets["release_time_s"].is_monotonic_increasing
+
+
+def test_long_work_releases_the_gil(relay_dict):
+    s = coilkick.scenario_from_dict(relay_dict)
+    ticks = []
+    stop = threading.Event()
+
+    def ticker():
+        while not stop.is_set():
+            ticks.append(time.perf_counter())
+            time.sleep(0.002)
+
+    t = threading.Thread(target=ticker)
+    t.start()
+    start = time.perf_counter()
+    coilkick.sweep(s, {"coil.inductance": (0.2, 1.0, 60)}, threads=1)
+    end = time.perf_counter()
+    stop.set()
+    t.join()
+    during = [x for x in ticks if start < x < end]
+    # With the GIL held the ticker would be frozen for the whole sweep (about a second).
+    assert end - start > 0.1
+    assert len(during) > 10
