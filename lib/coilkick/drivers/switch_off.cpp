@@ -83,7 +83,10 @@ std::string fmt(double v) {
 }  // namespace
 
 SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Catalogue& parts) {
-  const BuiltDriver b = build_driver_network(spec, parts);
+  return simulate_switch_off(spec, build_driver_network(spec, parts));
+}
+
+SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b) {
   const auto circuit = std::make_shared<Circuit>(b.network);
   const Circuit& c = *circuit;
   const double vs = spec.supply.voltage_V;

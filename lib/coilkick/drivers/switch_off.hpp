@@ -37,5 +37,8 @@ struct SwitchOffResult {
 // Throws std::invalid_argument for a bad description (naming the field) and
 // engine::SimulationError if the operating point or the transient cannot be solved.
 SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Catalogue& parts);
+// The same on a network built already (e.g. with a fault injected); `spec` must be the one it
+// was built from (parts are taken from `built`).
+SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& built);
 
 }  // namespace coilkick::drivers

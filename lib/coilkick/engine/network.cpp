@@ -79,6 +79,27 @@ TimedSwitch& Network::add_timed_switch(const std::string& name, const std::strin
   return *e;
 }
 
+void Network::replace(const std::string& name, std::shared_ptr<const Element> element) {
+  if (!element) throw std::invalid_argument("network: null element");
+  for (auto& e : elements_) {
+    if (e->name() == name) {
+      e = std::move(element);
+      return;
+    }
+  }
+  throw std::invalid_argument("network: no element named '" + name + "' to replace");
+}
+
+void Network::set_source_waveform(const std::string& name, Waveform voltage_V) {
+  for (auto& s : sources_) {
+    if (s.name == name) {
+      s.voltage_V = std::move(voltage_V);
+      return;
+    }
+  }
+  throw std::invalid_argument("network: no voltage source named '" + name + "'");
+}
+
 void Network::set_stray_capacitance_F(double capacitance_F) {
   require_non_negative("network", "stray_capacitance_F", capacitance_F);
   stray_capacitance_F_ = capacitance_F;

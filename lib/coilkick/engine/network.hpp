@@ -48,6 +48,12 @@ class Network {
   void set_stray_capacitance_F(double capacitance_F);
   double stray_capacitance_F() const { return stray_capacitance_F_; }
 
+  // Replaces the element of that name by another (same or other kind, any terminals), e.g. to
+  // inject a fault; the replacement keeps the name given to it.
+  void replace(const std::string& name, std::shared_ptr<const Element> element);
+  // Gives a voltage source another waveform.
+  void set_source_waveform(const std::string& name, Waveform voltage_V);
+
   const std::vector<std::shared_ptr<const Element>>& elements() const { return elements_; }
   const std::vector<VoltageSource>& voltage_sources() const { return sources_; }
   const Element& element(const std::string& name) const;

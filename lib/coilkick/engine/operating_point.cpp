@@ -30,13 +30,81 @@ double weighted_norm(const Circuit& c, const Eigen::VectorXd& r) {
 
 }  // namespace
 
+// Newton with backtracking from the guess; throws SimulationError if it does not converge.
+CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess, const OperatingPointOptions& options);
+
 CircuitState solve_operating_point(const Circuit& circuit, double time_s,
                                    const OperatingPointOptions& options) {
   return solve_operating_point(circuit, zero_state(circuit, time_s), options);
 }
 
+namespace {
+
+// Pseudo-transient continuation: implicit-Euler steps of M·ẋ = f with the sources frozen at
+// t, the step growing as the residual falls (switched evolution relaxation). The capacitances
+// and inductances damp the path a plain Newton iteration would take; used when Newton fails.
+Eigen::VectorXd pseudo_transient(const Circuit& circuit, double t, Eigen::VectorXd x, double gmin, Workspace& w) {
+  const int nc = circuit.circuit_state_count();
+  Eigen::VectorXd r;
+  circuit.assemble(t, t, x.data(), w);
+  residual(circuit, w, x.head(nc), gmin, r);
+  double norm = weighted_norm(circuit, r);
+  double dt = 1e-10;
+  for (int it = 0; it < 5000 && norm > 1e-12; ++it) {
+    Eigen::MatrixXd a = w.mass.topLeftCorner(nc, nc) / dt - w.flow_slope.topLeftCorner(nc, nc);
+    for (int i = 0; i < nc; ++i) {
+      if (circuit.is_node_row(i)) a(i, i) += gmin;
+    }
+    Eigen::VectorXd dx = a.partialPivLu().solve(r);
+    // Node voltages move at most 0.5 V per step: the junctions' exponentials stay tractable.
+    double scale = 1.0;
+    for (int i = 0; i < nc; ++i) {
+      if (circuit.is_node_row(i) && std::abs(dx[i]) > 0.5) scale = std::min(scale, 0.5 / std::abs(dx[i]));
+    }
+    dx *= scale;
+    Eigen::VectorXd x_try = x;
+    x_try.head(nc) += dx;
+    circuit.assemble(t, t, x_try.data(), w);
+    Eigen::VectorXd r_try;
+    residual(circuit, w, x_try.head(nc), gmin, r_try);
+    const double norm_try = weighted_norm(circuit, r_try);
+    // Every finite step is a linearised implicit-Euler step of the circuit's own (stable)
+    // dynamics: accept it even when the residual rises on the way; grow the step as it falls.
+    if (dx.allFinite() && std::isfinite(norm_try)) {
+      dt *= norm_try < norm ? 2.0 : 1.2;
+      dt = std::min(dt, 1e3);
+      x = x_try;
+      r = r_try;
+      norm = norm_try;
+    } else {
+      dt *= 0.25;
+      circuit.assemble(t, t, x.data(), w);
+      if (dt < 1e-20) break;
+    }
+  }
+  return x;
+}
+
+}  // namespace
+
 CircuitState solve_operating_point(const Circuit& circuit, const CircuitState& guess,
                                    const OperatingPointOptions& options) {
+  try {
+    return solve_by_newton(circuit, guess, options);
+  } catch (const SimulationError& newton_failed) {
+    Workspace w = circuit.make_workspace();
+    CircuitState start = guess;
+    start.values = pseudo_transient(circuit, guess.time_s, guess.values, options.minimum_conductance_S, w);
+    try {
+      return solve_by_newton(circuit, start, options);
+    } catch (const SimulationError&) {
+      throw SimulationError(std::string(newton_failed.what()) + "; a pseudo-transient continuation did not reach it either");
+    }
+  }
+}
+
+CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
+                             const OperatingPointOptions& options) {
   check_state(circuit, guess);
   const int nc = circuit.circuit_state_count();
   const double t = guess.time_s;
@@ -54,6 +122,9 @@ CircuitState solve_operating_point(const Circuit& circuit, const CircuitState& g
       if (circuit.is_node_row(i)) g(i, i) -= gmin;
     }
     Eigen::FullPivLU<Eigen::MatrixXd> lu(g);
+    // Only an exactly zero pivot is singular: the minimum conductances (1e-12 S) of floating
+    // nodes sit many decades below the largest conductances and must still count.
+    lu.setThreshold(1e-300);
     if (!lu.isInvertible()) {
       throw SimulationError("operating point at t = " + std::to_string(t) +
                             " s: the conductance matrix is singular (a state has no DC path)");

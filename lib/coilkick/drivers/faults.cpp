@@ -1,0 +1,244 @@
+#include "coilkick/drivers/faults.hpp"
+
+#include <cmath>
+#include <sstream>
+
+#include "coilkick/devices/bjt.hpp"
+#include "coilkick/devices/diode.hpp"
+#include "coilkick/devices/mosfet.hpp"
+#include "coilkick/drivers/driver_network.hpp"
+#include "coilkick/drivers/switch_off.hpp"
+#include "coilkick/engine/circuit.hpp"
+#include "coilkick/engine/errors.hpp"
+#include "coilkick/engine/operating_point.hpp"
+#include "coilkick/engine/rewired_element.hpp"
+
+namespace coilkick::drivers {
+namespace {
+
+constexpr double kOpen_ohm = 1e12, kShort_ohm = 0.01, kLeak_ohm = 100e3;
+constexpr double kShortedTurns = 0.3;   // fraction of the turns shorted
+constexpr double kLowSupply = 0.75;     // fraction of the supply voltage
+constexpr double kResistorPower_W = 0.25;  // small chip resistors: 0.1–0.25 W (common practice)
+
+using engine::Element;
+using engine::Network;
+
+bool is_diode(const Element& e) {
+  return dynamic_cast<const devices::PhysicalDiode*>(&e) || dynamic_cast<const devices::PwlDiode*>(&e);
+}
+bool is_transistor(const Element& e) {
+  return dynamic_cast<const devices::PhysicalBjt*>(&e) || dynamic_cast<const devices::PwlBjt*>(&e) ||
+         dynamic_cast<const devices::PhysicalMosfet*>(&e) || dynamic_cast<const devices::PwlMosfet*>(&e);
+}
+
+std::string fmt(double v, const char* unit) {
+  std::ostringstream o;
+  o.precision(3);
+  o << v << " " << unit;
+  return o.str();
+}
+
+struct Injector {
+  const BuiltDriver& healthy;
+  BuiltDriver out;
+  explicit Injector(const BuiltDriver& h) : healthy(h), out(h) {}
+  const Element& element(const std::string& name) const { return out.network.element(name); }
+  void resistor_in_place(const std::string& name, double ohm) {
+    const auto& e = element(name);
+    out.network.replace(name, std::make_shared<engine::Resistor>(name, e.terminals()[0], e.terminals()[1], ohm));
+  }
+  void resistor_across(const std::string& name, const std::string& a, const std::string& b, double ohm) {
+    out.network.add_resistor(name, a, b, ohm);
+  }
+};
+
+struct Evaluated {
+  FaultCase c;
+  bool coil_present = true;
+};
+
+// DC readings and, where the coil carries current, the switch-off.
+FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::string& part, const std::string& fault,
+                   bool run_switch_off) {
+  FaultCase fc;
+  fc.part = part;
+  fc.fault = fault;
+  try {
+    const engine::Circuit c(b.network);
+    const double t_late = spec.drive.switch_off_at_s + spec.drive.fall_time_s + 1.0;
+    const auto on = engine::solve_operating_point(c, 0.0);
+    const auto off = engine::solve_operating_point(c, t_late);
+    for (const auto& n : c.node_names()) {
+      if (n == "logic") continue;  // the logic output's internal source node
+      fc.readings.push_back({n, c.node_voltage_V(n, 0.0, on.values.data()), c.node_voltage_V(n, t_late, off.values.data())});
+    }
+    engine::Workspace w = c.make_workspace();
+    const int coil = c.element_index("coil");
+    fc.coil_current_on_A = c.terminal_currents_A(coil, 0.0, on.values.data(), w)[0];
+    fc.coil_current_off_A = c.terminal_currents_A(coil, t_late, off.values.data(), w)[0];
+    c.evaluate(0.0, 0.0, on.values.data(), w, false);
+    fc.supply_current_on_A = w.source_current_A[0];
+    std::map<std::string, double> heat;
+    for (std::size_t k = 0; k < c.power_channels().size(); ++k) {
+      const auto& ch = c.power_channels()[k];
+      if (ch.kind == engine::PowerChannelSpec::Kind::dissipated) heat[ch.element] += w.rate[c.circuit_state_count() + static_cast<int>(k)];
+    }
+    for (const auto& [n, p] : heat) fc.on_state_heat_W.emplace_back(n, p);
+    if (run_switch_off && std::abs(fc.coil_current_on_A) > 1e-6) {
+      auto r = simulate_switch_off(spec, b);
+      fc.switch_off_run = true;
+      fc.switch_off = r.metrics;
+      fc.checks = r.checks;
+    }
+  } catch (const engine::SimulationError& e) {
+    fc.error = std::string("simulation failed: ") + e.what();
+  }
+  return fc;
+}
+
+double power_limit(const BuiltDriver& b, const catalogue::Catalogue& parts, const DriverSpec& spec, const std::string& element) {
+  auto rating = [&](const catalogue::PartRecord* p) { return p && p->has_rating("power") ? p->rating("power") : NAN; };
+  for (const auto& sw : b.switch_elements) {
+    if (sw == element && b.switch_part) return rating(b.switch_part);
+  }
+  if (element == "level_shifter") return rating(&parts.part(spec.switch_.level_shifter_part));
+  const auto& cl = spec.clamp;
+  if (element == "clamp_diode") return rating(&parts.part(cl.diode_part));
+  if (element == "clamp_zener") {
+    return rating(&parts.part(cl.kind == ClampKind::active_clamp ? cl.active_clamp_zener_part : cl.zener_part));
+  }
+  if (element == "clamp_tvs") return rating(&parts.part(cl.tvs_part));
+  if (element.find("resistor") != std::string::npos && element != "logic_output") return kResistorPower_W;
+  return NAN;
+}
+
+void classify(FaultCase& f, const FaultCase& h, const DriverSpec& spec, const BuiltDriver& b, const catalogue::Catalogue& parts) {
+  if (!f.error.empty()) return;
+  const double r_hot = coil_resistance_ohm(spec.coil);
+  double i_op = spec.coil.operate_current_A;
+  if (std::isnan(i_op) && !std::isnan(spec.coil.operate_voltage_V)) i_op = spec.coil.operate_voltage_V / r_hot;
+  const double i_rel = release_current_A(spec.coil);
+  const double operate_limit = std::isnan(i_op) ? 0.5 * h.coil_current_on_A : i_op;
+  const double release_limit = std::isnan(i_rel) ? 0.5 * h.coil_current_on_A : i_rel;
+  auto add = [&](const char* s, const std::string& why) {
+    f.symptoms.emplace_back(s);
+    f.reasons.push_back(why);
+  };
+  if (std::abs(f.coil_current_on_A) < operate_limit) {
+    add("relay never operates", "on-state coil current " + fmt(f.coil_current_on_A, "A") + " below " + fmt(operate_limit, "A"));
+  }
+  if (std::abs(f.coil_current_off_A) >= release_limit) {
+    add("relay never releases", "off-state coil current " + fmt(f.coil_current_off_A, "A") + " at or above the release current " +
+                                    fmt(release_limit, "A"));
+  } else if (f.switch_off_run && h.switch_off_run) {
+    const double t = f.switch_off.get("release_time_s"), th = h.switch_off.get("release_time_s");
+    if (std::isfinite(t) && std::isfinite(th) && t > 1.5 * th) {
+      add("relay releases slowly", "release time " + fmt(t * 1e3, "ms") + " against " + fmt(th * 1e3, "ms") + " healthy");
+    }
+  }
+  std::string hot;
+  for (const auto& [el, p] : f.on_state_heat_W) {
+    const double lim = power_limit(b, parts, spec, el);
+    if (std::isfinite(lim) && p > lim) hot += (hot.empty() ? "" : "; ") + el + " dissipates " + fmt(p, "W") + " (limit " + fmt(lim, "W") + ")";
+  }
+  auto heat_of = [](const FaultCase& c, const std::string& el) {
+    for (const auto& [n, p] : c.on_state_heat_W) {
+      if (n == el) return p;
+    }
+    return 0.0;
+  };
+  if (heat_of(f, "coil") > 1.3 * heat_of(h, "coil")) {
+    hot += (hot.empty() ? "" : "; ") + std::string("coil dissipates ") + fmt(heat_of(f, "coil"), "W") + " against " +
+           fmt(heat_of(h, "coil"), "W") + " healthy";
+  }
+  if (std::abs(f.supply_current_on_A) > 2.0 * std::abs(h.supply_current_on_A) + 1e-3) {
+    hot += (hot.empty() ? "" : "; ") + std::string("supply current ") + fmt(f.supply_current_on_A, "A") + " against " +
+           fmt(h.supply_current_on_A, "A") + " healthy (supply path overloaded)";
+  }
+  for (const auto& c : f.checks) {
+    if (c.status == CheckStatus::fail && (c.name == "switch_voltage" || c.name.rfind("clamp_", 0) == 0 || c.name == "switch_avalanche_energy")) {
+      hot += (hot.empty() ? "" : "; ") + c.name + " " + fmt(c.value, c.unit.c_str()) + " over " + fmt(c.limit, c.unit.c_str()) +
+             " at each switch-off";
+    }
+  }
+  if (!hot.empty()) add("driver part overheats", hot);
+  if (f.symptoms.empty()) add("no visible symptom", "the coil operates and releases as when healthy; readings below show the fault");
+}
+
+}  // namespace
+
+const std::vector<std::string>& symptom_names() {
+  static const std::vector<std::string> n{"relay never operates", "relay never releases", "relay releases slowly",
+                                          "driver part overheats", "no visible symptom"};
+  return n;
+}
+
+FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& parts) {
+  const BuiltDriver healthy = build_driver_network(spec, parts);
+  FaultReport rep;
+  rep.healthy = evaluate(spec, healthy, "none", "healthy", true);
+  if (!rep.healthy.error.empty()) throw engine::SimulationError("healthy driver: " + rep.healthy.error);
+
+  std::vector<std::pair<std::pair<std::string, std::string>, BuiltDriver>> cases;
+  auto add_case = [&](const std::string& part, const std::string& fault, Injector& inj) { cases.push_back({{part, fault}, inj.out}); };
+  for (const auto& e : healthy.network.elements()) {
+    const std::string n = e->name();
+    const auto& t = e->terminals();
+    if (dynamic_cast<const engine::Resistor*>(e.get())) {
+      if (n == "logic_output" || n.rfind("switch.", 0) == 0) continue;  // inside the logic chip / the Darlington
+      Injector i(healthy);
+      i.resistor_in_place(n, kOpen_ohm);
+      add_case(n, "open", i);
+    } else if (is_diode(*e)) {
+      Injector open(healthy), shorted(healthy);
+      open.resistor_in_place(n, kOpen_ohm);
+      shorted.resistor_in_place(n, kShort_ohm);
+      add_case(n, "open", open);
+      add_case(n, "shorted", shorted);
+    } else if (dynamic_cast<const engine::Capacitor*>(e.get()) && n.find("snubber_capacitor") != std::string::npos) {
+      Injector open(healthy), shorted(healthy);
+      open.resistor_in_place(n, kOpen_ohm);
+      shorted.resistor_in_place(n, kShort_ohm);
+      add_case(n, "open", open);
+      add_case(n, "shorted", shorted);
+    } else if (is_transistor(*e) && (n == "switch" || n == "switch.output" || n == "level_shifter")) {
+      const bool mos = dynamic_cast<const devices::PhysicalMosfet*>(e.get()) || dynamic_cast<const devices::PwlMosfet*>(e.get());
+      Injector ce(healthy), base(healthy), leak(healthy);
+      ce.resistor_across(n + ".short", t[0], t[2], kShort_ohm);
+      add_case(n, mos ? "drain-source shorted" : "collector-emitter shorted", ce);
+      base.out.network.replace(n, std::make_shared<engine::RewiredElement>(e, std::vector<std::string>{t[0], n + ".control_open", t[2]}));
+      add_case(n, mos ? "gate open" : "base open", base);
+      leak.resistor_across(n + ".leak", t[0], t[1], kLeak_ohm);
+      add_case(n, mos ? "drain-gate leaky" : "collector-base junction leaky", leak);
+    } else if (const auto* coil = dynamic_cast<const engine::Coil*>(e.get())) {
+      Injector open(healthy), turns(healthy);
+      open.resistor_in_place(n, kOpen_ohm);
+      add_case(n, "open", open);
+      engine::CoilParameters p = coil->parameters();
+      p.inductance_H *= (1.0 - kShortedTurns) * (1.0 - kShortedTurns);  // L ∝ N²
+      p.resistance_ohm *= (1.0 - kShortedTurns);                         // R ∝ N (same wire)
+      turns.out.network.replace(n, std::make_shared<engine::Coil>(n, t[0], t[1], p));
+      add_case(n, "30 % of turns shorted", turns);
+    }
+  }
+  {
+    Injector low(healthy);
+    low.out.network.set_source_waveform("supply", engine::Waveform::constant(kLowSupply * spec.supply.voltage_V));
+    add_case("supply", "low (75 %)", low);
+  }
+  for (const auto& [id, built] : cases) {
+    DriverSpec s = spec;
+    if (id.first == "supply") s.supply.voltage_V *= kLowSupply;
+    FaultCase f = evaluate(s, built, id.first, id.second, id.second != "open" || id.first != "coil");
+    classify(f, rep.healthy, s, built, parts);
+    rep.faults.push_back(std::move(f));
+  }
+  for (std::size_t k = 0; k < rep.faults.size(); ++k) {
+    for (const auto& sym : rep.faults[k].symptoms) rep.by_symptom[sym].push_back(static_cast<int>(k));
+    if (!rep.faults[k].error.empty()) rep.by_symptom["simulation failed"].push_back(static_cast<int>(k));
+  }
+  return rep;
+}
+
+}  // namespace coilkick::drivers
