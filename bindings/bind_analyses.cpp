@@ -8,6 +8,7 @@
 #include "coilkick/analyses/run_summary.hpp"
 #include "coilkick/analyses/suggest.hpp"
 #include "coilkick/analyses/tolerance.hpp"
+#include "coilkick/drivers/faults.hpp"
 
 namespace py = pybind11;
 
@@ -116,6 +117,48 @@ void DefineAnalyses(py::module_& m) {
         return (k == 0 ? 0 : 1 << k) + samples;
       },
       py::arg("scenario"), py::arg("samples"));
+
+  m.def(
+      "faults",
+      [](const PyScenario& s) {
+        drivers::FaultReport rep;
+        {
+          py::gil_scoped_release release;
+          rep = drivers::analyse_faults(s.scenario.driver, *s.parts);
+        }
+        auto one = [](const drivers::FaultCase& c) {
+          py::dict readings;
+          for (const auto& r : c.readings) readings[py::str(r.node)] = py::make_tuple(r.on_V, r.off_V);
+          py::dict heat;
+          for (const auto& [el, p] : c.on_state_heat_W) heat[py::str(el)] = p;
+          py::dict d;
+          d["part"] = c.part;
+          d["fault"] = c.fault;
+          d["readings"] = readings;
+          d["coil_current_on_A"] = c.coil_current_on_A;
+          d["coil_current_off_A"] = c.coil_current_off_A;
+          d["supply_current_on_A"] = c.supply_current_on_A;
+          d["on_state_heat_W"] = heat;
+          d["symptoms"] = c.symptoms;
+          d["reasons"] = c.reasons;
+          d["error"] = c.error;
+          py::dict m;
+          if (c.switch_off_run) {
+            for (const auto& [k, v] : c.switch_off.items()) m[py::str(k)] = v;
+          }
+          d["switch_off"] = m;
+          return d;
+        };
+        py::list faults;
+        for (const auto& c : rep.faults) faults.append(one(c));
+        py::dict out;
+        out["healthy"] = one(rep.healthy);
+        out["faults"] = faults;
+        return out;
+      },
+      py::arg("scenario"),
+      "Fault signatures: healthy and single-fault DC readings {node: (on_V, off_V)}, coil currents (A), on-state heat "
+      "(W), switch-off metrics, symptoms and the reasons behind them.");
 
   m.def(
       "suggest",

@@ -29,6 +29,7 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
 int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::string& plot_path, std::ostream& out);
 int cmd_sweep(const CommonOptions& o, const std::vector<std::string>& vary, const std::string& output, std::ostream& out);
 int cmd_tolerance(const CommonOptions& o, int samples, unsigned long long seed, std::ostream& out);
+int cmd_faults(const CommonOptions& o, const std::string& csv_path, std::ostream& out);
 int cmd_suggest(const CommonOptions& o, const std::string& max_release_time, const std::string& max_switch_voltage, int top,
                 std::ostream& out);
 

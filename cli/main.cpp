@@ -1,4 +1,4 @@
-// coilkick command-line tool: run, compare, sweep, tolerance, suggest (and demo).
+// coilkick command-line tool: run, compare, sweep, tolerance, suggest, faults (and demo).
 #include <CLI/CLI.hpp>
 #include <filesystem>
 #include <iostream>
@@ -56,6 +56,10 @@ int main(int argc, char** argv) {
   suggest->add_option("--max-switch-voltage", max_voltage, "highest acceptable switch voltage, e.g. \"48 V\"")->required();
   suggest->add_option("--top", top, "how many to list (default 15)")->check(CLI::Range(1, 1000));
 
+  auto* faults = app.add_subcommand("faults", "node voltages of the healthy driver and of every single fault, by symptom");
+  common(faults, o);
+  faults->add_option("--csv", csv, "write the readings as CSV to this file");
+
   auto* demo = app.add_subcommand("demo", "compare every clamp on the bundled greenhouse-valve scenario");
   common(demo, o, false);
   demo->add_option("--csv", csv, "write the comparison as CSV to this file");
@@ -77,6 +81,7 @@ int main(int argc, char** argv) {
     if (sweep->parsed()) return cmd_sweep(o, vary, output, std::cout);
     if (tol->parsed()) return cmd_tolerance(o, samples, seed, std::cout);
     if (suggest->parsed()) return cmd_suggest(o, max_release, max_voltage, top, std::cout);
+    if (faults->parsed()) return cmd_faults(o, csv, std::cout);
     if (demo->parsed()) {
       const std::string models = o.models_dir.empty() ? coilkick::catalogue::default_models_directory() : o.models_dir;
       o.file = (std::filesystem::path(models) / "scenarios" / "greenhouse_valve.toml").string();

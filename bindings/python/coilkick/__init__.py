@@ -14,13 +14,13 @@ Load a scenario (file or dict in the scenario schema, see README "Scenario files
 works as one). Plots: coilkick.plot.
 """
 from ._core import CatalogueError, ScenarioError, SimulationError, default_models_directory, numeric_keys
-from .api import (ComparisonRow, RunResult, ToleranceResult, compare, load_scenario, part_info, part_names, run,
-                  scenario_from_dict, suggest, sweep, tolerance)
+from .api import (ComparisonRow, FaultReport, RunResult, ToleranceResult, compare, faults, load_scenario, part_info,
+                  part_names, run, scenario_from_dict, suggest, sweep, tolerance)
 
 CAUTION = ("A simulation is not a qualification. Build and measure the real driver at its worst-case supply and "
            "temperature before relying on it. Where relays or contactors switch mains loads, wiring and checks "
            "belong to qualified people; local codes and licensed practice take precedence.")
 
 __all__ = ["CAUTION", "CatalogueError", "ComparisonRow", "RunResult", "ScenarioError", "SimulationError",
-           "ToleranceResult", "compare", "default_models_directory", "load_scenario", "numeric_keys", "part_info",
+           "ToleranceResult", "FaultReport", "compare", "faults", "default_models_directory", "load_scenario", "numeric_keys", "part_info",
            "part_names", "run", "scenario_from_dict", "suggest", "sweep", "tolerance"]

@@ -208,3 +208,31 @@ def suggest(scenario, max_release_time_s: float, max_switch_voltage_V: float, th
     lead = [{"clamp_kind": r["clamp_kind"], "parts": r["parts"], "meets_limits": r["meets_limits"],
              "release_margin": r["release_margin"], "voltage_margin": r["voltage_margin"]} for r in rows]
     return _frame(rows, lead)
+
+
+class FaultReport:
+    """Fault signatures. healthy: dict; faults: list of dicts; readings(): a DataFrame of every node healthy
+    against faulty, drive on and off; by_symptom: {symptom: [fault labels]}."""
+
+    def __init__(self, raw):
+        self.healthy = AttrDict(raw["healthy"])
+        self.faults = [AttrDict(f) for f in raw["faults"]]
+        self.by_symptom = {}
+        for f in self.faults:
+            for s in f["symptoms"]:
+                self.by_symptom.setdefault(s, []).append(f["part"] + " " + f["fault"])
+
+    def readings(self) -> pd.DataFrame:
+        rows = []
+        for f in self.faults:
+            for node, (h_on, h_off) in self.healthy["readings"].items():
+                on, off = f["readings"].get(node, (float("nan"), float("nan")))
+                rows.append({"part": f["part"], "fault": f["fault"], "symptoms": "; ".join(f["symptoms"]), "node": node,
+                             "healthy_on_V": h_on, "faulty_on_V": on, "healthy_off_V": h_off, "faulty_off_V": off})
+        return pd.DataFrame.from_records(rows)
+
+
+def faults(scenario) -> FaultReport:
+    """Single faults of every part of the driver (open, shorted, C–E short, base open, leaky junction, shorted
+    turns, low supply): DC node voltages on and off, coil current, heat, switch-off, grouped by symptom."""
+    return FaultReport(_core.faults(scenario))

@@ -25,6 +25,7 @@ void require_positive(double v, const char* field) {
 
 // Value and slope on a pattern of points, constant outside it.
 double pattern_value(const std::vector<std::pair<double, double>>& p, double t) {
+  if (std::isnan(t)) return t;  // a failed trial step: propagate, the integrator rejects it
   if (t <= p.front().first) return p.front().second;
   if (t >= p.back().first) return p.back().second;
   auto it = std::upper_bound(p.begin(), p.end(), t,
@@ -35,6 +36,7 @@ double pattern_value(const std::vector<std::pair<double, double>>& p, double t) 
 }
 
 double pattern_slope(const std::vector<std::pair<double, double>>& p, double t) {
+  if (std::isnan(t)) return t;
   if (t < p.front().first || t >= p.back().first) return 0.0;
   auto it = std::upper_bound(p.begin(), p.end(), t,
                              [](double x, const std::pair<double, double>& q) { return x < q.first; });
@@ -122,7 +124,7 @@ Waveform Waveform::table(std::vector<std::pair<double, double>> points) {
 }
 
 bool Waveform::local_time(double t_s, double& local_s) const {
-  if (period_ == 0.0) {
+  if (period_ == 0.0 || std::isnan(t_s)) {
     local_s = t_s;
     return true;
   }

@@ -1,0 +1,164 @@
+// Fault signatures of a simple low-side NPN driver against hand calculation (nodal analysis:
+// Kirchhoff's current law at each node with the pwl segments as straight lines — Nilsson &
+// Riedel, "Electric Circuits", 10th ed., ch. 4, node-voltage method, chapter from memory).
+#include <doctest/doctest.h>
+
+#include <cmath>
+
+#include "coilkick/drivers/faults.hpp"
+#include "driver_fixture.hpp"
+
+using namespace coilkick;
+using namespace coilkick::drivers;
+
+namespace {
+// pwl parts with explicit segments so that every reading can be worked by hand.
+DriverSpec hand_case() {
+  DriverSpec s = test_support::relay_case(true);
+  s.clamp.kind = ClampKind::diode;
+  s.clamp.diode_overrides = {{"knee_voltage", 0.7}, {"on_resistance", 0.1}};
+  s.switch_.overrides = {{"base_emitter_knee_voltage", 0.65}, {"base_emitter_on_resistance", 10.0},
+                         {"saturation_knee_voltage", 0.05}, {"saturation_resistance", 2.0}, {"forward_beta", 200.0}};
+  return s;
+}
+const FaultCase& find(const FaultReport& r, const std::string& part, const std::string& fault) {
+  for (const auto& f : r.faults) {
+    if (f.part == part && f.fault == fault) return f;
+  }
+  FAIL("no fault " << part << " " << fault);
+  return r.faults.front();
+}
+double on(const FaultCase& f, const std::string& node) {
+  for (const auto& r : f.readings) {
+    if (r.node == node) return r.on_V;
+  }
+  return std::nan("");
+}
+double off(const FaultCase& f, const std::string& node) {
+  for (const auto& r : f.readings) {
+    if (r.node == node) return r.off_V;
+  }
+  return std::nan("");
+}
+bool has(const FaultCase& f, const std::string& symptom) {
+  for (const auto& s : f.symptoms) {
+    if (s == symptom) return true;
+  }
+  return false;
+}
+// Hand values (V_logic 5 V, R_out 50 ohm, R_b 1 kohm, knee 0.65 V + 10 ohm, β 200; coil 400 ohm,
+// 12 V; saturation line 0.05 V + 2 ohm).
+const double kIb = (5.0 - 0.65) / (50.0 + 1000.0 + 10.0);
+const double kIcoil = (12.0 - 0.05) / (400.0 + 2.0);
+}  // namespace
+
+TEST_CASE("fault readings of a low-side NPN driver against hand calculation") {
+  const auto rep = analyse_faults(hand_case(), test_support::catalogue());
+  // Tolerances 1e-6 relative (or 1e-6 V): the 1e-12 S minimum conductances and the 1 Tohm "open"
+  // shift the hand values by less than 1e-9.
+  const auto& h = rep.healthy;
+  CHECK(h.coil_current_on_A == doctest::Approx(kIcoil).epsilon(1e-6));
+  CHECK(on(h, "switch") == doctest::Approx(0.05 + 2.0 * kIcoil).epsilon(1e-6));
+  CHECK(on(h, "base") == doctest::Approx(0.65 + 10.0 * kIb).epsilon(1e-6));
+  CHECK(on(h, "logic_out") == doctest::Approx(5.0 - 50.0 * kIb).epsilon(1e-6));
+  CHECK(off(h, "switch") == doctest::Approx(12.0).epsilon(1e-6));
+  CHECK(std::abs(h.coil_current_off_A) < 1e-9);
+
+  // Base resistor open: no base current, the switch stays off, the coil never operates. (The
+  // 1 Tohm "open" still feeds 4 pA into the base, which the pwl junction takes at its knee.)
+  const auto& rb = find(rep, "base_resistor", "open");
+  CHECK(on(rb, "base") == doctest::Approx(0.65).epsilon(1e-6));
+  CHECK(on(rb, "logic_out") == doctest::Approx(5.0).epsilon(1e-6));
+  CHECK(on(rb, "switch") == doctest::Approx(12.0).epsilon(1e-6));
+  CHECK(has(rb, "relay never operates"));
+
+  // Clamp diode shorted (10 mohm across the coil): the transistor leaves saturation and carries
+  // β·I_B from the supply through the short: V_sw = 12 − β·I_B/(1/0.01 + 1/400).
+  const auto& ds = find(rep, "clamp_diode", "shorted");
+  const double ic = 200.0 * kIb;
+  CHECK(on(ds, "switch") == doctest::Approx(12.0 - ic / (100.0 + 1.0 / 400.0)).epsilon(1e-6));
+  CHECK(ds.coil_current_on_A == doctest::Approx((12.0 - on(ds, "switch")) / 400.0).epsilon(1e-6));
+  CHECK(ds.supply_current_on_A == doctest::Approx(ic + kIb * 0.0).epsilon(1e-3));  // supply carries I_C
+  CHECK(has(ds, "relay never operates"));
+  CHECK(has(ds, "driver part overheats"));  // ~10 W in a 0.5 W transistor
+
+  // Collector–emitter shorted: the coil stays energised with the drive off.
+  const auto& ce = find(rep, "switch", "collector-emitter shorted");
+  CHECK(ce.coil_current_off_A == doctest::Approx(12.0 / (400.0 + 0.01)).epsilon(1e-6));
+  CHECK(off(ce, "switch") == doctest::Approx(0.01 * 12.0 / 400.01).epsilon(1e-4));
+  CHECK(has(ce, "relay never releases"));
+
+  // Base open: the external base node sits at the logic level, nothing flows.
+  const auto& bo = find(rep, "switch", "base open");
+  CHECK(on(bo, "base") == doctest::Approx(5.0).epsilon(1e-6));
+  CHECK(on(bo, "switch") == doctest::Approx(12.0).epsilon(1e-6));
+  CHECK(has(bo, "relay never operates"));
+
+  // Collector–base junction leaky (100 kohm), drive off: the leak through coil, 100 kohm and
+  // R_b + R_out to the low logic output: I = 12/(400 + 100k + 1050); V_b = 1050·I stays below the
+  // 0.65 V knee, so the transistor stays off.
+  const auto& lk = find(rep, "switch", "collector-base junction leaky");
+  const double il = 12.0 / (400.0 + 100e3 + 1050.0);
+  CHECK(lk.coil_current_off_A == doctest::Approx(il).epsilon(1e-6));
+  CHECK(off(lk, "base") == doctest::Approx(1050.0 * il).epsilon(1e-6));
+  CHECK(off(lk, "switch") == doctest::Approx(12.0 - 400.0 * il).epsilon(1e-6));
+
+  // Coil open: no current; the saturated transistor holds the node at its knee.
+  const auto& co = find(rep, "coil", "open");
+  CHECK(std::abs(co.coil_current_on_A) < 1e-9);
+  CHECK(on(co, "switch") == doctest::Approx(0.05).epsilon(1e-3));
+  CHECK(has(co, "relay never operates"));
+
+  // 30 % of the turns shorted: R falls to 280 ohm, more current, a hotter coil.
+  const auto& st = find(rep, "coil", "30 % of turns shorted");
+  CHECK(st.coil_current_on_A == doctest::Approx((12.0 - 0.05) / (280.0 + 2.0)).epsilon(1e-6));
+  CHECK(has(st, "driver part overheats"));
+
+  // Supply at 75 %: 9 V.
+  const auto& lo = find(rep, "supply", "low (75 %)");
+  CHECK(lo.coil_current_on_A == doctest::Approx((9.0 - 0.05) / 402.0).epsilon(1e-6));
+  CHECK(on(lo, "supply") == doctest::Approx(9.0));
+
+  // Clamp diode open: every switch-off drives the transistor into breakdown.
+  const auto& dopen = find(rep, "clamp_diode", "open");
+  CHECK(has(dopen, "driver part overheats"));
+  // The part's 60 V breakdown line with its 20 ohm dynamic resistance at 30 mA: about 60.6 V
+  // (2 % allows the knee's curvature).
+  CHECK(dopen.switch_off.get("switch_voltage_peak_V") == doctest::Approx(60.0 + 20.0 * kIcoil).epsilon(2e-2));
+}
+
+TEST_CASE("healthy fault readings equal the on-state check of the switch-off run") {
+  const DriverSpec s = hand_case();
+  const auto rep = analyse_faults(s, test_support::catalogue());
+  const auto r = simulate_switch_off(s, test_support::catalogue());
+  CHECK(rep.healthy.coil_current_on_A == doctest::Approx(r.metrics.get("coil_current_at_switch_off_A")).epsilon(1e-9));
+  CHECK(on(rep.healthy, "switch") == doctest::Approx(r.metrics.get("switch_saturation_voltage_V")).epsilon(1e-9));
+  CHECK(rep.healthy.switch_off.get("release_time_s") == doctest::Approx(r.metrics.get("release_time_s")).epsilon(1e-12));
+}
+
+TEST_CASE("every fault of every catalogue topology runs without solver failure") {
+  struct Topo {
+    Topology t;
+    const char* part;
+  };
+  for (const auto level : {devices::ModelLevel::pwl, devices::ModelLevel::physical}) {
+    for (const Topo& tp : {Topo{Topology::low_side_npn, "npn_small_signal_40v"}, Topo{Topology::low_side_nmos, "nmos_logic_level_60v"},
+                           Topo{Topology::low_side_darlington, "darlington_npn_100v"}, Topo{Topology::high_side_pnp, "pnp_small_signal_40v"},
+                           Topo{Topology::high_side_pmos, "pmos_logic_level_60v"}}) {
+      DriverSpec s = test_support::relay_case(false);
+      s.analysis.model_level = level;
+      s.switch_.topology = tp.t;
+      s.switch_.part = tp.part;
+      s.clamp.kind = ClampKind::diode_zener;
+      CAPTURE(to_string(tp.t));
+      CAPTURE(devices::to_string(level));
+      const auto rep = analyse_faults(s, test_support::catalogue());
+      CHECK(rep.faults.size() >= 10);
+      for (const auto& f : rep.faults) {
+        CAPTURE(f.label());
+        CHECK(f.error.empty());
+        CHECK_FALSE(f.symptoms.empty());
+      }
+    }
+  }
+}
