@@ -4,6 +4,7 @@
 #   ./run.sh test    build, then run every test through CTest
 #   ./run.sh build   configure (Release, build/) and build only
 #   ./run.sh bench   build with the benchmarks and run them (never part of the tests)
+#   ./run.sh sanitize  C++ tests under ASan+UBSan, threaded analyses under TSan
 set -euo pipefail
 cd "$(dirname "$0")"
 
@@ -54,14 +55,30 @@ case "$cmd" in
     configure_and_build
     (cd "$BUILD_DIR" && ctest --output-on-failure -j "$JOBS")
     ;;
+  sanitize)
+    # C++ tests under AddressSanitizer + UndefinedBehaviorSanitizer (leaks included), then the
+    # threaded analyses under ThreadSanitizer. Separate build trees; the Python package is off.
+    install_missing_packages
+    flags="-O1 -g -fno-omit-frame-pointer"
+    cmake -S . -B build-asan -DCMAKE_BUILD_TYPE=Debug -DCOILKICK_BUILD_PYTHON=OFF \
+      -DCMAKE_CXX_FLAGS="$flags -fsanitize=address,undefined -fno-sanitize-recover=undefined" \
+      -DCMAKE_EXE_LINKER_FLAGS="-fsanitize=address,undefined" >/dev/null
+    cmake --build build-asan -j "$JOBS"
+    (cd build-asan && ctest --output-on-failure -j "$JOBS" -E install_and_consume)
+    cmake -S . -B build-tsan -DCMAKE_BUILD_TYPE=Debug -DCOILKICK_BUILD_PYTHON=OFF \
+      -DCMAKE_CXX_FLAGS="$flags -fsanitize=thread" -DCMAKE_EXE_LINKER_FLAGS="-fsanitize=thread" >/dev/null
+    cmake --build build-tsan -j "$JOBS" --target scenario_tests
+    (cd build-tsan && TSAN_OPTIONS=halt_on_error=1 ctest --output-on-failure -j 1 -R "sweep|tolerance|suggest")
+    ;;
   bench)
     install_missing_packages
     configure_and_build -DCOILKICK_BUILD_BENCH=ON
     "$BUILD_DIR/bin/engine_bench" --benchmark_min_time=0.2
     "$BUILD_DIR/bin/device_bench" --benchmark_min_time=0.2
+    PYTHONPATH="$BUILD_DIR/python" "$PYTHON" bench/reference_transient.py
     ;;
   *)
-    echo "usage: ./run.sh demo|test|build|bench" >&2
+    echo "usage: ./run.sh demo|test|build|bench|sanitize" >&2
     exit 2
     ;;
 esac

@@ -204,3 +204,24 @@ TEST_CASE("sweep, tolerance and suggest on the bundled demo scenario (physical m
   CHECK(cmd_suggest(o, "5 ms", "48 V", 5, sug) == 0);
   CHECK(sug.str().find("candidates meet both") != std::string::npos);
 }
+
+TEST_CASE("faults: readings grouped by symptom, JSON and CSV") {
+  CommonOptions o;
+  o.file = scratch("faults.toml", kPwlScenario);
+  std::ostringstream text;
+  const std::string csv = scratch("faults.csv", "");
+  CHECK(cmd_faults(o, csv, text) == 0);
+  for (const char* s : {"== relay never operates ==", "== relay never releases ==", "switch collector-emitter shorted", "healthy on"}) {
+    CHECK(text.str().find(s) != std::string::npos);
+  }
+  o.json = true;
+  std::ostringstream js;
+  CHECK(cmd_faults(o, "", js) == 0);
+  const auto j = nlohmann::json::parse(js.str());
+  CHECK(j.at("healthy").at("readings").contains("switch"));
+  CHECK(j.at("by_symptom").contains("relay never operates"));
+  std::ifstream f(csv);
+  std::string header;
+  std::getline(f, header);
+  CHECK(header == "part,fault,symptoms,node,healthy_on_V,faulty_on_V,healthy_off_V,faulty_off_V");
+}

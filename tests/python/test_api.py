@@ -133,3 +133,13 @@ def test_long_work_releases_the_gil(relay_dict):
     # With the GIL held the ticker would be frozen for the whole sweep (about a second).
     assert end - start > 0.1
     assert len(during) > 10
+
+
+def test_faults_grouped_by_symptom(relay_dict):
+    relay_dict["clamp"]["kind"] = "diode"
+    rep = coilkick.faults(coilkick.scenario_from_dict(relay_dict))
+    assert "relay never releases" in rep.by_symptom
+    assert "switch collector-emitter shorted" in rep.by_symptom["relay never releases"]
+    df = rep.readings()
+    assert set(df.columns) >= {"node", "healthy_on_V", "faulty_on_V", "healthy_off_V", "faulty_off_V"}
+    assert rep.healthy.coil_current_on_A > 0.02
