@@ -12,7 +12,7 @@
 
 #include "coilkick/devices/bjt.hpp"
 #include "coilkick/drivers/compare.hpp"
-#include "driver_fixture.hpp"
+#include "driver_fixture.hpp"  // tests/drivers
 
 using namespace coilkick;
 using namespace coilkick::drivers;
