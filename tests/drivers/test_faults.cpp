@@ -156,6 +156,7 @@ TEST_CASE("every fault of every catalogue topology runs without solver failure")
       CHECK(rep.faults.size() >= 10);
       for (const auto& f : rep.faults) {
         CAPTURE(f.label());
+        CAPTURE(f.error);
         CHECK(f.error.empty());
         CHECK_FALSE(f.symptoms.empty());
       }

@@ -130,6 +130,17 @@ double PhysicalBjt::intrinsic_vbc_V(double vbe, double vbc_terminal) const {
     return y - rc * ic - vbc_terminal;
   };
   double dh = 0.0;
+  // Fast path: Newton from the terminal value (the collector drop is usually small).
+  {
+    double y = vbc_terminal;
+    for (int it = 0; it < 40; ++it) {
+      const double hy = h(y, dh);
+      const double step = hy / dh;
+      if (!std::isfinite(step)) break;
+      y -= step;
+      if (std::abs(step) <= 1e-15 * std::max(1.0, std::abs(y))) return y;
+    }
+  }
   double lo = vbc_terminal, hi = vbc_terminal;
   for (double step = 0.1; h(lo, dh) > 0.0; step *= 2.0) lo -= step;
   for (double step = 0.1; h(hi, dh) < 0.0; step *= 2.0) hi += step;

@@ -24,6 +24,22 @@ double branch_junction_voltage_V(double u, const ExpBranch& b) {
   // as a safeguard.
   const double r = b.series_resistance_ohm;
   auto g = [&](double uj) { return uj + r * branch_junction_current(uj, b) - u; };
+  // Fast path: plain Newton from the better of two starts (the terminal voltage itself, or where
+  // the exponential would carry u/R); g is increasing and convex above the knee, so Newton from
+  // the right converges monotonically. Falls back to the bracketed solve below if it does not.
+  {
+    const double above = b.offset_V + b.emission_voltage_V *
+                                          std::log(std::max(u - b.offset_V, 0.0) / (r * b.scale_current_A) + 1.0);
+    double x = std::min(u, above);
+    for (int it = 0; it < 40; ++it) {
+      const double xc = (x - b.offset_V) / b.emission_voltage_V;
+      const double di = b.scale_current_A / b.emission_voltage_V * std::exp(std::min(xc, b.x_crit));
+      const double step = g(x) / (1.0 + r * di);
+      if (!std::isfinite(step)) break;
+      x -= step;
+      if (std::abs(step) <= 1e-15 * std::max(1.0, std::abs(x))) return x;
+    }
+  }
   auto dg = [&](double uj) {
     const double x = (uj - b.offset_V) / b.emission_voltage_V;
     const double di = b.scale_current_A / b.emission_voltage_V * std::exp(std::min(x, b.x_crit));
