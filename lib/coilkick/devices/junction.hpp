@@ -5,9 +5,8 @@
 // currents and conductances stay finite at any voltage the integrator may try and remain
 // continuous with a continuous first derivative. x_c is chosen per junction from a critical
 // current (default 1 kA: far above any operating point here). Linear continuation of the
-// exponential beyond a critical current is the junction-limiting technique of the circuit-
-// simulation literature, e.g. Vladimirescu, "The SPICE Book" (Wiley 1994), diode chapter —
-// named as a published method source only (from memory).
+// exponential beyond a critical current is the published junction-limiting technique of the
+// circuit-simulation literature (from memory).
 //
 // Depletion charge: C_j(v) = C_j0/(1 − v/V_bi)^m below FC·V_bi, continued linearly in v above it
 // (Getreu, "Modeling the Bipolar Transistor", Tektronix 1976, ch. 3, from memory); the charge
