@@ -4,6 +4,7 @@
 
 #include "bindings.hpp"
 #include "coilkick/drivers/compare.hpp"
+#include "coilkick/drivers/driver_spec.hpp"
 
 namespace py = pybind11;
 
@@ -18,6 +19,8 @@ PyScenario rebuild_scenario(const std::string& text, const std::string& name, co
   p.parts = catalogue_for(models_dir);
   p.scenario = scenario::read_scenario_text(text, name, *p.parts);
   for (const auto& [k, v] : assignments) scenario::set_numeric_key(p.scenario, k, v, *p.parts);
+  // A value set after parsing is checked like one in the file (ValueError naming the field).
+  if (!assignments.empty()) drivers::check_driver_spec(p.scenario.driver);
   p.assignments = assignments;
   return p;
 }

@@ -429,6 +429,20 @@ class Reader {
         }
       }
       if (key.empty()) {
+        // A part parameter set by an override: "...: forward_beta must be ..." names it.
+        for (const auto& o : override_tables()) {
+          for (const auto& [k, loc] : s_.locations) {
+            const std::string prefix = std::string(o.key) + ".";
+            if (k.rfind(prefix, 0) != 0) continue;
+            const std::string param = k.substr(prefix.size());
+            if (msg.find(": " + param) != std::string::npos && param.size() > best) {
+              best = param.size();
+              key = k;
+            }
+          }
+        }
+      }
+      if (key.empty()) {
         // A message about several fields: point at the last of them in the file.
         int line = -1;
         for (const auto& n : numeric_table()) {
