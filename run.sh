@@ -5,6 +5,7 @@
 #   ./run.sh build   configure (Release, build/) and build only
 #   ./run.sh bench   build with the benchmarks and run them (never part of the tests)
 #   ./run.sh sanitize  C++ tests under ASan+UBSan, threaded analyses under TSan
+#   ./run.sh fuzz      libFuzzer targets (scenario reader, random networks) for a set time
 set -euo pipefail
 cd "$(dirname "$0")"
 
@@ -15,7 +16,8 @@ JOBS=${COILKICK_JOBS:-$(nproc)}
 # Debian packages the build and tests need (all from the Debian archive).
 PACKAGES=(cmake g++ make libboost-dev libeigen3-dev libtomlplusplus-dev libcli11-dev nlohmann-json3-dev doctest-dev libbenchmark-dev
           python3 python3-dev pybind11-dev python3-pybind11 python3-numpy python3-scipy python3-pandas
-          python3-matplotlib python3-pytest python3-nbclient python3-nbformat python3-ipykernel python3-distributed)
+          python3-matplotlib python3-pytest python3-nbclient python3-nbformat python3-ipykernel python3-distributed
+          clang-14 libclang-rt-14-dev)
 
 install_missing_packages() {
   local missing=()
@@ -29,6 +31,15 @@ install_missing_packages() {
     $sudo env DEBIAN_FRONTEND=noninteractive apt-get update -qq
     $sudo env DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends "${missing[@]}"
   fi
+}
+
+# libFuzzer targets with clang, ASan and UBSan, in build-fuzz (the library is built again there).
+FUZZ_CXX=${COILKICK_FUZZ_CXX:-clang++-14}
+build_fuzzers() {
+  cmake -S . -B build-fuzz -DCMAKE_BUILD_TYPE=RelWithDebInfo -DCMAKE_CXX_COMPILER="$FUZZ_CXX" \
+    -DCOILKICK_BUILD_PYTHON=OFF -DCOILKICK_BUILD_TESTS=OFF -DCOILKICK_BUILD_FUZZ=ON \
+    -DCMAKE_CXX_FLAGS="-fsanitize=fuzzer-no-link,address,undefined -fno-sanitize-recover=undefined" >/dev/null
+  cmake --build build-fuzz -j "$JOBS" --target fuzz_scenario fuzz_network
 }
 
 configure_and_build() {
@@ -52,8 +63,20 @@ case "$cmd" in
     ;;
   test)
     install_missing_packages
-    configure_and_build
+    build_fuzzers
+    configure_and_build -DCOILKICK_FUZZERS_DIR="$PWD/build-fuzz/bin"
     (cd "$BUILD_DIR" && ctest --output-on-failure -j "$JOBS")
+    ;;
+  fuzz)
+    # Each target for COILKICK_FUZZ_SECONDS (default 300) from a copy of the seed corpus.
+    install_missing_packages
+    build_fuzzers
+    for t in scenario network; do
+      mkdir -p "build-fuzz/corpus-$t"
+      cp -n fuzz/corpus/$t/* "build-fuzz/corpus-$t/" 2>/dev/null || true
+      "build-fuzz/bin/fuzz_$t" -max_total_time="${COILKICK_FUZZ_SECONDS:-300}" -timeout=10 -rss_limit_mb=2048 \
+        -print_final_stats=1 "build-fuzz/corpus-$t" fuzz/corpus/$t
+    done
     ;;
   sanitize)
     # C++ tests under AddressSanitizer + UndefinedBehaviorSanitizer (leaks included), then the
@@ -79,7 +102,7 @@ case "$cmd" in
     PYTHONPATH="$BUILD_DIR/python" "$PYTHON" bench/reference_transient.py
     ;;
   *)
-    echo "usage: ./run.sh demo|test|build|bench|sanitize" >&2
+    echo "usage: ./run.sh demo|test|build|bench|sanitize|fuzz" >&2
     exit 2
     ;;
 esac
