@@ -38,18 +38,14 @@ std::vector<Suggestion> suggest_clamps(const scenario::Scenario& s, const catalo
     return names;
   };
   for (const auto& z : by_voltage("zener")) {
-    drivers::ClampSpec c = base;
-    c.kind = ClampKind::diode_zener;
-    c.zener_part = z;
-    c.zener_overrides.clear();
-    add(c);
-  }
-  for (const auto& z : by_voltage("zener")) {
-    drivers::ClampSpec c = base;
-    c.kind = ClampKind::active_clamp;
-    c.active_clamp_zener_part = z;
-    c.active_clamp_zener_overrides.clear();
-    add(c);
+    for (const auto kind : {ClampKind::diode_zener, ClampKind::active_clamp}) {
+      drivers::ClampSpec c = base;
+      c.kind = kind;
+      (kind == ClampKind::diode_zener ? c.zener_part : c.active_clamp_zener_part) = z;
+      c.zener_overrides.clear();
+      c.active_clamp_zener_overrides.clear();
+      add(c);
+    }
   }
   for (const auto& t : by_voltage("tvs")) {
     drivers::ClampSpec c = base;
