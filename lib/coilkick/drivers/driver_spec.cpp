@@ -144,9 +144,6 @@ void check_driver_spec(const DriverSpec& s) {
   require_positive("analysis", "maximum_wall_time_s", s.analysis.maximum_wall_time_s);
 }
 
-}  // namespace coilkick::drivers
-
-namespace coilkick::drivers {
 CoilSpec coil_spec_from_part(const catalogue::PartRecord& coil) {
   if (coil.family != "coil") throw std::invalid_argument("part '" + coil.name + "' is a " + coil.family + ", not a coil");
   CoilSpec c;

@@ -116,9 +116,6 @@ void check_driver_spec(const DriverSpec& s);
 double coil_resistance_ohm(const CoilSpec& c);
 double release_current_A(const CoilSpec& c);  // NaN if neither is given
 
-}  // namespace coilkick::drivers
-
-namespace coilkick::drivers {
 // Coil values from a catalogue coil record (resistance at 20 °C, inductance, winding
 // capacitance, core loss, operate and release voltages where given).
 CoilSpec coil_spec_from_part(const catalogue::PartRecord& coil);
