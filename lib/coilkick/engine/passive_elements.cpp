@@ -3,6 +3,7 @@
 #include <cmath>
 
 #include "coilkick/engine/parameter_check.hpp"
+#include "coilkick/engine/winding.hpp"
 
 namespace coilkick::engine {
 
@@ -70,43 +71,9 @@ std::vector<PowerChannelSpec> Coil::power_channels() const {
 }
 
 void Coil::load(const ElementContext& ctx, Stamper& out) const {
-  constexpr int a = 0, b = 1, k = 2;  // local indices: terminals, then the inductor current
-  const double r = p_.resistance_ohm;
-  const double v = ctx.value(a) - ctx.value(b);
-  const double i = ctx.value(k);
-  // Core loss: g_c = 1/R_core (0 when absent); v_L = (v − r·i)·s with s = 1/(1 + r·g_c).
-  const double gc = has_core_loss() ? 1.0 / p_.core_loss_resistance_ohm : 0.0;
-  const double s = 1.0 / (1.0 + r * gc);
-  const double vl = (v - r * i) * s;
-  const double dvl_dv = s, dvl_di = -r * s;
-  const double it = i + gc * vl;  // terminal current, a -> b
-  const double dit_dv = gc * dvl_dv, dit_di = 1.0 + gc * dvl_di;
-
-  out.add_flow(a, -it);
-  out.add_flow(b, it);
-  out.add_flow_slope(a, a, -dit_dv);
-  out.add_flow_slope(a, b, dit_dv);
-  out.add_flow_slope(a, k, -dit_di);
-  out.add_flow_slope(b, a, dit_dv);
-  out.add_flow_slope(b, b, -dit_dv);
-  out.add_flow_slope(b, k, dit_di);
-  // L·di/dt = v_L
-  out.add_mass(k, k, p_.inductance_H);
-  out.add_flow(k, vl);
-  out.add_flow_slope(k, a, dvl_dv);
-  out.add_flow_slope(k, b, -dvl_dv);
-  out.add_flow_slope(k, k, dvl_di);
-  // Winding heat r·i_t², core heat g_c·v_L².
-  out.add_power(0, r * it * it);
-  out.add_power_slope(0, a, 2.0 * r * it * dit_dv);
-  out.add_power_slope(0, b, -2.0 * r * it * dit_dv);
-  out.add_power_slope(0, k, 2.0 * r * it * dit_di);
-  if (has_core_loss()) {
-    out.add_power(1, gc * vl * vl);
-    out.add_power_slope(1, a, 2.0 * gc * vl * dvl_dv);
-    out.add_power_slope(1, b, -2.0 * gc * vl * dvl_dv);
-    out.add_power_slope(1, k, 2.0 * gc * vl * dvl_di);
-  }
+  constexpr int k = 2;  // local index of the inductor current
+  stamp_winding(ctx, out, p_.resistance_ohm, has_core_loss() ? 1.0 / p_.core_loss_resistance_ohm : 0.0);
+  out.add_mass(k, k, p_.inductance_H);  // L·di/dt = v_L
 }
 
 double Coil::stored_energy_J(const ElementContext& ctx) const {
