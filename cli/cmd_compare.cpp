@@ -54,7 +54,10 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
       << " models; fastest release first; times from the start of the switch-off edge\n\n";
   out << std::left << std::setw(18) << "clamp" << std::setw(34) << "parts" << std::right << std::setw(11) << "peak"
       << std::setw(8) << "margin" << std::setw(11) << "release" << std::setw(11) << "to 10 %" << std::setw(11) << "clamp E"
-      << std::setw(11) << "switch E" << "  checks\n";
+      << std::setw(11) << "switch E";
+  const bool contacts = d.relay.armature_model;
+  if (contacts) out << std::setw(11) << "opens" << std::setw(11) << "speed";
+  out << "  checks\n";
   for (const auto& r : rows) {
     out << std::left << std::setw(18) << drivers::to_string(r.kind) << std::setw(34) << r.parts << std::right;
     if (!r.result) {
@@ -71,7 +74,16 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
         << (std::isnan(margin) ? std::string("-") : std::to_string(static_cast<int>(std::lround(100 * margin))) + "%")
         << std::setw(11) << metric_text("x_s", m.get("release_time_s")) << std::setw(11)
         << metric_text("x_s", m.get("current_decay_time_10pct_s")) << std::setw(11) << metric_text("x_J", m.get("clamp_energy_J"))
-        << std::setw(11) << metric_text("x_J", m.get("switch_energy_J")) << "  " << (flags.empty() ? "all pass" : flags) << "\n";
+        << std::setw(11) << metric_text("x_J", m.get("switch_energy_J"));
+    if (contacts) {
+      out << std::setw(11) << metric_text("x_s", m.get("contact_open_time_s")) << std::setw(11)
+          << metric_text("x_m_per_s", m.get("armature_speed_at_contact_open_m_per_s"));
+    }
+    out << "  " << (flags.empty() ? "all pass" : flags) << "\n";
+  }
+  if (contacts) {
+    out << "\nopens: the make contact separates (armature model); speed: armature speed there. "
+           "Slow, late opening means longer arcing and more contact wear.";
   }
   out << "\nmargin: peak switch voltage over the switch's rating; keep below "
       << static_cast<int>(100 * d.analysis.switch_voltage_derating) << " % (common practice).\n\n"

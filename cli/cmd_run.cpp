@@ -95,6 +95,13 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
              {"switch-off delay", "switch_off_delay_s"}, {"ringing frequency", "ringing_frequency_Hz"},
              {"clamp average power", "clamp_average_power_W"}, {"energy balance error", "energy_balance_error"}},
             r.metrics);
+    if (d.relay.armature_model) {
+      out << "\n";
+      section(out, "Contacts (armature model calibrated from the coil's data; IEC 61810-1 times, bounce excluded)",
+              {{"contact opens", "contact_open_time_s"}, {"armature speed there", "armature_speed_at_contact_open_m_per_s"},
+               {"operate time (switch-on)", "operate_time_s"}},
+              r.metrics);
+    }
     out << "\nRating checks\n";
     for (const auto& c : r.checks) {
       out << "  " << status_word(c.status) << "  " << std::left << std::setw(36) << c.name << std::setw(12)

@@ -79,7 +79,8 @@ std::vector<std::pair<std::string, std::string>> parameter_keys(const std::strin
   if (family == "coil") {
     return {{"resistance_at_20C", "ohm"}, {"inductance", "H"},        {"winding_capacitance", "F"},
             {"core_loss_resistance", "ohm"}, {"nominal_voltage", "V"}, {"operate_voltage", "V"},
-            {"release_voltage", "V"},     {"operate_time", "s"},       {"release_time", "s"}};
+            {"release_voltage", "V"},     {"operate_time", "s"},       {"release_time", "s"},
+            {"contact_gap", "m"},         {"over_travel", "m"}};
   }
   throw std::invalid_argument("unknown part family '" + family + "'");
 }

@@ -117,7 +117,16 @@ struct Builder {
     // Coil current flows from the supply side to the switched end (low side) or from the
     // switched end to ground (high side): positive in the on-state either way.
     const std::string a = out.high_side ? "switch" : "supply", k = out.high_side ? Network::ground : "switch";
-    out.network.add_coil("coil", a, k, p);
+    if (s.relay.armature_model) {
+      out.relay_calibration = &relay::calibrate_relay_cached(relay_datasheet(s));
+      relay::ArmatureCoilParameters ap = out.relay_calibration->parameters;
+      ap.resistance_ohm = out.coil_resistance_ohm;
+      ap.core_loss_resistance_ohm = cs.core_loss_resistance_ohm;
+      out.armature = ap;
+      out.network.add(std::make_shared<relay::ArmatureCoil>("coil", a, k, ap));
+    } else {
+      out.network.add_coil("coil", a, k, p);
+    }
     if (cs.winding_capacitance_F > 0.0) out.network.add_capacitor("winding_capacitance", a, k, cs.winding_capacitance_F);
     if (s.switch_.board_stray_capacitance_F > 0.0) {
       out.network.add_capacitor("board_stray", "switch", Network::ground, s.switch_.board_stray_capacitance_F);

@@ -5,9 +5,11 @@
 // find them:
 //   nodes: "supply", "logic", "logic_out", "base" (switch base or gate), "switch" (the switch's
 //          collector/drain, i.e. the coil's switched end), "clamp_mid", "snubber_mid";
-//   elements: "coil", "switch" (or "switch.input"/"switch.output" for a Darlington),
+//   elements: "coil" (a fixed coil, or with the armature model an armature coil with states
+//          "coil.gap" and "coil.velocity"), "switch" (or "switch.input"/"switch.output" for a Darlington),
 //          "base_resistor", "clamp_diode", "clamp_zener", "clamp_resistor", "clamp_tvs",
 //          "snubber_resistor", "snubber_capacitor", "level_shifter", "pullup_resistor" ...
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -30,6 +32,10 @@ struct BuiltDriver {
   const catalogue::PartRecord* switch_part = nullptr;
   std::vector<const catalogue::PartRecord*> clamp_parts;  // for the rating checks
   double coil_resistance_ohm = 0.0;
+  // With the armature model: the calibration (the parameters at the data sheet's resistance)
+  // and the element's parameters as built (hot winding resistance). Null/empty otherwise.
+  const relay::RelayCalibration* relay_calibration = nullptr;
+  std::optional<relay::ArmatureCoilParameters> armature;
 };
 
 // Throws std::invalid_argument naming the field for an impossible combination (e.g. an NPN

@@ -130,6 +130,7 @@ void check_driver_spec(const DriverSpec& s) {
     require_positive("clamp", "snubber_resistance_ohm", s.clamp.snubber_resistance_ohm);
     require_positive("clamp", "snubber_capacitance_F", s.clamp.snubber_capacitance_F);
   }
+  if (s.relay.armature_model) relay_datasheet(s).check();
   engine::require_open_range("analysis", "device_temperature_C", s.analysis.device_temperature_C, -60.0, 250.0);
   require_non_negative("analysis", "stop_time_s", s.analysis.stop_time_s);
   if (s.analysis.stop_time_s > 0.0 && !(s.analysis.stop_time_s > s.drive.switch_off_at_s + s.drive.fall_time_s)) {
@@ -155,4 +156,48 @@ CoilSpec coil_spec_from_part(const catalogue::PartRecord& coil) {
   if (coil.has_parameter("operate_voltage")) c.operate_voltage_V = coil.parameter("operate_voltage");
   return c;
 }
+
+RelaySpec relay_spec_from_part(const catalogue::PartRecord& coil) {
+  RelaySpec r;
+  auto take = [&](const char* key, double& field) {
+    if (coil.has_parameter(key)) field = coil.parameter(key);
+  };
+  take("nominal_voltage", r.nominal_voltage_V);
+  take("operate_time", r.operate_time_s);
+  take("release_time", r.release_time_s);
+  take("contact_gap", r.contact_gap_m);
+  take("over_travel", r.over_travel_m);
+  return r;
+}
+
+relay::RelayDatasheet relay_datasheet(const DriverSpec& s) {
+  const auto& r = s.relay;
+  auto pick = [](double own, double fallback, const char* field, const char* from) {
+    const double v = std::isnan(own) ? fallback : own;
+    if (std::isnan(v)) {
+      throw std::invalid_argument(std::string("relay: ") + field + " is needed by the armature model (give it, or " + from + ")");
+    }
+    return v;
+  };
+  relay::RelayDatasheet d;
+  d.nominal_voltage_V = pick(r.nominal_voltage_V, s.supply.voltage_V, "nominal_voltage_V", "supply.voltage_V");
+  d.coil_resistance_ohm = pick(r.resistance_at_20C_ohm, s.coil.resistance_at_20C_ohm, "resistance_at_20C_ohm", "coil.resistance_at_20C_ohm");
+  d.closed_inductance_H = pick(r.closed_inductance_H, s.coil.inductance_H, "closed_inductance_H", "coil.inductance_H");
+  d.operate_voltage_V = pick(r.operate_voltage_V, s.coil.operate_voltage_V, "operate_voltage_V", "coil.operate_voltage_V");
+  d.release_voltage_V = pick(r.release_voltage_V, s.coil.release_voltage_V, "release_voltage_V", "coil.release_voltage_V");
+  d.operate_time_s = pick(r.operate_time_s, std::nan(""), "operate_time_s", "a coil part with operate_time");
+  d.release_time_s = pick(r.release_time_s, std::nan(""), "release_time_s", "a coil part with release_time");
+  d.contact_gap_m = r.contact_gap_m;
+  d.over_travel_m = r.over_travel_m;
+  d.core_loss_resistance_ohm = s.coil.core_loss_resistance_ohm;
+  return d;
+}
+
+void freeze_relay_datasheet(DriverSpec& s) {
+  auto& r = s.relay;
+  if (std::isnan(r.nominal_voltage_V)) r.nominal_voltage_V = s.supply.voltage_V;
+  if (std::isnan(r.resistance_at_20C_ohm)) r.resistance_at_20C_ohm = s.coil.resistance_at_20C_ohm;
+  if (std::isnan(r.closed_inductance_H)) r.closed_inductance_H = s.coil.inductance_H;
+}
+
 }  // namespace coilkick::drivers

@@ -9,6 +9,7 @@
 
 #include "coilkick/catalogue/part_parameters.hpp"
 #include "coilkick/devices/model_level.hpp"
+#include "coilkick/relay/relay_calibration.hpp"
 
 namespace coilkick::drivers {
 
@@ -62,6 +63,26 @@ struct CoilSpec {
   double operate_voltage_V = std::numeric_limits<double>::quiet_NaN();
 };
 
+// The relay armature model (relay/armature_coil.hpp), calibrated from data-sheet values
+// (relay/relay_calibration.hpp). Off: the coil is a fixed inductance and only the current-based
+// release time is reported. NaN fields are taken from the coil (resistance at 20 °C, inductance
+// as the closed-armature inductance, operate and release voltages) or the supply (nominal
+// voltage). `freeze_relay_datasheet` copies in the values that tolerance runs vary (supply
+// voltage, coil resistance, inductance), so that those runs keep the armature calibrated from the
+// nominal data: a relay with a hotter or higher-resistance winding has the same magnet and springs.
+struct RelaySpec {
+  bool armature_model = false;
+  double nominal_voltage_V = std::numeric_limits<double>::quiet_NaN();
+  double resistance_at_20C_ohm = std::numeric_limits<double>::quiet_NaN();
+  double closed_inductance_H = std::numeric_limits<double>::quiet_NaN();
+  double operate_voltage_V = std::numeric_limits<double>::quiet_NaN();
+  double release_voltage_V = std::numeric_limits<double>::quiet_NaN();
+  double operate_time_s = std::numeric_limits<double>::quiet_NaN();  // data sheet
+  double release_time_s = std::numeric_limits<double>::quiet_NaN();  // data sheet, without suppression
+  double contact_gap_m = 0.4e-3;   // typical of small power relays, from memory
+  double over_travel_m = 0.1e-3;   // typical of small power relays, from memory
+};
+
 enum class ClampKind {
   none, diode, diode_zener, diode_resistor, rc_across_coil, rc_across_switch, tvs_across_switch, active_clamp
 };
@@ -106,6 +127,7 @@ struct DriverSpec {
   SwitchSpec switch_;
   CoilSpec coil;
   ClampSpec clamp;
+  RelaySpec relay;
   AnalysisSpec analysis;
 };
 
@@ -119,4 +141,13 @@ double release_current_A(const CoilSpec& c);  // NaN if neither is given
 // Coil values from a catalogue coil record (resistance at 20 °C, inductance, winding
 // capacitance, core loss, operate and release voltages where given).
 CoilSpec coil_spec_from_part(const catalogue::PartRecord& coil);
+// Relay data from a coil record (nominal voltage, operate and release times, contact gap,
+// over-travel where given); the armature model stays off.
+RelaySpec relay_spec_from_part(const catalogue::PartRecord& coil);
+
+// The calibration input of the armature model (fields of RelaySpec, NaN ones from the coil and
+// supply). Throws std::invalid_argument naming the missing field ("relay: operate_time_s ...").
+relay::RelayDatasheet relay_datasheet(const DriverSpec& s);
+// Copies the supply voltage, coil resistance and inductance into the NaN fields of s.relay.
+void freeze_relay_datasheet(DriverSpec& s);
 }  // namespace coilkick::drivers

@@ -220,6 +220,16 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
       p.resistance_ohm *= (1.0 - kShortedTurns);                         // R ∝ N (same wire)
       turns.out.network.replace(n, std::make_shared<engine::Coil>(n, t[0], t[1], p));
       add_case(n, "30 % of turns shorted", turns);
+    } else if (const auto* arm = dynamic_cast<const relay::ArmatureCoil*>(e.get())) {
+      Injector open(healthy), turns(healthy);
+      open.resistor_in_place(n, kOpen_ohm);
+      add_case(n, "open", open);
+      relay::ArmatureCoilParameters p = arm->parameters();
+      p.magnetic.turns *= (1.0 - kShortedTurns);  // the magnetic model scales L and force with N²
+      p.magnetic.leakage_inductance_H *= (1.0 - kShortedTurns) * (1.0 - kShortedTurns);
+      p.resistance_ohm *= (1.0 - kShortedTurns);  // R ∝ N (same wire)
+      turns.out.network.replace(n, std::make_shared<relay::ArmatureCoil>(n, t[0], t[1], p));
+      add_case(n, "30 % of turns shorted", turns);
     }
   }
   {

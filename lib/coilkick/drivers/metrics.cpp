@@ -41,7 +41,9 @@ const std::vector<std::string>& metric_names() {
       "switch_voltage_peak_V", "switch_voltage_peak_time_s", "switch_voltage_rating_V", "switch_voltage_margin",
       "clamp_current_peak_A", "clamp_energy_J", "coil_resistance_energy_J", "switch_energy_J",
       "energy_balance_error", "release_time_s", "current_decay_time_10pct_s", "switch_off_delay_s",
-      "ringing_frequency_Hz", "clamp_average_power_W"};
+      "ringing_frequency_Hz", "clamp_average_power_W",
+      // armature model (NaN without it)
+      "contact_open_time_s", "armature_speed_at_contact_open_m_per_s", "operate_time_s"};
   return n;
 }
 

@@ -9,6 +9,7 @@
 #include "coilkick/engine/probe.hpp"
 #include "coilkick/engine/state.hpp"
 #include "coilkick/engine/transient.hpp"
+#include "coilkick/drivers/switch_on.hpp"
 
 namespace coilkick::drivers {
 namespace {
@@ -116,7 +117,10 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   const double r_coil = b.coil_resistance_ohm;
   const double tau = spec.coil.inductance_H / r_coil;
   engine::TransientOptions o;
-  o.stop_time_s = spec.analysis.stop_time_s > 0.0 ? spec.analysis.stop_time_s : t_off + spec.drive.fall_time_s + 8.0 * tau;
+  // With the armature model the contact opens after the current has fallen and the armature
+  // has travelled: allow 20 data-sheet release times more.
+  const double mechanical_s = b.armature ? 20.0 * relay_datasheet(spec).release_time_s : 0.0;
+  o.stop_time_s = spec.analysis.stop_time_s > 0.0 ? spec.analysis.stop_time_s : t_off + spec.drive.fall_time_s + 8.0 * tau + mechanical_s;
   o.relative_tolerance = spec.analysis.relative_tolerance;
   o.voltage_tolerance_V = spec.analysis.voltage_tolerance_V;
   o.current_tolerance_A = spec.analysis.current_tolerance_A;
@@ -128,6 +132,9 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
                             EventSpec::crossing("decay10", p_coil, 0.1 * i0, Direction::falling, t_off),
                             EventSpec::crossing("off_delay", p_vsw, 0.9 * vs, Direction::rising, t_off)};
   if (!std::isnan(i_rel)) ev.push_back(EventSpec::crossing("release", p_coil, i_rel, Direction::falling, t_off));
+  const double make_gap = b.armature ? b.armature->mechanics.make_gap_m : kNaN;
+  const int gap_i = b.armature ? c.state_index("coil.gap") : -1;
+  if (b.armature) ev.push_back(EventSpec::crossing("contact_open", Probe::state(c, "coil.gap"), make_gap, Direction::rising, t_off));
   if (!b.clamp_current_element.empty()) {
     const int el = c.element_index(b.clamp_current_element);
     auto ws = std::make_shared<engine::Workspace>(c.make_workspace());
@@ -146,9 +153,12 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
     const double l = spec.coil.inductance_H, e0 = 0.5 * l * i0 * i0;
     double frac = 1e-4;
     if (!std::isnan(i_rel)) frac = std::min(frac, 0.25 * (i_rel / i0) * (i_rel / i0));
+    // With the armature model the run also waits for the contact to open: until then the
+    // probe reads the full initial energy.
     ev.push_back(EventSpec::crossing("decayed", Probe("remaining energy", [=, &c](double t, const double* x) {
                                        const double i = x[coil_i], dv = vsw(t, x) - vs;
                                        (void)c;
+                                       if (gap_i >= 0 && x[gap_i] < make_gap) return e0;
                                        return 0.5 * l * i * i + 0.5 * c_node * dv * dv;
                                      }), frac * e0, Direction::falling, t_off + spec.drive.fall_time_s, true));
   }
@@ -207,6 +217,21 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
     m.set("ringing_frequency_Hz", f);
   }
   m.set("clamp_average_power_W", spec.drive.period_s > 0.0 ? e_clamp / spec.drive.period_s : kNaN);
+  {
+    // Contact opening (armature model): time from the switch-off edge, armature speed there.
+    double t_open = kNaN, speed = kNaN, t_operate = kNaN;
+    if (b.armature) {
+      const auto& e = r.event("contact_open");
+      if (e.time_s) {
+        t_open = *e.time_s - t_off;
+        speed = r.sample(*e.time_s)[c.state_index("coil.velocity")];
+      }
+      t_operate = simulate_operate_time_s(spec, b);
+    }
+    m.set("contact_open_time_s", t_open);
+    m.set("armature_speed_at_contact_open_m_per_s", speed);
+    m.set("operate_time_s", t_operate);
+  }
 
   // ---- waveforms
   const auto n = static_cast<Eigen::Index>(r.times_s().size());
@@ -215,6 +240,7 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   wf.switch_voltage_V.resize(n);
   for (Eigen::Index k = 0; k < n; ++k) wf.switch_voltage_V[k] = vsw(r.times_s()[static_cast<std::size_t>(k)], r.states().row(k).data());
   wf.coil_current_A = r.state("coil.current");
+  if (b.armature) wf.armature_gap_m = r.state("coil.gap");
   wf.clamp_current_A = b.clamp_current_element.empty() ? Eigen::VectorXd::Zero(n) : r.element_current_A(b.clamp_current_element, 0);
 
   // ---- rating checks
@@ -300,6 +326,15 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
       g.status = i0 >= i_op ? CheckStatus::pass : CheckStatus::fail;
     }
     ck.push_back(g);
+  }
+  if (b.relay_calibration) {
+    const double worst = b.relay_calibration->worst_relative_error();
+    ck.push_back({"relay_calibration", worst <= 0.02 ? CheckStatus::pass : CheckStatus::warn, worst, 0.02, "1",
+                  "largest relative miss of the armature model's calibration targets (operate and release voltage and "
+                  "time, closed inductance); above 2 % the contact times are less trustworthy"});
+    if (b.armature && std::isnan(m.get("contact_open_time_s"))) {
+      ck.push_back({"contact_opens", CheckStatus::fail, kNaN, kNaN, "s", "the make contact did not open within the simulated time"});
+    }
   }
   const double eb = m.get("energy_balance_error");
   RatingCheck acc{"accuracy", eb <= spec.analysis.energy_balance_limit ? CheckStatus::pass : CheckStatus::fail, eb,

@@ -24,6 +24,7 @@ struct SwitchOffWaveforms {
   Eigen::VectorXd switch_voltage_V;  // across the switch (collector–emitter / drain–source magnitude)
   Eigen::VectorXd coil_current_A;
   Eigen::VectorXd clamp_current_A;   // through the first clamp part (0 if there is none)
+  Eigen::VectorXd armature_gap_m;    // armature model only (empty otherwise)
 };
 
 struct SwitchOffResult {

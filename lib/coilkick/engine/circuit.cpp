@@ -102,7 +102,7 @@ Circuit::Circuit(const Network& network)
         throw std::invalid_argument("element '" + e->name() + "': internal state '" + s.name +
                                     "' cannot be a node voltage");
       }
-      states_.push_back({e->name() + "." + s.name, s.unit, s.kind, false, s.absolute_tolerance});
+      states_.push_back({e->name() + "." + s.name, s.unit, s.kind, false, s.absolute_tolerance, s.operating_point_guess});
       ++next;
     }
   }

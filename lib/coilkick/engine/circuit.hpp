@@ -26,6 +26,7 @@ struct StateInfo {
   StateKind kind = StateKind::internal;
   bool is_energy = false;
   double absolute_tolerance = 0.0;  // only for element internal states that declare one
+  double operating_point_guess = 0.0;
 };
 
 struct PowerChannelInfo {

@@ -26,6 +26,7 @@ struct InternalStateSpec {
   std::string unit;                 // SI unit symbol, e.g. "A", "m", "m/s"
   double absolute_tolerance = 0.0;  // error tolerance in that unit (> 0)
   StateKind kind = StateKind::internal;
+  double operating_point_guess = 0.0;  // where the DC Newton iteration starts (e.g. a closed armature's gap)
 };
 
 // Energy channel: power an element turns into heat (`dissipated`) or delivers into the network

@@ -35,7 +35,7 @@ CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess, 
 
 CircuitState solve_operating_point(const Circuit& circuit, double time_s,
                                    const OperatingPointOptions& options) {
-  return solve_operating_point(circuit, zero_state(circuit, time_s), options);
+  return solve_operating_point(circuit, guess_state(circuit, time_s), options);
 }
 
 namespace {

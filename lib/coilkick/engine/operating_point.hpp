@@ -17,7 +17,8 @@ struct OperatingPointOptions {
   double relative_tolerance = 1e-10;
 };
 
-// Throws SimulationError naming the worst row if Newton does not converge.
+// Starts from guess_state (zeros, internal states at their declared guesses). Throws
+// SimulationError naming the worst row if Newton does not converge.
 CircuitState solve_operating_point(const Circuit& circuit, double time_s,
                                    const OperatingPointOptions& options = {});
 // Same, starting from a guess (e.g. the previous operating point in a sweep).

@@ -13,6 +13,12 @@ CircuitState zero_state(const Circuit& circuit, double time_s) {
   return s;
 }
 
+CircuitState guess_state(const Circuit& circuit, double time_s) {
+  CircuitState s = zero_state(circuit, time_s);
+  for (int i = 0; i < circuit.circuit_state_count(); ++i) s.values[i] = circuit.states()[static_cast<std::size_t>(i)].operating_point_guess;
+  return s;
+}
+
 void set_state(const Circuit& circuit, CircuitState& state, const std::string& name, double value) {
   if (!std::isfinite(value)) throw std::invalid_argument("state '" + name + "': value must be finite");
   state.values[circuit.state_index(name)] = value;

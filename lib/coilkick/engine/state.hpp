@@ -14,6 +14,8 @@ struct CircuitState {
 
 // All states zero at time_s.
 CircuitState zero_state(const Circuit& circuit, double time_s);
+// Zero except the internal states that declare an operating-point guess.
+CircuitState guess_state(const Circuit& circuit, double time_s);
 // Sets one state by name (e.g. "valve.current", "node:sw"); throws for unknown names.
 void set_state(const Circuit& circuit, CircuitState& state, const std::string& name, double value);
 double get_state(const Circuit& circuit, const CircuitState& state, const std::string& name);

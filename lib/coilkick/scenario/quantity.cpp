@@ -26,6 +26,7 @@ const std::vector<UnitSpelling>& units() {
       {Dimension::temperature, {"degC", "\xC2\xB0" "C" /* °C */}},
       {Dimension::ratio, {"%"}},
       {Dimension::dimensionless, {}},
+      {Dimension::length, {"m"}},  // after "ohm", which also ends in m
   };
   return u;
 }
@@ -68,6 +69,7 @@ const char* dimension_name(Dimension d) {
     case Dimension::temperature: return "a temperature";
     case Dimension::ratio: return "a ratio";
     case Dimension::dimensionless: return "a plain number";
+    case Dimension::length: return "a length";
   }
   return "?";
 }
@@ -93,6 +95,7 @@ Dimension dimension_of_unit(const std::string& unit) {
   if (unit == "H") return Dimension::inductance;
   if (unit == "s") return Dimension::time;
   if (unit == "degC") return Dimension::temperature;
+  if (unit == "m") return Dimension::length;
   return Dimension::dimensionless;
 }
 

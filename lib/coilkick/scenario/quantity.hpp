@@ -7,7 +7,7 @@
 
 namespace coilkick::scenario {
 
-enum class Dimension { voltage, current, resistance, capacitance, inductance, time, frequency, temperature, ratio, dimensionless };
+enum class Dimension { voltage, current, resistance, capacitance, inductance, time, frequency, temperature, ratio, dimensionless, length };
 
 // Unit symbol(s) accepted for a dimension, for messages: "V", "A", "ohm or Ω" ...
 std::string unit_words(Dimension d);

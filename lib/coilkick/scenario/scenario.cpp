@@ -57,6 +57,11 @@ const std::vector<NumericKey>& numeric_table() {
       NK("coil.release_voltage", voltage, "V", driver.coil.release_voltage_V, "coil: release_voltage_V"),
       NK("coil.operate_current", current, "A", driver.coil.operate_current_A, "coil: operate_current_A"),
       NK("coil.operate_voltage", voltage, "V", driver.coil.operate_voltage_V, "coil: operate_voltage_V"),
+      NK("relay.nominal_voltage", voltage, "V", driver.relay.nominal_voltage_V, "relay: nominal_voltage_V"),
+      NK("relay.operate_time", time, "s", driver.relay.operate_time_s, "relay: operate_time_s"),
+      NK("relay.release_time", time, "s", driver.relay.release_time_s, "relay: release_time_s"),
+      NK("relay.contact_gap", length, "m", driver.relay.contact_gap_m, "relay: contact_gap_m"),
+      NK("relay.over_travel", length, "m", driver.relay.over_travel_m, "relay: over_travel_m"),
       NK("clamp.resistor", resistance, "ohm", driver.clamp.resistor_ohm, "clamp: resistor_ohm"),
       NK("clamp.snubber_resistance", resistance, "ohm", driver.clamp.snubber_resistance_ohm, "clamp: snubber_resistance_ohm"),
       NK("clamp.snubber_capacitance", capacitance, "F", driver.clamp.snubber_capacitance_F, "clamp: snubber_capacitance_F"),
@@ -110,6 +115,7 @@ const std::vector<std::pair<const char*, std::function<bool&(Scenario&)>>>& bool
   static const std::vector<std::pair<const char*, std::function<bool&(Scenario&)>>> t{
       {"clamp.add_rc_snubber_across_coil", [](Scenario& s) -> bool& { return s.driver.clamp.add_rc_snubber_across_coil; }},
       {"analysis.stop_when_decayed", [](Scenario& s) -> bool& { return s.driver.analysis.stop_when_decayed; }},
+      {"relay.armature_model", [](Scenario& s) -> bool& { return s.driver.relay.armature_model; }},
   };
   return t;
 }
@@ -199,7 +205,7 @@ class Reader {
         set_text("name", v);
         continue;
       }
-      static const std::vector<std::string> sections{"supply", "drive", "switch", "coil", "clamp", "analysis", "tolerances"};
+      static const std::vector<std::string> sections{"supply", "drive", "switch", "coil", "clamp", "relay", "analysis", "tolerances"};
       if (std::find(sections.begin(), sections.end(), key) == sections.end()) {
         std::vector<std::string> top = sections;
         top.push_back("name");
@@ -212,6 +218,7 @@ class Reader {
     for (const auto& [prefix, node] : pending_overrides_) read_overrides(prefix, *node);
     require_keys(doc);
     check_ranges();
+    if (s_.driver.relay.armature_model) drivers::freeze_relay_datasheet(s_.driver);
     validate_spec();
     return s_;
   }
@@ -240,6 +247,7 @@ class Reader {
     const std::string name = *n.value<std::string>();
     try {
       s_.driver.coil = drivers::coil_spec_from_part(parts_.part(name));
+      s_.driver.relay = drivers::relay_spec_from_part(parts_.part(name));
     } catch (const std::invalid_argument& e) {
       fail(loc, "coil.part", e.what());
     }
@@ -459,6 +467,7 @@ class Reader {
         key = seen_.count("coil.release_current") ? "coil.release_current" : "coil.release_voltage";
       }
       if (key.empty() && msg.find("override") != std::string::npos) key = "switch.overrides";
+      if (key.empty() && msg.rfind("relay:", 0) == 0) key = "relay.armature_model";
       const SourceLocation loc = key.empty() ? SourceLocation{file_, 1, 1} : at(key);
       throw ScenarioError(loc.str() + ": " + (key.empty() ? "" : "key '" + key + "': ") + msg);
     }
