@@ -12,6 +12,7 @@
 #include "coilkick/engine/errors.hpp"
 #include "coilkick/engine/operating_point.hpp"
 #include "coilkick/engine/rewired_element.hpp"
+#include "coilkick/relay/closed_operating_point.hpp"
 
 namespace coilkick::drivers {
 namespace {
@@ -67,8 +68,8 @@ FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::stri
   try {
     const engine::Circuit c(b.network);
     const double t_late = spec.drive.switch_off_at_s + spec.drive.fall_time_s + 1.0;
-    const auto on = engine::solve_operating_point(c, 0.0);
-    const auto off = engine::solve_operating_point(c, t_late);
+    const auto on = relay::operating_point_with_armatures_closed(b.network, c, 0.0);
+    const auto off = relay::operating_point_with_armatures_closed(b.network, c, t_late);
     for (const auto& n : c.node_names()) {
       if (n == "logic") continue;  // the logic output's internal source node
       fc.readings.push_back({n, c.node_voltage_V(n, 0.0, on.values.data()), c.node_voltage_V(n, t_late, off.values.data())});

@@ -10,6 +10,7 @@
 #include "coilkick/engine/state.hpp"
 #include "coilkick/engine/transient.hpp"
 #include "coilkick/drivers/switch_on.hpp"
+#include "coilkick/relay/closed_operating_point.hpp"
 
 namespace coilkick::drivers {
 namespace {
@@ -94,7 +95,7 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   const double t_off = spec.drive.switch_off_at_s;
 
   // ---- on-state
-  const engine::CircuitState on = engine::solve_operating_point(c, 0.0);
+  const engine::CircuitState on = relay::operating_point_with_armatures_closed(b.network, c, 0.0);
   engine::Workspace w = c.make_workspace();
   const int coil_i = c.state_index("coil.current");
   const double i0 = on.values[coil_i];
@@ -126,6 +127,9 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   o.current_tolerance_A = spec.analysis.current_tolerance_A;
   o.energy_tolerance_J = std::max(1e-15, 1e-9 * 0.5 * spec.coil.inductance_H * i0 * i0);
   o.maximum_wall_time_s = spec.analysis.maximum_wall_time_s;
+  // Armature: an L-stable step much longer than its snap-over would damp that instability
+  // instead of following it (relay_calibration.cpp); a tenth of the release time bounds it.
+  if (b.armature) o.maximum_step_s = 0.1 * relay_datasheet(spec).release_time_s;
   const Probe p_vsw("switch voltage", vsw);
   const Probe p_coil = Probe::state(c, "coil.current");
   std::vector<EventSpec> ev{EventSpec::maximum("peak", p_vsw, t_off),

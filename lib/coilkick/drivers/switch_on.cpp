@@ -30,6 +30,7 @@ double simulate_operate_time_s(const DriverSpec& spec, const BuiltDriver& built)
   o.energy_tolerance_J = std::max(1e-15, 1e-9 * 0.5 * spec.coil.inductance_H * i_full * i_full);
   o.maximum_wall_time_s = spec.analysis.maximum_wall_time_s;
   o.record_waveforms = false;
+  o.maximum_step_s = 0.05 * relay_datasheet(spec).operate_time_s;  // see switch_off.cpp
   const auto make = engine::EventSpec::crossing("make", engine::Probe::state(c, "coil.gap"), arm.mechanics.make_gap_m,
                                                 engine::Direction::falling, t_on, true);
   const auto r = engine::simulate(c, off, o, {make});

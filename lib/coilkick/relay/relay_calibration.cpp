@@ -14,6 +14,7 @@
 #include "coilkick/engine/operating_point.hpp"
 #include "coilkick/engine/parameter_check.hpp"
 #include "coilkick/engine/transient.hpp"
+#include "coilkick/relay/closed_operating_point.hpp"
 
 namespace coilkick::relay {
 namespace {
@@ -24,7 +25,7 @@ constexpr double kPoleArea_m2 = 20e-6;
 constexpr double kLeakageShare = 0.05;
 constexpr double kContactSpringShare = 0.5;
 constexpr double kDampingRatio = 0.2;
-constexpr double kStopPenetrationShare = 0.01;  // of the over-travel, under the holding force
+constexpr double kStopPenetrationShare = 1e-3;  // of the over-travel, under the holding force
 constexpr double kStopDamping_s_per_m = 2.0;
 constexpr double kForceRiseMargin = 1.05;       // closed-stop spring force at least 5 % above the preload
 constexpr double kDischargeFactor = 19.0;       // disconnected coil discharges into 19·R
@@ -47,13 +48,28 @@ ArmatureCoilParameters shape(const RelayDatasheet& s, double core_gap_m, double 
   // L_m(g) = N²·μ0·A/(g_core + g): the magnetising part of the closed inductance fixes N.
   mg.turns = std::sqrt((1.0 - kLeakageShare) * s.closed_inductance_H * (core_gap_m + me.residual_gap_m) / mu_a);
   const double i_op = s.operate_voltage_V / s.coil_resistance_ohm, i_rel = s.release_voltage_V / s.coil_resistance_ohm;
-  const double f_open = -mg.force_N(i_op, me.open_gap_m);      // preload: pick-up at the open stop
   const double f_closed = -mg.force_N(i_rel, me.residual_gap_m);  // spring force at the closed stop: drop-out
-  const double rise = f_closed - f_open;
   const double travel = me.open_gap_m - me.residual_gap_m;
-  me.spring_preload_N = f_open;
-  me.contact_spring_rate_N_per_m = kContactSpringShare * rise / s.over_travel_m;
-  me.spring_rate_N_per_m = (1.0 - kContactSpringShare) * rise / travel;
+  auto set_preload = [&](double preload) {
+    const double rise = f_closed - preload;
+    me.spring_preload_N = preload;
+    me.contact_spring_rate_N_per_m = kContactSpringShare * rise / s.over_travel_m;
+    me.spring_rate_N_per_m = (1.0 - kContactSpringShare) * rise / travel;
+  };
+  // Pick-up: the preload at which the largest holding current over the travel is I_op. Often
+  // that is at the open stop (preload = ½·I_op²·|dL/dg(open)|, the upper bound); with a small
+  // core reluctance it lies inside the travel and the preload must be lower. The largest holding
+  // current grows with the preload: bisection.
+  double lo = 0.0, hi = std::min(-mg.force_N(i_op, me.open_gap_m), f_closed);
+  set_preload(hi);
+  if (static_operate_current_A(p) > i_op) {
+    for (int it = 0; it < 60; ++it) {
+      const double mid = 0.5 * (lo + hi);
+      set_preload(mid);
+      (static_operate_current_A(p) > i_op ? hi : lo) = mid;
+    }
+    set_preload(lo);
+  }
   me.mass_kg = mass_kg;
   me.damping_N_s_per_m = 2.0 * kDampingRatio * std::sqrt((me.spring_rate_N_per_m + me.contact_spring_rate_N_per_m) * mass_kg);
   const double i_nom = s.nominal_voltage_V / s.coil_resistance_ohm;
@@ -141,6 +157,9 @@ engine::TransientOptions run_options(const ArmatureCoilParameters& p, double vol
   o.current_tolerance_A = 1e-6 * i;
   o.energy_tolerance_J = 1e-9 * 0.5 * p.magnetic.inductance_H(p.mechanics.residual_gap_m) * i * i;
   o.maximum_wall_time_s = 30.0;
+  // An L-stable step much longer than the armature's snap-over time damps that instability
+  // instead of following it (the relay would "hang" at a balance it cannot keep): bound it.
+  o.maximum_step_s = limit_s / 400.0;
   o.record_waveforms = false;
   return o;
 }
@@ -148,9 +167,14 @@ engine::TransientOptions run_options(const ArmatureCoilParameters& p, double vol
 double contact_change_time_s(const engine::Network& net, const ArmatureCoilParameters& p, double voltage_V, double limit_s,
                              double start_gap_m, engine::Direction direction) {
   const engine::Circuit c(net);
-  engine::CircuitState guess = engine::zero_state(c, 0.0);
-  engine::set_state(c, guess, "coil.gap", start_gap_m);
-  const engine::CircuitState start = engine::solve_operating_point(c, guess);
+  engine::CircuitState start;
+  if (direction == engine::Direction::rising) {
+    start = operating_point_with_armatures_closed(net, c, 0.0);  // energised, operated
+  } else {
+    engine::CircuitState guess = engine::guess_state(c, 0.0);
+    engine::set_state(c, guess, "coil.gap", start_gap_m);
+    start = engine::solve_operating_point(c, guess);
+  }
   const auto ev = engine::EventSpec::crossing("contact", engine::Probe::state(c, "coil.gap"), p.mechanics.make_gap_m, direction,
                                               kEdgeAt_s, true);
   const auto r = engine::simulate(c, start, run_options(p, voltage_V, limit_s), {ev});
@@ -197,7 +221,7 @@ double static_operate_current_A(const ArmatureCoilParameters& p) {
   // these over the travel. Scan, then refine around the largest sample by golden section.
   const auto& m = p.mechanics;
   auto need = [&](double g) { return std::sqrt(2.0 * m.spring_force_N(g) / -p.magnetic.inductance_slope_H_per_m(g)); };
-  const int n = 2000;
+  const int n = 400;
   double best_g = m.open_gap_m, best = need(best_g);
   const double step = (m.open_gap_m - m.residual_gap_m) / n;
   for (int k = 0; k <= n; ++k) {

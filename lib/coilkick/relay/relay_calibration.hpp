@@ -7,7 +7,7 @@
 // memory; they set the model's shape, the solved ones its scale):
 //   fixed   residual gap 50 µm, pole area 20 mm², leakage 5 % of the closed inductance, the
 //           contact spring carrying half the spring-force rise over the over-travel, viscous
-//           damping at 0.2 of critical, stops giving 1 % of the over-travel of penetration under
+//           damping at 0.2 of critical, stops giving 0.1 % of the over-travel of penetration under
 //           the holding force at nominal voltage;
 //   solved  turns (closed inductance), spring preload (operate voltage at the open stop),
 //           spring rates (release voltage at the closed stop), moving mass (release time) and
