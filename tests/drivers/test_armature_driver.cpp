@@ -1,0 +1,104 @@
+// The armature model inside a driver: contact opening per clamp, the energy account with the
+// mechanical terms, and the switch-on run for the operate time.
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <map>
+
+#include "../approx.hpp"
+#include "coilkick/relay/relay_calibration.hpp"
+#include "driver_fixture.hpp"
+
+using namespace coilkick;
+
+namespace {
+
+// The relay_case driver (12 V, low-side NPN, physical models) with the demo fan relay's data
+// sheet (invented demo data, models/coils/demo_coils.toml) driving the armature model.
+drivers::DriverSpec armature_case(drivers::ClampKind kind) {
+  auto s = test_support::relay_case(false);
+  s.coil.resistance_at_20C_ohm = 320.0;
+  s.coil.inductance_H = 0.45;
+  s.coil.release_current_A = std::nan("");
+  s.coil.release_voltage_V = 1.8;
+  s.coil.operate_voltage_V = 8.4;
+  s.relay.armature_model = true;
+  s.relay.operate_time_s = 8e-3;
+  s.relay.release_time_s = 2e-3;
+  s.relay.contact_gap_m = 0.4e-3;
+  s.relay.over_travel_m = 0.12e-3;
+  s.analysis.relative_tolerance = 1e-7;
+  s.clamp.kind = kind;
+  return s;
+}
+
+const drivers::SwitchOffResult& run(drivers::ClampKind kind) {
+  static std::map<drivers::ClampKind, drivers::SwitchOffResult> cache;
+  auto it = cache.find(kind);
+  if (it == cache.end()) it = cache.emplace(kind, drivers::simulate_switch_off(armature_case(kind), test_support::catalogue())).first;
+  return it->second;
+}
+
+}  // namespace
+
+TEST_CASE("armature driver: energy balance includes the mechanical terms") {
+  // Physics notes §4.4 and §5: ½·L·I0² plus the supply's input equals the heat of clamp, coil,
+  // switch, armature damping and stops plus what stays stored (field, kinetic, springs).
+  // The issue asks for a residual below 0.1 %; at tolerance 1e-7 it is ~3e-8. The mechanical heat
+  // is ~1 % of ½·L·I0² here, so leaving it out of the account would fail the check.
+  using drivers::ClampKind;
+  for (auto kind : {ClampKind::none, ClampKind::diode, ClampKind::diode_zener, ClampKind::rc_across_coil}) {
+    CAPTURE(drivers::to_string(kind));
+    const auto& r = run(kind);
+    CHECK(r.metrics.get("energy_balance_error") < 1e-3);
+    const auto& e = r.transient->energy();
+    CHECK(e.channel_J("coil.damping") + e.channel_J("coil.stops") > 0.0);  // the mechanical heat is in the account
+    CHECK(!std::isnan(r.metrics.get("contact_open_time_s")));
+  }
+}
+
+TEST_CASE("armature driver: a plain diode opens the contact later and slower than diode + Zener") {
+  // Common practice (physics notes §3.6): a flyback diode holds the coil's flux, so the armature
+  // starts late and is held back while it travels; a Zener in series collapses the current first.
+  // Measured here: diode 4.55 ms at 103.7 mm/s, diode + 15 V Zener 2.53 ms at 105.6 mm/s, none
+  // (switch avalanche) 2.12 ms. The speeds differ little because the calibrated contact spring
+  // drives the first part of the travel in every case.
+  const auto& diode = run(drivers::ClampKind::diode).metrics;
+  const auto& zener = run(drivers::ClampKind::diode_zener).metrics;
+  const auto& none = run(drivers::ClampKind::none).metrics;
+  CHECK(diode.get("contact_open_time_s") > 1.5 * zener.get("contact_open_time_s"));
+  CHECK(zener.get("contact_open_time_s") > none.get("contact_open_time_s"));
+  CHECK(diode.get("armature_speed_at_contact_open_m_per_s") < 0.99 * zener.get("armature_speed_at_contact_open_m_per_s"));
+  // Release-time extension by the diode over the unclamped coil: commonly quoted 2×–10× (physics
+  // notes §3.6, common practice).
+  const double extension = diode.get("contact_open_time_s") / none.get("contact_open_time_s");
+  CHECK(extension > 1.8);
+  CHECK(extension < 10.0);
+  // The contact opens after the coil current has fallen below the release current.
+  CHECK(diode.get("contact_open_time_s") > diode.get("release_time_s"));
+}
+
+TEST_CASE("armature driver: the switch-on run's operate time equals the coil alone on the same voltage") {
+  // The driver's switch-on (logic edge, transistor turning on) against the coil alone on an ideal
+  // source at the on-state coil voltage, with the same (hot) armature parameters. The switch adds
+  // a turn-on delay of well under a microsecond and its voltage drop is already in the coil
+  // voltage: 0.5 % covers the difference of a few µs in 8 ms.
+  auto spec = armature_case(drivers::ClampKind::diode);
+  const auto& r = run(drivers::ClampKind::diode);
+  const auto built = drivers::build_driver_network(spec, test_support::catalogue());
+  const double alone = relay::operate_time_s(*built.armature, r.metrics.get("coil_voltage_on_V"));
+  CHECK(r.metrics.get("operate_time_s") == rel(alone).epsilon(5e-3));
+  // At the data sheet's nominal 12 V and 20 °C the calibration met 8 ms; here the switch drops
+  // ~0.1 V, so slightly later.
+  CHECK(r.metrics.get("operate_time_s") > 8e-3);
+  CHECK(r.metrics.get("operate_time_s") < 9e-3);
+}
+
+TEST_CASE("fixed-coil driver reports no contact metrics") {
+  auto s = armature_case(drivers::ClampKind::diode);
+  s.relay.armature_model = false;
+  const auto r = drivers::simulate_switch_off(s, test_support::catalogue());
+  CHECK(std::isnan(r.metrics.get("contact_open_time_s")));
+  CHECK(std::isnan(r.metrics.get("operate_time_s")));
+  CHECK(r.waveforms.armature_gap_m.size() == 0);
+}
