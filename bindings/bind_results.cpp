@@ -63,6 +63,9 @@ void DefineResults(py::module_& m) {
       .def_property_readonly("clamp_current_A",
                              [](py::object self) { return view(self.cast<const PyRun&>().r->waveforms.clamp_current_A, self); },
                              "current through the first clamp part (A) at time_s")
+      .def_property_readonly("armature_gap_m",
+                             [](py::object self) { return view(self.cast<const PyRun&>().r->waveforms.armature_gap_m, self); },
+                             "armature gap (m) at time_s with the armature model (relay.armature_model); empty otherwise")
       .def(
           "node_voltage_V", [](const PyRun& p, const std::string& node) {
             const Eigen::VectorXd v = p.r->transient->node_voltage_V(node);

@@ -53,7 +53,8 @@ def scenario_from_dict(d: Dict[str, Any], models_dir: str = "", name: str = "<di
 
 class RunResult:
     """One switch-off. metrics: AttrDict (SI unit in each name); checks: list of AttrDict;
-    time_s, switch_voltage_V, coil_current_A, clamp_current_A: numpy arrays sharing the result's memory."""
+    time_s, switch_voltage_V, coil_current_A, clamp_current_A, armature_gap_m (armature model only,
+    else empty): numpy arrays sharing the result's memory."""
 
     def __init__(self, core):
         self._core = core
@@ -65,6 +66,8 @@ class RunResult:
     switch_voltage_V = property(lambda self: self._core.switch_voltage_V, doc="voltage across the switch (V)")
     coil_current_A = property(lambda self: self._core.coil_current_A, doc="coil current (A)")
     clamp_current_A = property(lambda self: self._core.clamp_current_A, doc="current through the first clamp part (A)")
+    armature_gap_m = property(lambda self: self._core.armature_gap_m,
+                              doc="armature gap (m) with the armature model; empty array otherwise")
     switch_off_at_s = property(lambda self: self._core.switch_off_at_s, doc="start of the switch-off edge (s)")
 
     def node_voltage_V(self, node: str) -> np.ndarray:

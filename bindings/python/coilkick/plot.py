@@ -35,13 +35,17 @@ def _results(items):
 
 
 def switch_off(items, t_end_s=None, title=None):
-    """Switch voltage (top) and coil current (bottom) against the time after switch-off, one line per result.
-    items: comparison rows, {label: RunResult}, or [(label, RunResult)]. Returns the figure."""
+    """Switch voltage (top) and coil current against the time after switch-off, one line per result;
+    with the armature model a third panel shows the armature gap, each curve marked where the contact
+    opens. items: comparison rows, {label: RunResult}, or [(label, RunResult)]. Returns the figure."""
     plt = _plt()
     pairs = _results(items)
-    fig, (av, ai) = plt.subplots(2, 1, sharex=True, figsize=(8, 6))
+    armature = any(len(r.armature_gap_m) for _, r in pairs)
+    fig, axes = plt.subplots(3 if armature else 2, 1, sharex=True, figsize=(8, 8.5 if armature else 6))
+    av, ai = axes[0], axes[1]
     if t_end_s is None:
         t = [r.metrics["current_decay_time_10pct_s"] for _, r in pairs]
+        t += [r.metrics.get("contact_open_time_s", float("nan")) for _, r in pairs]
         t = [x for x in t if np.isfinite(x)]
         t_end_s = 1.3 * max(t) if t else None
     for k, (label, r) in enumerate(pairs):
@@ -50,13 +54,23 @@ def switch_off(items, t_end_s=None, title=None):
         c = PALETTE[k % len(PALETTE)]
         av.plot(tt[keep], r.switch_voltage_V[keep], color=c, label=label, linewidth=1.5)
         ai.plot(tt[keep], r.coil_current_A[keep] * 1e3, color=c, linewidth=1.5)
+        if armature and len(r.armature_gap_m):
+            axes[2].plot(tt[keep], r.armature_gap_m[keep] * 1e3, color=c, linewidth=1.5)
+            t_open = r.metrics.get("contact_open_time_s", float("nan"))
+            if np.isfinite(t_open):
+                gap_open = np.interp(t_open * 1e3, tt, r.armature_gap_m) * 1e3
+                axes[2].plot([t_open * 1e3], [gap_open], marker="o", color=c, markersize=5)
+    if armature:
+        axes[2].set_ylabel("armature gap (mm)")
+        axes[2].set_xlabel("time after the start of switch-off (ms); dot: contact opens")
     rating = next((r.metrics["switch_voltage_rating_V"] for _, r in pairs), float("nan"))
     if np.isfinite(rating):
         av.axhline(rating, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="switch rating")
     av.set_ylabel("switch voltage (V)")
     ai.set_ylabel("coil current (mA)")
-    ai.set_xlabel("time after the start of switch-off (ms)")
-    for ax in (av, ai):
+    if not armature:
+        ai.set_xlabel("time after the start of switch-off (ms)")
+    for ax in axes:
         _style(ax)
     av.legend(fontsize=8, frameon=False, loc="upper right")
     if title:
@@ -71,12 +85,19 @@ def comparison(rows, title=None):
     pairs = _results(rows)
     labels = [k for k, _ in pairs]
     release = [r.metrics["release_time_s"] * 1e3 for _, r in pairs]
+    opens = [r.metrics.get("contact_open_time_s", float("nan")) * 1e3 for _, r in pairs]
     peak = [r.metrics["switch_voltage_peak_V"] for _, r in pairs]
     fig, (a1, a2) = plt.subplots(1, 2, figsize=(10, 4))
     y = np.arange(len(labels))
-    a1.barh(y, release, color=PALETTE[0])
+    if np.any(np.isfinite(opens)):
+        # Armature model: coil current below release (proxy) and the contact actually opening.
+        a1.barh(y - 0.2, release, height=0.4, color=PALETTE[0], label="current below release")
+        a1.barh(y + 0.2, opens, height=0.4, color=PALETTE[2], label="contact opens")
+        a1.legend(fontsize=8, frameon=False)
+    else:
+        a1.barh(y, release, color=PALETTE[0])
     a1.set_yticks(y, labels)
-    a1.set_xlabel("release time (ms)")
+    a1.set_xlabel("time after switch-off (ms)")
     a2.barh(y, peak, color=PALETTE[1])
     a2.set_yticks(y, [""] * len(labels))
     a2.set_xlabel("peak switch voltage (V)")
