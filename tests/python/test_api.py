@@ -143,3 +143,28 @@ def test_faults_grouped_by_symptom(relay_dict):
     df = rep.readings()
     assert set(df.columns) >= {"node", "healthy_on_V", "faulty_on_V", "healthy_off_V", "faulty_off_V"}
     assert rep.healthy.coil_current_on_A > 0.02
+
+
+def test_armature_model_from_a_dict_gives_contact_metrics_and_the_gap_waveform(relay_dict):
+    # The relay_dict coil with data-sheet values of a relay (invented test values).
+    relay_dict["coil"].pop("release_current")
+    relay_dict["coil"].update({"release_voltage": "1.8 V", "operate_voltage": "8.4 V"})
+    relay_dict["relay"] = {"armature_model": True, "operate_time": "10 ms", "release_time": "2.5 ms",
+                           "contact_gap": "0.4 mm", "over_travel": "0.1 mm"}
+    r = coilkick.run(coilkick.scenario_from_dict(relay_dict))
+    gap = r.armature_gap_m
+    assert gap.shape == r.time_s.shape and not gap.flags["OWNDATA"]
+    # Starts on the closed stop (within its 0.1 µm penetration of the 50 µm residual gap), ends past the contact.
+    assert abs(gap[0] - 50e-6) < 0.2e-6
+    assert gap[-1] > 50e-6 + 0.1e-3
+    m = r.metrics
+    assert m.contact_open_time_s > m.release_time_s > 0
+    assert m.armature_speed_at_contact_open_m_per_s > 0
+    assert 0.9 * 10e-3 < m.operate_time_s < 1.2 * 10e-3  # at 12 V nominal the calibration met 10 ms
+    assert {c.name for c in r.checks} >= {"relay_calibration"}
+
+
+def test_armature_model_without_its_times_names_the_missing_key(relay_dict):
+    relay_dict["relay"] = {"armature_model": True}
+    with pytest.raises(coilkick.ScenarioError, match="relay.armature_model.*operate_voltage_V"):
+        coilkick.scenario_from_dict(relay_dict)

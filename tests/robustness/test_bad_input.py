@@ -76,6 +76,12 @@ FILE_ROWS = [
     ("tolerance without its pair", 0, '[tolerances]\ncoil_temperature_min = "-10 degC"', 22, "give both"),
     ("spread out of range", 0, '[tolerances]\ncoil_resistance = "60 %"', 22, "relative spread"),
     ("temperature out of range", 0, 'device_temperature = "500 degC"', 21, "device_temperature_C"),
+    ("armature model without its data", 0, "[relay]\narmature_model = true", 22, "operate_voltage_V is needed by the armature model"),
+    ("time for a length", 0, '[relay]\ncontact_gap = "0.4 ms"', 22, "is a time, but a length"),
+    ("negative over-travel", 0, '[relay]\nover_travel = "-0.1 mm"', 22, "over_travel_m must be inside"),
+    ("misspelt relay key", 0, "[relay]\narmature = true", 22, "did you mean 'relay.armature_model'"),
+    ("relay data no armature can meet", 10, 'release_voltage = "0.1 V"\noperate_voltage = "8.4 V"\n[relay]\n'
+     'armature_model = true\noperate_time = "8 ms"\nrelease_time = "2 ms"', 13, "is too low against operate_voltage_V"),
 ]
 
 

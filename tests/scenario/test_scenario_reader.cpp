@@ -121,6 +121,11 @@ TEST_CASE("bad scenario inputs: one clear message with file:line:column each") {
       {"spread out of range", 0, "[tolerances]\ncoil_resistance = \"60 %\"", 22, "must be a relative spread in [0, 50 %)"},
       {"top-level unknown key", 1, "title = \"x\"", 1, "unknown section or key"},
       {"section given as a value", 0, "[tolerances]\n[tolerances.inner]", 22, "unknown key"},
+      {"armature model without operate voltage", 0, "[relay]\narmature_model = true", 22,
+       "key 'relay.armature_model': relay: operate_voltage_V is needed by the armature model"},
+      {"time for a length", 0, "[relay]\ncontact_gap = \"0.4 ms\"", 22, "is a time, but a length (m) is expected"},
+      {"negative over-travel", 0, "[relay]\nover_travel = \"-0.1 mm\"", 22, "key 'relay.over_travel': relay: over_travel_m must be inside"},
+      {"misspelt relay key", 0, "[relay]\narmature = true", 22, "unknown key (did you mean 'relay.armature_model'?)"},
   };
   CHECK(rows.size() >= 30);
   int k = 0;

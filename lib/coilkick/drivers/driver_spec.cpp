@@ -130,6 +130,11 @@ void check_driver_spec(const DriverSpec& s) {
     require_positive("clamp", "snubber_resistance_ohm", s.clamp.snubber_resistance_ohm);
     require_positive("clamp", "snubber_capacitance_F", s.clamp.snubber_capacitance_F);
   }
+  engine::require_open_range("relay", "contact_gap_m", s.relay.contact_gap_m, 0.0, 0.05);
+  engine::require_open_range("relay", "over_travel_m", s.relay.over_travel_m, 0.0, 0.05);
+  if (!std::isnan(s.relay.operate_time_s)) engine::require_open_range("relay", "operate_time_s", s.relay.operate_time_s, 0.0, 10.0);
+  if (!std::isnan(s.relay.release_time_s)) engine::require_open_range("relay", "release_time_s", s.relay.release_time_s, 0.0, 10.0);
+  if (!std::isnan(s.relay.nominal_voltage_V)) require_positive("relay", "nominal_voltage_V", s.relay.nominal_voltage_V);
   if (s.relay.armature_model) relay_datasheet(s).check();
   engine::require_open_range("analysis", "device_temperature_C", s.analysis.device_temperature_C, -60.0, 250.0);
   require_non_negative("analysis", "stop_time_s", s.analysis.stop_time_s);

@@ -436,6 +436,8 @@ class Reader {
           key = name;
         }
       }
+      // A relay value the armature model lacks (or cannot meet): point at the switch that asks for it.
+      if (key.empty() && msg.rfind("relay:", 0) == 0 && seen_.count("relay.armature_model")) key = "relay.armature_model";
       if (key.empty()) {
         // A part parameter set by an override: "...: forward_beta must be ..." names it.
         for (const auto& o : override_tables()) {
@@ -467,7 +469,6 @@ class Reader {
         key = seen_.count("coil.release_current") ? "coil.release_current" : "coil.release_voltage";
       }
       if (key.empty() && msg.find("override") != std::string::npos) key = "switch.overrides";
-      if (key.empty() && msg.rfind("relay:", 0) == 0) key = "relay.armature_model";
       const SourceLocation loc = key.empty() ? SourceLocation{file_, 1, 1} : at(key);
       throw ScenarioError(loc.str() + ": " + (key.empty() ? "" : "key '" + key + "': ") + msg);
     }
