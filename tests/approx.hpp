@@ -5,3 +5,9 @@
 #include <doctest/doctest.h>
 
 inline doctest::Approx rel(double expected) { return doctest::Approx(expected).scale(0.0); }
+
+// Relative `relative`, but never tighter than `absolute` (in the quantity's unit): for values
+// that may be exactly zero. doctest's test is |a − b| < relative·(scale + max(|a|, |b|)).
+inline doctest::Approx rel_or_abs(double expected, double relative, double absolute) {
+  return doctest::Approx(expected).epsilon(relative).scale(absolute / relative);
+}

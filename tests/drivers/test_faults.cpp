@@ -3,6 +3,8 @@
 // Riedel, "Electric Circuits", 10th ed., ch. 4, node-voltage method, chapter from memory).
 #include <doctest/doctest.h>
 
+#include "../approx.hpp"
+
 #include <cmath>
 
 #include "coilkick/drivers/faults.hpp"
@@ -57,41 +59,41 @@ TEST_CASE("fault readings of a low-side NPN driver against hand calculation") {
   // Tolerances 1e-6 relative (or 1e-6 V): the 1e-12 S minimum conductances and the 1 Tohm "open"
   // shift the hand values by less than 1e-9.
   const auto& h = rep.healthy;
-  CHECK(h.coil_current_on_A == doctest::Approx(kIcoil).epsilon(1e-6));
-  CHECK(on(h, "switch") == doctest::Approx(0.05 + 2.0 * kIcoil).epsilon(1e-6));
-  CHECK(on(h, "base") == doctest::Approx(0.65 + 10.0 * kIb).epsilon(1e-6));
-  CHECK(on(h, "logic_out") == doctest::Approx(5.0 - 50.0 * kIb).epsilon(1e-6));
-  CHECK(off(h, "switch") == doctest::Approx(12.0).epsilon(1e-6));
+  CHECK(h.coil_current_on_A == rel(kIcoil).epsilon(1e-6));
+  CHECK(on(h, "switch") == rel(0.05 + 2.0 * kIcoil).epsilon(1e-6));
+  CHECK(on(h, "base") == rel(0.65 + 10.0 * kIb).epsilon(1e-6));
+  CHECK(on(h, "logic_out") == rel(5.0 - 50.0 * kIb).epsilon(1e-6));
+  CHECK(off(h, "switch") == rel(12.0).epsilon(1e-6));
   CHECK(std::abs(h.coil_current_off_A) < 1e-9);
 
   // Base resistor open: no base current, the switch stays off, the coil never operates. (The
   // 1 Tohm "open" still feeds 4 pA into the base, which the pwl junction takes at its knee.)
   const auto& rb = find(rep, "base_resistor", "open");
-  CHECK(on(rb, "base") == doctest::Approx(0.65).epsilon(1e-6));
-  CHECK(on(rb, "logic_out") == doctest::Approx(5.0).epsilon(1e-6));
-  CHECK(on(rb, "switch") == doctest::Approx(12.0).epsilon(1e-6));
+  CHECK(on(rb, "base") == rel(0.65).epsilon(1e-6));
+  CHECK(on(rb, "logic_out") == rel(5.0).epsilon(1e-6));
+  CHECK(on(rb, "switch") == rel(12.0).epsilon(1e-6));
   CHECK(has(rb, "relay never operates"));
 
   // Clamp diode shorted (10 mohm across the coil): the transistor leaves saturation and carries
   // β·I_B from the supply through the short: V_sw = 12 − β·I_B/(1/0.01 + 1/400).
   const auto& ds = find(rep, "clamp_diode", "shorted");
   const double ic = 200.0 * kIb;
-  CHECK(on(ds, "switch") == doctest::Approx(12.0 - ic / (100.0 + 1.0 / 400.0)).epsilon(1e-6));
-  CHECK(ds.coil_current_on_A == doctest::Approx((12.0 - on(ds, "switch")) / 400.0).epsilon(1e-6));
-  CHECK(ds.supply_current_on_A == doctest::Approx(ic + kIb * 0.0).epsilon(1e-3));  // supply carries I_C
+  CHECK(on(ds, "switch") == rel(12.0 - ic / (100.0 + 1.0 / 400.0)).epsilon(1e-6));
+  CHECK(ds.coil_current_on_A == rel((12.0 - on(ds, "switch")) / 400.0).epsilon(1e-6));
+  CHECK(ds.supply_current_on_A == rel(ic + kIb * 0.0).epsilon(1e-3));  // supply carries I_C
   CHECK(has(ds, "relay never operates"));
   CHECK(has(ds, "driver part overheats"));  // ~10 W in a 0.5 W transistor
 
   // Collector–emitter shorted: the coil stays energised with the drive off.
   const auto& ce = find(rep, "switch", "collector-emitter shorted");
-  CHECK(ce.coil_current_off_A == doctest::Approx(12.0 / (400.0 + 0.01)).epsilon(1e-6));
-  CHECK(off(ce, "switch") == doctest::Approx(0.01 * 12.0 / 400.01).epsilon(1e-4));
+  CHECK(ce.coil_current_off_A == rel(12.0 / (400.0 + 0.01)).epsilon(1e-6));
+  CHECK(off(ce, "switch") == rel(0.01 * 12.0 / 400.01).epsilon(1e-4));
   CHECK(has(ce, "relay never releases"));
 
   // Base open: the external base node sits at the logic level, nothing flows.
   const auto& bo = find(rep, "switch", "base open");
-  CHECK(on(bo, "base") == doctest::Approx(5.0).epsilon(1e-6));
-  CHECK(on(bo, "switch") == doctest::Approx(12.0).epsilon(1e-6));
+  CHECK(on(bo, "base") == rel(5.0).epsilon(1e-6));
+  CHECK(on(bo, "switch") == rel(12.0).epsilon(1e-6));
   CHECK(has(bo, "relay never operates"));
 
   // Collector–base junction leaky (100 kohm), drive off: the leak through coil, 100 kohm and
@@ -99,41 +101,41 @@ TEST_CASE("fault readings of a low-side NPN driver against hand calculation") {
   // 0.65 V knee, so the transistor stays off.
   const auto& lk = find(rep, "switch", "collector-base junction leaky");
   const double il = 12.0 / (400.0 + 100e3 + 1050.0);
-  CHECK(lk.coil_current_off_A == doctest::Approx(il).epsilon(1e-6));
-  CHECK(off(lk, "base") == doctest::Approx(1050.0 * il).epsilon(1e-6));
-  CHECK(off(lk, "switch") == doctest::Approx(12.0 - 400.0 * il).epsilon(1e-6));
+  CHECK(lk.coil_current_off_A == rel(il).epsilon(1e-6));
+  CHECK(off(lk, "base") == rel(1050.0 * il).epsilon(1e-6));
+  CHECK(off(lk, "switch") == rel(12.0 - 400.0 * il).epsilon(1e-6));
 
   // Coil open: no current; the saturated transistor holds the node at its knee.
   const auto& co = find(rep, "coil", "open");
   CHECK(std::abs(co.coil_current_on_A) < 1e-9);
-  CHECK(on(co, "switch") == doctest::Approx(0.05).epsilon(1e-3));
+  CHECK(on(co, "switch") == rel(0.05).epsilon(1e-3));
   CHECK(has(co, "relay never operates"));
 
   // 30 % of the turns shorted: R falls to 280 ohm, more current, a hotter coil.
   const auto& st = find(rep, "coil", "30 % of turns shorted");
-  CHECK(st.coil_current_on_A == doctest::Approx((12.0 - 0.05) / (280.0 + 2.0)).epsilon(1e-6));
+  CHECK(st.coil_current_on_A == rel((12.0 - 0.05) / (280.0 + 2.0)).epsilon(1e-6));
   CHECK(has(st, "driver part overheats"));
 
   // Supply at 75 %: 9 V.
   const auto& lo = find(rep, "supply", "low (75 %)");
-  CHECK(lo.coil_current_on_A == doctest::Approx((9.0 - 0.05) / 402.0).epsilon(1e-6));
-  CHECK(on(lo, "supply") == doctest::Approx(9.0));
+  CHECK(lo.coil_current_on_A == rel((9.0 - 0.05) / 402.0).epsilon(1e-6));
+  CHECK(on(lo, "supply") == rel(9.0));
 
   // Clamp diode open: every switch-off drives the transistor into breakdown.
   const auto& dopen = find(rep, "clamp_diode", "open");
   CHECK(has(dopen, "driver part overheats"));
   // The part's 60 V breakdown line with its 20 ohm dynamic resistance at 30 mA: about 60.6 V
   // (2 % allows the knee's curvature).
-  CHECK(dopen.switch_off.get("switch_voltage_peak_V") == doctest::Approx(60.0 + 20.0 * kIcoil).epsilon(2e-2));
+  CHECK(dopen.switch_off.get("switch_voltage_peak_V") == rel(60.0 + 20.0 * kIcoil).epsilon(2e-2));
 }
 
 TEST_CASE("healthy fault readings equal the on-state check of the switch-off run") {
   const DriverSpec s = hand_case();
   const auto rep = analyse_faults(s, test_support::catalogue());
   const auto r = simulate_switch_off(s, test_support::catalogue());
-  CHECK(rep.healthy.coil_current_on_A == doctest::Approx(r.metrics.get("coil_current_at_switch_off_A")).epsilon(1e-9));
-  CHECK(on(rep.healthy, "switch") == doctest::Approx(r.metrics.get("switch_saturation_voltage_V")).epsilon(1e-9));
-  CHECK(rep.healthy.switch_off.get("release_time_s") == doctest::Approx(r.metrics.get("release_time_s")).epsilon(1e-12));
+  CHECK(rep.healthy.coil_current_on_A == rel(r.metrics.get("coil_current_at_switch_off_A")).epsilon(1e-9));
+  CHECK(on(rep.healthy, "switch") == rel(r.metrics.get("switch_saturation_voltage_V")).epsilon(1e-9));
+  CHECK(rep.healthy.switch_off.get("release_time_s") == rel(r.metrics.get("release_time_s")).epsilon(1e-12));
 }
 
 TEST_CASE("every fault of every catalogue topology runs without solver failure") {

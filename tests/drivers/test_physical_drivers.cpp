@@ -1,6 +1,8 @@
 // Drivers with the physical device models.
 #include <doctest/doctest.h>
 
+#include "../approx.hpp"
+
 #include <cmath>
 
 #include "coilkick/drivers/compare.hpp"
@@ -24,11 +26,11 @@ TEST_CASE("on-state of a well-driven small-signal NPN switch (common practice) a
   // Hand calculation (nodal analysis of the base loop and the coil loop):
   // I_B = (V_logic − V_BE)/(R_out + R_b), I_C = (V_s − V_CE)/R_coil.
   const double ib = (5.0 - vbe) / (50.0 + 1e3), ic = (12.0 - vce) / 400.0;
-  CHECK(res.metrics.get("drive_current_A") == doctest::Approx(ib).epsilon(1e-6));
-  CHECK(res.metrics.get("coil_current_at_switch_off_A") == doctest::Approx(ic).epsilon(1e-6));
-  CHECK(res.metrics.get("forced_beta") == doctest::Approx(ic / ib).epsilon(1e-5));
-  CHECK(res.metrics.get("logic_pin_current_A") == doctest::Approx(ib).epsilon(1e-6));
-  CHECK(res.metrics.get("coil_voltage_on_V") == doctest::Approx(12.0 - vce).epsilon(1e-9));
+  CHECK(res.metrics.get("drive_current_A") == rel(ib).epsilon(1e-6));
+  CHECK(res.metrics.get("coil_current_at_switch_off_A") == rel(ic).epsilon(1e-6));
+  CHECK(res.metrics.get("forced_beta") == rel(ic / ib).epsilon(1e-5));
+  CHECK(res.metrics.get("logic_pin_current_A") == rel(ib).epsilon(1e-6));
+  CHECK(res.metrics.get("coil_voltage_on_V") == rel(12.0 - vce).epsilon(1e-9));
   // The switch turns off within microseconds: storage of the saturated transistor plus its fall.
   CHECK(res.metrics.get("switch_off_delay_s") > 10e-9);
   CHECK(res.metrics.get("switch_off_delay_s") < 5e-6);
@@ -100,7 +102,7 @@ TEST_CASE("IEC 60028 copper tempco: a hot coil draws less current and the releas
   // R(85 °C) = 400·(1 + 0.00393·65) = 502.2 ohm (IEC 60028 coefficient 0.00393 /K at 20 °C).
   const double r_hot = 400.0 * (1.0 + 0.00393 * 65.0);
   const double vce = hot.metrics.get("switch_saturation_voltage_V");
-  CHECK(hot.metrics.get("coil_current_at_switch_off_A") == doctest::Approx((12.0 - vce) / r_hot).epsilon(1e-6));
+  CHECK(hot.metrics.get("coil_current_at_switch_off_A") == rel((12.0 - vce) / r_hot).epsilon(1e-6));
 }
 
 TEST_CASE("bad driver descriptions name the field") {

@@ -8,6 +8,8 @@
 // the 1 mΩ segments shift V_c by 4e-5 V, and the engine's 1 pF node strays hold ~1e-6 of the energy.
 #include <doctest/doctest.h>
 
+#include "../approx.hpp"
+
 #include <cmath>
 
 #include "coilkick/devices/bjt.hpp"
@@ -36,40 +38,40 @@ TEST_CASE("constant-voltage clamps across the coil: release time and peak switch
     CAPTURE(to_string(row.kind));
     const auto res = run(row.kind);
     const double i0 = res.metrics.get("coil_current_at_switch_off_A");
-    CHECK(res.metrics.get("release_time_s") == doctest::Approx(threshold_time(l / r, i0, ith, row.vc / r)).epsilon(1e-3));
-    CHECK(res.metrics.get("switch_voltage_peak_V") == doctest::Approx(vs + row.vc).epsilon(1e-3));
+    CHECK(res.metrics.get("release_time_s") == rel(threshold_time(l / r, i0, ith, row.vc / r)).epsilon(1e-3));
+    CHECK(res.metrics.get("switch_voltage_peak_V") == rel(vs + row.vc).epsilon(1e-3));
     // The clamp carries the whole coil current at the instant of switch-off.
-    CHECK(res.metrics.get("clamp_current_peak_A") == doctest::Approx(i0).epsilon(1e-3));
+    CHECK(res.metrics.get("clamp_current_peak_A") == rel(i0).epsilon(1e-3));
     // Energy into the clamp: V_c·Q with Q = τ·[I0 − (V_c/R)·ln(1 + R·I0/V_c)] (reference list §1.1).
     const double q = l / r * (i0 - row.vc / r * std::log(1.0 + r * i0 / row.vc));
-    CHECK(res.metrics.get("clamp_energy_J") == doctest::Approx(row.vc * q).epsilon(2e-3));
+    CHECK(res.metrics.get("clamp_energy_J") == rel(row.vc * q).epsilon(2e-3));
     CHECK(res.metrics.get("energy_balance_error") < 1e-3);
   }
 }
 
 TEST_CASE("hand-evaluated test vector: diode + 15 V Zener releases a 30 mA coil to 3 mA in 0.741 ms") {
   // Reference list §1.8, case A (12 V, 400 ohm, 0.6 H, 30 mA, V_c = 15.7 V): 0.741178187 ms.
-  CHECK(threshold_time(1.5e-3, 0.03, 3e-3, 15.7 / 400.0) == doctest::Approx(0.741178187e-3).epsilon(1e-8));
+  CHECK(threshold_time(1.5e-3, 0.03, 3e-3, 15.7 / 400.0) == rel(0.741178187e-3).epsilon(1e-8));
 }
 
 TEST_CASE("diode + resistor: modified time constant and peak V_s + V_F + R_s·I0") {
   const double vs = 12.0, r = 400.0, rs = 400.0, l = 0.6, ith = 3e-3, vf = 0.7;
   const auto res = run(ClampKind::diode_resistor);
   const double i0 = res.metrics.get("coil_current_at_switch_off_A");
-  CHECK(res.metrics.get("release_time_s") == doctest::Approx(threshold_time(l / (r + rs), i0, ith, vf / (r + rs))).epsilon(1e-3));
-  CHECK(res.metrics.get("switch_voltage_peak_V") == doctest::Approx(vs + vf + rs * i0).epsilon(1e-3));
+  CHECK(res.metrics.get("release_time_s") == rel(threshold_time(l / (r + rs), i0, ith, vf / (r + rs))).epsilon(1e-3));
+  CHECK(res.metrics.get("switch_voltage_peak_V") == rel(vs + vf + rs * i0).epsilon(1e-3));
 }
 
 TEST_CASE("TVS across the switch: the coil sees V_cl − V_s, the supply adds energy") {
   const double vs = 12.0, r = 400.0, l = 0.6, ith = 3e-3, vcl = 33.0;
   const auto res = run(ClampKind::tvs_across_switch);
   const double i0 = res.metrics.get("coil_current_at_switch_off_A");
-  CHECK(res.metrics.get("release_time_s") == doctest::Approx(threshold_time(l / r, i0, ith, (vcl - vs) / r)).epsilon(1e-3));
-  CHECK(res.metrics.get("switch_voltage_peak_V") == doctest::Approx(vcl).epsilon(1e-3));
+  CHECK(res.metrics.get("release_time_s") == rel(threshold_time(l / r, i0, ith, (vcl - vs) / r)).epsilon(1e-3));
+  CHECK(res.metrics.get("switch_voltage_peak_V") == rel(vcl).epsilon(1e-3));
   // E_clamp = V_cl·Q > ½·L·I0² (reference list §1.2): the clamp also takes energy from the supply.
   const double a = (vcl - vs) / r;
   const double q = l / r * (i0 - a * std::log(1.0 + i0 / a));
-  CHECK(res.metrics.get("clamp_energy_J") == doctest::Approx(vcl * q).epsilon(2e-3));
+  CHECK(res.metrics.get("clamp_energy_J") == rel(vcl * q).epsilon(2e-3));
   CHECK(res.metrics.get("clamp_energy_J") > 0.5 * l * i0 * i0);
 }
 
@@ -84,9 +86,9 @@ TEST_CASE("active clamp: the switch holds V_Z + V_F + V_BE and takes the energy"
   for (int k = 0; k < 20; ++k) vbe = seg.be_knee_V + seg.be_resistance_ohm * (i0 / seg.beta_f);
   const double vcl = 15.0 + 0.7 + vbe;
   // 0.5 %: V_BE moves with the decaying current through r_be (a few mV of 16.4 V).
-  CHECK(res.metrics.get("switch_voltage_peak_V") == doctest::Approx(vcl).epsilon(5e-3));
+  CHECK(res.metrics.get("switch_voltage_peak_V") == rel(vcl).epsilon(5e-3));
   CHECK(res.metrics.get("release_time_s") ==
-        doctest::Approx(threshold_time(0.6 / 400.0, i0, 3e-3, (vcl - 12.0) / 400.0)).epsilon(5e-3));
+        rel(threshold_time(0.6 / 400.0, i0, 3e-3, (vcl - 12.0) / 400.0)).epsilon(5e-3));
   CHECK(res.metrics.get("switch_energy_J") > 0.9 * 0.5 * 0.6 * i0 * i0);  // the energy ends in the switch
 }
 
@@ -95,11 +97,11 @@ TEST_CASE("no clamp: the switch breaks down and ½·L·I0² (plus supply energy)
   const auto res = run(ClampKind::none);
   const double i0 = res.metrics.get("coil_current_at_switch_off_A");
   const double vbr = 60.0;  // the catalogue part's collector–emitter breakdown (flat in this test)
-  CHECK(res.metrics.get("switch_voltage_peak_V") == doctest::Approx(vbr).epsilon(1e-3));
+  CHECK(res.metrics.get("switch_voltage_peak_V") == rel(vbr).epsilon(1e-3));
   // Energy balance of the decay at constant V_cl (reference list §1.2): E_R = E0 − (V_cl − V_s)·Q
   // and E_switch = V_cl·Q, so E_switch = V_cl/(V_cl − V_s)·(E0 − E_R).
   const double e0 = 0.5 * l * i0 * i0, e_r = res.metrics.get("coil_resistance_energy_J");
-  CHECK(res.metrics.get("switch_energy_J") == doctest::Approx(vbr / (vbr - vs) * (e0 - e_r)).epsilon(2e-3));
+  CHECK(res.metrics.get("switch_energy_J") == rel(vbr / (vbr - vs) * (e0 - e_r)).epsilon(2e-3));
   CHECK(res.metrics.get("switch_energy_J") > e0);
   CHECK(res.metrics.get("energy_balance_error") < 1e-3);
 }
@@ -112,7 +114,7 @@ TEST_CASE("plain diode releases several times slower than diode + Zener (common 
   CHECK(ratio < 10.0);
   const double i0 = slow.metrics.get("coil_current_at_switch_off_A");
   const double expect = threshold_time(1.5e-3, i0, 3e-3, 0.7 / 400.0) / threshold_time(1.5e-3, i0, 3e-3, 15.7 / 400.0);
-  CHECK(ratio == doctest::Approx(expect).epsilon(2e-3));
+  CHECK(ratio == rel(expect).epsilon(2e-3));
 }
 
 namespace {
@@ -155,16 +157,16 @@ TEST_CASE("RC snubber across the coil and across the switch: second-order peak, 
         t_pk = t;
       }
     }
-    CHECK(res.metrics.get("switch_voltage_peak_V") == doctest::Approx(v_pk).epsilon(1e-3));
+    CHECK(res.metrics.get("switch_voltage_peak_V") == rel(v_pk).epsilon(1e-3));
     // The maximum is flat: 1 % on its time (δt ~ √(2·δv/|v''|)).
-    CHECK(res.metrics.get("switch_voltage_peak_time_s") == doctest::Approx(t_pk).epsilon(1e-2));
-    CHECK(res.metrics.get("ringing_frequency_Hz") == doctest::Approx(c.wd() / (2 * M_PI)).epsilon(1e-3));
+    CHECK(res.metrics.get("switch_voltage_peak_time_s") == rel(t_pk).epsilon(1e-2));
+    CHECK(res.metrics.get("ringing_frequency_Hz") == rel(c.wd() / (2 * M_PI)).epsilon(1e-3));
   }
   // Hand-evaluated reference (list §1.8): 470 ohm + 100 nF on the 30 mA coil peaks at 67.6587807 V.
   const Rlc ref{12.0, 870.0, 0.6, 100e-9, 0.03, 0.0, 470.0};
   double best = 0.0;
   for (int k = 1; k < 100000; ++k) best = std::max(best, ref.switch_voltage(k * 1e-8));
-  CHECK(best == doctest::Approx(67.6587807).epsilon(1e-6));
+  CHECK(best == rel(67.6587807).epsilon(1e-6));
 }
 
 TEST_CASE("high-side and low-side versions of the same coil and clamp give the same decay") {
@@ -177,8 +179,8 @@ TEST_CASE("high-side and low-side versions of the same coil and clamp give the s
     const auto a = run(kind, low), b = run(kind, high);
     // The on-state currents differ by the switches' saturation voltages (~1e-3 of 12 V); the
     // release times then differ by the same order.
-    CHECK(b.metrics.get("coil_current_at_switch_off_A") == doctest::Approx(a.metrics.get("coil_current_at_switch_off_A")).epsilon(5e-3));
-    CHECK(b.metrics.get("release_time_s") == doctest::Approx(a.metrics.get("release_time_s")).epsilon(1e-2));
-    CHECK(b.metrics.get("switch_voltage_peak_V") == doctest::Approx(a.metrics.get("switch_voltage_peak_V")).epsilon(1e-2));
+    CHECK(b.metrics.get("coil_current_at_switch_off_A") == rel(a.metrics.get("coil_current_at_switch_off_A")).epsilon(5e-3));
+    CHECK(b.metrics.get("release_time_s") == rel(a.metrics.get("release_time_s")).epsilon(1e-2));
+    CHECK(b.metrics.get("switch_voltage_peak_V") == rel(a.metrics.get("switch_voltage_peak_V")).epsilon(1e-2));
   }
 }

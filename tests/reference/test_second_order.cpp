@@ -8,6 +8,8 @@
 // e^(−α·2π/ωd)).
 #include <doctest/doctest.h>
 
+#include "../approx.hpp"
+
 #include <cmath>
 
 #include "coilkick/coilkick.hpp"
@@ -50,28 +52,28 @@ TEST_CASE("series RLC: peak voltage, time of peak, ringing frequency and damping
   const double wd = std::sqrt(w0 * w0 - alpha * alpha);
   const double t_pk = (M_PI - std::atan(wd / alpha)) / wd;
   const double v_pk = p.vs + p.i0 * std::sqrt(p.l / p.c) * std::exp(-alpha * t_pk);
-  CHECK(v_pk == doctest::Approx(76.1802809).epsilon(1e-8));
-  CHECK(t_pk == doctest::Approx(406.143313e-6).epsilon(1e-8));
+  CHECK(v_pk == rel(76.1802809).epsilon(1e-8));
+  CHECK(t_pk == rel(406.143313e-6).epsilon(1e-8));
 
   Circuit* c = nullptr;
   const auto res = run_rlc(p, 6e-3, c);
   std::unique_ptr<Circuit> owner(c);
   const auto& peak = res.event("peak");
   // Peak value: 1e-7 relative (run tolerance 1e-10, dense-output peak search).
-  CHECK(peak.value == doctest::Approx(v_pk).epsilon(1e-7));
+  CHECK(peak.value == rel(v_pk).epsilon(1e-7));
   // Peak time: the peak is flat (dv/dt = 0), so its time is less well defined than its value:
   // δt ≈ √(2·δv/|v''|); 1e-5 relative covers δv = 1e-8 V.
-  CHECK(*peak.time_s == doctest::Approx(t_pk).epsilon(1e-5));
-  CHECK(*res.event("current_zero").time_s == doctest::Approx(t_pk).epsilon(1e-8));
+  CHECK(*peak.time_s == rel(t_pk).epsilon(1e-5));
+  CHECK(*res.event("current_zero").time_s == rel(t_pk).epsilon(1e-8));
   // Half a period later the current comes back through zero.
   const double half_period = *res.event("current_back").time_s - *res.event("current_zero").time_s;
-  CHECK(1.0 / (2.0 * half_period) == doctest::Approx(wd / (2 * M_PI)).epsilon(1e-7));
-  CHECK(wd / (2 * M_PI) == doctest::Approx(647.578).epsilon(1e-6));
+  CHECK(1.0 / (2.0 * half_period) == rel(wd / (2 * M_PI)).epsilon(1e-7));
+  CHECK(wd / (2 * M_PI) == rel(647.578).epsilon(1e-6));
   // Damping: the second maximum (one period later) shrinks by e^(−α·T).
   const double period = 2 * M_PI / wd;
   const Eigen::VectorXd s2 = res.sample(t_pk + period);
   const double v2 = s2[c->state_index("node:sw")];
-  CHECK((v2 - p.vs) / (v_pk - p.vs) == doctest::Approx(std::exp(-alpha * period)).epsilon(1e-5));
+  CHECK((v2 - p.vs) / (v_pk - p.vs) == rel(std::exp(-alpha * period)).epsilon(1e-5));
 }
 
 TEST_CASE("lossless LC limit: V_pk = Vs + sqrt(Vs^2 + I0^2 L/C) (energy argument)") {
@@ -82,7 +84,7 @@ TEST_CASE("lossless LC limit: V_pk = Vs + sqrt(Vs^2 + I0^2 L/C) (energy argument
   const auto res = run_rlc(p, 1e-3, c);
   std::unique_ptr<Circuit> owner(c);
   const double v_pk = p.vs + std::sqrt(p.vs * p.vs + p.i0 * p.i0 * p.l / p.c);
-  CHECK(v_pk == doctest::Approx(86.4580418759).epsilon(1e-10));
-  CHECK(res.event("peak").value == doctest::Approx(v_pk).epsilon(1e-7));
-  CHECK(*res.event("current_zero").time_s == doctest::Approx(424.414976e-6).epsilon(1e-7));
+  CHECK(v_pk == rel(86.4580418759).epsilon(1e-10));
+  CHECK(res.event("peak").value == rel(v_pk).epsilon(1e-7));
+  CHECK(*res.event("current_zero").time_s == rel(424.414976e-6).epsilon(1e-7));
 }

@@ -1,6 +1,8 @@
 // Sweeps, tolerance runs and suggestions.
 #include <doctest/doctest.h>
 
+#include "../approx.hpp"
+
 #include <cmath>
 
 #include "../drivers/driver_fixture.hpp"
@@ -52,7 +54,7 @@ TEST_CASE("IEC 60063: E12 and E24 tables, and values in a range") {
   CHECK(e24[22] == 8.2);
   const auto v = analyses::e_series_values(12, 10.0, 100.0);
   CHECK(v.size() == 13);  // 10, 12, 15, 18, 22, 27, 33, 39, 47, 56, 68, 82, 100
-  CHECK(v.back() == doctest::Approx(100.0));
+  CHECK(v.back() == rel(100.0));
 }
 
 TEST_CASE("sweep of the Zener voltage: release time falls and the peak rises with it") {
@@ -102,8 +104,8 @@ TEST_CASE("tolerance: corners and samples, identical numbers on 1 and 2 threads"
   CHECK(a.worst_peak_run == b.worst_peak_run);
   // The worst peak is at the corner with the highest supply and the highest Zener voltage.
   const auto& worst = a.run(a.worst_peak_run);
-  CHECK(worst.values[0] == doctest::Approx(13.2));
-  CHECK(worst.values[3] == doctest::Approx(15.75));
+  CHECK(worst.values[0] == rel(13.2));
+  CHECK(worst.values[3] == rel(15.75));
   // A different seed gives different samples.
   const auto c = analyses::run_tolerance(s, test_support::catalogue(), 12, 43, 2);
   CHECK(c.samples[0].values != a.samples[0].values);

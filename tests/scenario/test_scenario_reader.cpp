@@ -2,6 +2,8 @@
 // message naming the key and its file:line:column.
 #include <doctest/doctest.h>
 
+#include "../approx.hpp"
+
 #include <cmath>
 #include <string>
 #include <vector>
@@ -14,15 +16,15 @@ using namespace coilkick;
 using namespace coilkick::scenario;
 
 TEST_CASE("quantities: SI prefixes and units, checked against the expected dimension") {
-  CHECK(parse_quantity("4.7 kohm", Dimension::resistance) == doctest::Approx(4700.0));
-  CHECK(parse_quantity("4.7 k\xCE\xA9", Dimension::resistance) == doctest::Approx(4700.0));  // kΩ
-  CHECK(parse_quantity("550 mH", Dimension::inductance) == doctest::Approx(0.55));
+  CHECK(parse_quantity("4.7 kohm", Dimension::resistance) == rel(4700.0));
+  CHECK(parse_quantity("4.7 k\xCE\xA9", Dimension::resistance) == rel(4700.0));  // kΩ
+  CHECK(parse_quantity("550 mH", Dimension::inductance) == rel(0.55));
   CHECK(parse_quantity("24 V", Dimension::voltage) == 24.0);
-  CHECK(parse_quantity("20 ns", Dimension::time) == doctest::Approx(20e-9));
-  CHECK(parse_quantity("30 pF", Dimension::capacitance) == doctest::Approx(30e-12));
-  CHECK(parse_quantity("10 \xC2\xB5" "F", Dimension::capacitance) == doctest::Approx(10e-6));  // µF
+  CHECK(parse_quantity("20 ns", Dimension::time) == rel(20e-9));
+  CHECK(parse_quantity("30 pF", Dimension::capacitance) == rel(30e-12));
+  CHECK(parse_quantity("10 \xC2\xB5" "F", Dimension::capacitance) == rel(10e-6));  // µF
   CHECK(parse_quantity("60 degC", Dimension::temperature) == 60.0);
-  CHECK(parse_quantity("10 %", Dimension::ratio) == doctest::Approx(0.1));
+  CHECK(parse_quantity("10 %", Dimension::ratio) == rel(0.1));
   CHECK(parse_quantity("1e-3", Dimension::time) == 1e-3);  // SI base unit implied
   CHECK_THROWS_WITH_AS(parse_quantity("30 pF", Dimension::inductance), doctest::Contains("is a capacitance, but an inductance"),
                        std::invalid_argument);
@@ -73,8 +75,8 @@ struct Row {
 TEST_CASE("the base scenario is valid and reads as written") {
   const auto s = read_scenario_text(join(base_lines()), "base.toml", test_support::catalogue());
   CHECK(s.driver.supply.voltage_V == 12.0);
-  CHECK(s.driver.coil.inductance_H == doctest::Approx(0.6));
-  CHECK(s.driver.switch_.base_resistor_ohm == doctest::Approx(1e3));
+  CHECK(s.driver.coil.inductance_H == rel(0.6));
+  CHECK(s.driver.switch_.base_resistor_ohm == rel(1e3));
   CHECK(s.driver.clamp.zener_part == "zener_500mw_15v");
   CHECK(s.locations.at("coil.inductance").line == 9);
 }
