@@ -1,6 +1,6 @@
 #pragma once
 // The Python module coilkick._core: one Define* function per area (errors, catalogue,
-// scenarios, results, analyses), called from module.cpp. The pure-Python package coilkick
+// scenarios, results, analyses, relay calibration), called from module.cpp. The pure-Python package coilkick
 // (bindings/python/coilkick) wraps these into the public API.
 #include <pybind11/pybind11.h>
 
@@ -34,5 +34,6 @@ void DefineCatalogue(pybind11::module_& m);
 void DefineScenario(pybind11::module_& m);
 void DefineResults(pybind11::module_& m);
 void DefineAnalyses(pybind11::module_& m);
+void DefineRelay(pybind11::module_& m);
 
 }  // namespace coilkick::python

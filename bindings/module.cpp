@@ -8,4 +8,5 @@ PYBIND11_MODULE(_core, m) {
   coilkick::python::DefineScenario(m);
   coilkick::python::DefineResults(m);
   coilkick::python::DefineAnalyses(m);
+  coilkick::python::DefineRelay(m);
 }

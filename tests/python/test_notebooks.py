@@ -11,8 +11,8 @@ nbclient = pytest.importorskip("nbclient")
 NOTEBOOKS = sorted(glob.glob(os.path.join(os.path.dirname(__file__), "..", "..", "notebooks_examples", "*.ipynb")))
 
 
-def test_there_are_three_notebooks():
-    assert len(NOTEBOOKS) == 3
+def test_there_are_four_notebooks():
+    assert len(NOTEBOOKS) == 4
 
 
 @pytest.mark.parametrize("path", NOTEBOOKS, ids=os.path.basename)

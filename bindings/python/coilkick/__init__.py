@@ -15,7 +15,7 @@ works as one). Plots: coilkick.plot.
 """
 from ._core import CatalogueError, ScenarioError, SimulationError, default_models_directory, numeric_keys
 from .api import (ComparisonRow, FaultReport, RunResult, ToleranceResult, compare, faults, load_scenario, part_info,
-                  part_names, run, scenario_from_dict, suggest, sweep, tolerance)
+                  part_names, relay_calibration, run, scenario_from_dict, suggest, sweep, tolerance)
 
 CAUTION = ("A simulation is not a qualification. Build and measure the real driver at its worst-case supply and "
            "temperature before relying on it. Where relays or contactors switch mains loads, wiring and checks "

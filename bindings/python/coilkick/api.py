@@ -235,6 +235,14 @@ class FaultReport:
         return pd.DataFrame.from_records(rows)
 
 
+def relay_calibration(scenario) -> Dict[str, Any]:
+    """The relay armature model's calibration for the scenario's coil data: 'targets', a DataFrame of
+    name, target, achieved, relative_error (operate and release voltage and time, closed inductance), and
+    'parameters', a dict of the derived model values, each name ending in its SI unit."""
+    d = _core.relay_calibration(scenario)
+    return {"targets": pd.DataFrame(d["targets"]).set_index("name"), "parameters": d["parameters"]}
+
+
 def faults(scenario) -> FaultReport:
     """Single faults of every part of the driver (open, shorted, C–E short, base open, leaky junction, shorted
     turns, low supply): DC node voltages on and off, coil current, heat, switch-off, grouped by symptom."""

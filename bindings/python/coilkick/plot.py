@@ -114,16 +114,23 @@ def comparison(rows, title=None):
     return fig
 
 
-def release_vs_peak(df, rating_V=None, derating=0.8, label_column=None, title=None):
+_TIME_LABELS = {"release_time_s": "coil current below release", "contact_open_time_s": "contact opens",
+                "current_decay_time_10pct_s": "coil current below 10 %"}
+
+
+def release_vs_peak(df, rating_V=None, derating=0.8, label_column=None, title=None, time_columns=("release_time_s",)):
     """Release time against peak switch voltage (e.g. a Zener-voltage sweep), with the switch rating and the
-    derated limit as vertical lines. df: a DataFrame with release_time_s and switch_voltage_peak_V."""
+    derated limit as vertical lines. df: a DataFrame with switch_voltage_peak_V and the time_columns (several
+    give one curve each, e.g. ("release_time_s", "contact_open_time_s") with the armature model)."""
     plt = _plt()
     fig, ax = plt.subplots(figsize=(7, 4.5))
     ok = df[df["error"] == ""] if "error" in df else df
-    ax.plot(ok["switch_voltage_peak_V"], ok["release_time_s"] * 1e3, marker="o", markersize=3.5, color=PALETTE[0], linewidth=1.2)
+    for k, column in enumerate(time_columns):
+        ax.plot(ok["switch_voltage_peak_V"], ok[column] * 1e3, marker="o", markersize=3.5, color=PALETTE[(2 * k) % len(PALETTE)],
+                linewidth=1.2, label=_TIME_LABELS.get(column, column) if len(time_columns) > 1 else None)
     if label_column is not None:
         for _, row in ok.iterrows():
-            ax.annotate("%g" % row[label_column], (row["switch_voltage_peak_V"], row["release_time_s"] * 1e3),
+            ax.annotate("%g" % row[label_column], (row["switch_voltage_peak_V"], row[time_columns[-1]] * 1e3),
                         fontsize=7, xytext=(3, 3), textcoords="offset points")
     if rating_V is None and "switch_voltage_rating_V" in ok and len(ok):
         rating_V = float(ok["switch_voltage_rating_V"].iloc[0])
@@ -132,8 +139,10 @@ def release_vs_peak(df, rating_V=None, derating=0.8, label_column=None, title=No
         ax.axvline(derating * rating_V, color=LIMIT_COLOUR, linestyle=":", linewidth=1,
                    label="derated limit %.0f %%" % (100 * derating))
         ax.legend(fontsize=8, frameon=False)
+    if len(time_columns) > 1:
+        ax.legend(fontsize=8, frameon=False)
     ax.set_xlabel("peak switch voltage (V)")
-    ax.set_ylabel("release time (ms)")
+    ax.set_ylabel("release time (ms)" if len(time_columns) == 1 else "time after switch-off (ms)")
     _style(ax)
     if title:
         ax.set_title(title)

@@ -26,7 +26,7 @@ constexpr double kLeakageShare = 0.05;
 constexpr double kContactSpringShare = 0.5;
 constexpr double kDampingRatio = 0.2;
 constexpr double kStopPenetrationShare = 1e-3;  // of the over-travel, under the holding force
-constexpr double kStopDamping_s_per_m = 2.0;
+constexpr double kStopDampingRatio = 0.7;       // of the stop's linearised spring at the holding penetration
 constexpr double kForceRiseMargin = 1.05;       // closed-stop spring force at least 5 % above the preload
 constexpr double kDischargeFactor = 19.0;       // disconnected coil discharges into 19·R
 constexpr double kEdgeAt_s = 1e-6, kEdgeTime_s = 1e-7;
@@ -74,8 +74,13 @@ ArmatureCoilParameters shape(const RelayDatasheet& s, double core_gap_m, double 
   me.damping_N_s_per_m = 2.0 * kDampingRatio * std::sqrt((me.spring_rate_N_per_m + me.contact_spring_rate_N_per_m) * mass_kg);
   const double i_nom = s.nominal_voltage_V / s.coil_resistance_ohm;
   const double hold = std::max(-mg.force_N(i_nom, me.residual_gap_m) - f_closed, 0.1 * f_closed);
-  me.stop_stiffness_N_per_m1_5 = hold / std::pow(kStopPenetrationShare * s.over_travel_m, 1.5);
-  me.stop_damping_s_per_m = kStopDamping_s_per_m;
+  const double penetration = kStopPenetrationShare * s.over_travel_m;
+  me.stop_stiffness_N_per_m1_5 = hold / std::pow(penetration, 1.5);
+  // Damped near critically where the armature rests (a lightly damped stop rings at ~10 kHz and
+  // the integrator has to follow every cycle): c = α·k_s·p^1.5 = α·F_hold = 2ζ·√(k_lin·m) with
+  // the linearised stiffness k_lin = 1.5·F_hold/p. Impacts are then nearly plastic; bounce is
+  // not modelled (data sheets exclude it from operate and release times).
+  me.stop_damping_s_per_m = 2.0 * kStopDampingRatio * std::sqrt(1.5 * hold / penetration * mass_kg) / hold;
   return p;
 }
 

@@ -8,7 +8,7 @@
 //   fixed   residual gap 50 µm, pole area 20 mm², leakage 5 % of the closed inductance, the
 //           contact spring carrying half the spring-force rise over the over-travel, viscous
 //           damping at 0.2 of critical, stops giving 0.1 % of the over-travel of penetration under
-//           the holding force at nominal voltage;
+//           the holding force at nominal voltage, damped at 0.7 of critical there;
 //   solved  turns (closed inductance), spring preload (operate voltage at the open stop),
 //           spring rates (release voltage at the closed stop), moving mass (release time) and
 //           core reluctance (operate time, through the open-gap inductance and so the
