@@ -7,6 +7,7 @@
 #include "coilkick/analyses/parallel.hpp"
 #include "coilkick/drivers/compare.hpp"
 #include "coilkick/drivers/switch_off.hpp"
+#include "coilkick/relay/relay_calibration.hpp"
 #include "commands.hpp"
 #include "report_format.hpp"
 
@@ -77,6 +78,13 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
                      {"solver", {{"accepted_steps", r.transient->statistics().accepted_steps},
                                  {"rejected_steps", r.transient->statistics().rejected_steps}}},
                      {"caution", kCaution}};
+    if (d.relay.armature_model) {
+      nlohmann::json a = nlohmann::json::array();
+      for (const auto& t : relay::calibrate_relay_cached(drivers::relay_datasheet(d)).targets) {
+        a.push_back({{"name", t.name}, {"target", t.target}, {"achieved", t.achieved}, {"relative_error", t.relative_error()}});
+      }
+      j["relay_calibration"] = a;
+    }
     out << j.dump(2) << "\n";
   } else {
     out << "coilkick run — " << d.name << " (" << o.file << ")\n"
@@ -101,10 +109,17 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
               {{"contact opens", "contact_open_time_s"}, {"armature speed there", "armature_speed_at_contact_open_m_per_s"},
                {"operate time (switch-on)", "operate_time_s"}},
               r.metrics);
+      out << "  calibration against the data sheet (at its nominal voltage and 20 degC):\n";
+      for (const auto& t : relay::calibrate_relay_cached(drivers::relay_datasheet(d)).targets) {
+        const std::string unit_metric = "x_" + t.name.substr(t.name.rfind('_') + 1);
+        out << "    " << std::left << std::setw(22) << t.name << std::setw(12) << metric_text(unit_metric, t.target) << "model "
+            << std::setw(12) << metric_text(unit_metric, t.achieved) << std::showpos << std::fixed << std::setprecision(2)
+            << 100.0 * t.relative_error() << " %" << std::noshowpos << std::defaultfloat << std::setprecision(6) << "\n";
+      }
     }
     out << "\nRating checks\n";
     for (const auto& c : r.checks) {
-      out << "  " << status_word(c.status) << "  " << std::left << std::setw(36) << c.name << std::setw(12)
+      out << "  " << status_word(c.status) << "  " << std::left << std::setw(36) << c.name << " " << std::setw(12)
           << metric_text("x_" + c.unit, c.value) << " limit " << std::setw(12) << metric_text("x_" + c.unit, c.limit) << c.detail << "\n";
     }
     out << "  overall: " << status_word(status) << "\n\n" << kCaution << "\n";

@@ -15,7 +15,7 @@ const char* const kCaution =
 
 std::string metric_unit(const std::string& m) {
   static const std::pair<const char*, const char*> suffixes[] = {{"_Hz", "Hz"}, {"_V", "V"}, {"_A", "A"}, {"_J", "J"},
-                                                                 {"_W", "W"},   {"_m_per_s", "m/s"}, {"_s", "s"}, {"_ohm", "ohm"}};
+                                                                 {"_W", "W"},   {"_m_per_s", "m/s"}, {"_s", "s"}, {"_ohm", "ohm"}, {"_H", "H"}};
   for (const auto& [suffix, unit] : suffixes) {
     const std::string s = suffix;
     if (m.size() > s.size() && m.compare(m.size() - s.size(), s.size(), s) == 0) return unit;

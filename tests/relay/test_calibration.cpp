@@ -26,7 +26,7 @@ relay::RelayDatasheet fan_relay() {
   s.closed_inductance_H = 0.45;
   s.operate_voltage_V = 8.4;
   s.release_voltage_V = 1.8;
-  s.operate_time_s = 8e-3;
+  s.operate_time_s = 7e-3;
   s.release_time_s = 2e-3;
   s.contact_gap_m = 0.4e-3;
   s.over_travel_m = 0.12e-3;

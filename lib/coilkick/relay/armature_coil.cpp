@@ -28,6 +28,20 @@ struct Stops {
   }
 };
 
+// Damping factor of a stop, ψ(z) with z = 1 + α·ṗ: a smooth, positive, increasing version of z
+// normalised to ψ(1) = 1, so the stop never pulls (no adhesion when the armature leaves it fast)
+// and its damping never feeds energy in: (ψ(z) − 1) has the sign of (z − 1).
+constexpr double kSoftness = 0.1;
+double soft_positive(double z) { return 0.5 * (z + std::sqrt(z * z + kSoftness * kSoftness)); }
+struct StopFactor {
+  double value, slope;  // ψ(z), dψ/dz
+  explicit StopFactor(double z) {
+    const double norm = soft_positive(1.0);
+    value = soft_positive(z) / norm;
+    slope = 0.5 * (1.0 + z / std::sqrt(z * z + kSoftness * kSoftness)) / norm;
+  }
+};
+
 }  // namespace
 
 void ArmatureMechanics::check(const std::string& owner) const {
@@ -117,22 +131,28 @@ void ArmatureCoil::load(const engine::ElementContext& ctx, engine::Stamper& out)
   const double f_spring = m.spring_force_N(g);
   const double df_spring = -m.spring_rate_N_per_m - (g < m.make_gap_m ? m.contact_spring_rate_N_per_m : 0.0);
   const double f_mag = 0.5 * i * i * dl;
-  const double f_stop_el = ks * (s.pc15 - s.po15);
-  const double df_stop_el = ks * (-1.5 * s.pc05 - 1.5 * s.po05);
-  const double c_stop = ks * alpha * (s.pc15 + s.po15);        // stop damping coefficient (N·s/m)
-  const double dc_stop = ks * alpha * 1.5 * (-s.pc05 + s.po05);  // its slope along g
+  // Stops: closed F_c = A_c·ψ(1 − α·u) with A_c = k_s·p_c^1.5 (pushes open), open
+  // F_o = −A_o·ψ(1 + α·u) (pushes closed); ψ as StopFactor.
+  const double a_c = ks * s.pc15, da_c = -1.5 * ks * s.pc05;  // slopes along g
+  const double a_o = ks * s.po15, da_o = 1.5 * ks * s.po05;
+  const StopFactor psi_c(1.0 - alpha * u), psi_o(1.0 + alpha * u);
+  const double f_stops = a_c * psi_c.value - a_o * psi_o.value;
+  const double df_stops_dg = da_c * psi_c.value - da_o * psi_o.value;
+  const double df_stops_du = -alpha * (a_c * psi_c.slope + a_o * psi_o.slope);
   const double b = m.damping_N_s_per_m;
   out.add_mass(kU, kU, m.mass_kg);
-  out.add_flow(kU, f_spring + f_mag + f_stop_el - (b + c_stop) * u);
+  out.add_flow(kU, f_spring + f_mag + f_stops - b * u);
   out.add_flow_slope(kU, kI, i * dl);
-  out.add_flow_slope(kU, kG, df_spring + 0.5 * i * i * d2l + df_stop_el - dc_stop * u);
-  out.add_flow_slope(kU, kU, -(b + c_stop));
-  // Heat of the viscous damping and of the stops.
+  out.add_flow_slope(kU, kG, df_spring + 0.5 * i * i * d2l + df_stops_dg);
+  out.add_flow_slope(kU, kU, df_stops_du - b);
+  // Heat of the viscous damping, and of the stops: what their force does beyond the elastic part,
+  // P = −(F_c − A_c)·u − (F_o + A_o)·u = −A_c·(ψ_c − 1)·u + A_o·(ψ_o − 1)·u >= 0.
   out.add_power(ch_damping, b * u * u);
   out.add_power_slope(ch_damping, kU, 2.0 * b * u);
-  out.add_power(ch_stops, c_stop * u * u);
-  out.add_power_slope(ch_stops, kG, dc_stop * u * u);
-  out.add_power_slope(ch_stops, kU, 2.0 * c_stop * u);
+  out.add_power(ch_stops, -a_c * (psi_c.value - 1.0) * u + a_o * (psi_o.value - 1.0) * u);
+  out.add_power_slope(ch_stops, kG, -da_c * (psi_c.value - 1.0) * u + da_o * (psi_o.value - 1.0) * u);
+  out.add_power_slope(ch_stops, kU,
+                      -a_c * ((psi_c.value - 1.0) - alpha * psi_c.slope * u) + a_o * ((psi_o.value - 1.0) + alpha * psi_o.slope * u));
   (void)kA;
   (void)kB;
 }

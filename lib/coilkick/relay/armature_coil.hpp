@@ -12,14 +12,15 @@
 //   return spring  F_r = preload + rate·(open_gap − g)                     (all positions)
 //   contact spring F_c = contact_rate·(make_gap − g)   for g < make_gap     (over-travel stage)
 // Stops: the closed stop at residual_gap and the open (back) stop at open_gap are stiff
-// Hertz-type contacts F = k_s·p^1.5·(1 ± α·ṗ) (Hunt & Crossley, ASME J. Appl. Mech. 42(2),
-// 1975 — from memory), p the penetration. Force and stiffness are continuous at p = 0, so the
-// integrator meets no jump at impact; the stiffness is chosen so the penetration is small
-// (relay_calibration.hpp), which makes the stops numerical devices rather than contact physics.
+// Hertz-type contacts F = k_s·p^1.5·ψ(1 + α·ṗ) after Hunt & Crossley (ASME J. Appl. Mech. 42(2),
+// 1975 — from memory), p the penetration, ψ a smooth positive version of its argument (ψ(1) = 1)
+// so that a stop never pulls on an armature leaving it. Force and stiffness are continuous at
+// p = 0, so the integrator meets no jump at impact; the stiffness is chosen so the penetration is
+// small (relay_calibration.hpp), which makes the stops numerical devices, not contact physics.
 //
 // Energy: stored ½·L·i² + ½·m·u² + spring and stop potentials (zero with the armature at rest
 // on the open stop position with p = 0); heat channels "winding", ["core"], "damping" (b·u²),
-// "stops" (k_s·α·p^1.5·u²). The magnetic co-energy force F·u is the work passed between the
+// "stops" (what the stop forces do beyond their elastic part). The magnetic co-energy force F·u is the work passed between the
 // circuit and the armature (Fitzgerald, Kingsley & Umans, 6th ed., ch. 3).
 //
 // With hold_closed the armature is held at the residual gap (g stays there, u = 0): the element
