@@ -75,10 +75,13 @@ TEST_CASE("fault readings of a low-side NPN driver against hand calculation") {
   CHECK(has(rb, "relay never operates"));
 
   // Clamp diode shorted (10 mohm across the coil): the transistor leaves saturation and carries
-  // β·I_B from the supply through the short: V_sw = 12 − β·I_B/(1/0.01 + 1/400).
+  // β·I_B·(1 + V_sw/V_A) (Early effect, V_A = 80 V of npn_small_signal_40v) from the supply
+  // through the short: V_sw = 12 − I_C/G with G = 1/0.01 + 1/400, solved for V_sw.
   const auto& ds = find(rep, "clamp_diode", "shorted");
-  const double ic = 200.0 * kIb;
-  CHECK(on(ds, "switch") == rel(12.0 - ic / (100.0 + 1.0 / 400.0)).epsilon(1e-6));
+  const double g_short = 1.0 / 0.01 + 1.0 / 400.0, beta_ib = 200.0 * kIb, va = 80.0;
+  const double v_ds = (12.0 - beta_ib / g_short) / (1.0 + beta_ib / (g_short * va));
+  const double ic = beta_ib * (1.0 + v_ds / va);
+  CHECK(on(ds, "switch") == rel(v_ds).epsilon(1e-6));
   CHECK(ds.coil_current_on_A == rel((12.0 - on(ds, "switch")) / 400.0).epsilon(1e-6));
   CHECK(ds.supply_current_on_A == rel(ic + kIb * 0.0).epsilon(1e-3));  // supply carries I_C
   CHECK(has(ds, "relay never operates"));

@@ -20,7 +20,8 @@
 //   Temperature: I_s(T) as for diodes, β(T) = β·(T/T_nom)^beta_temperature_exponent.
 //   PNP: the same equations with all voltages and currents reversed.
 // Piecewise-linear level: base–emitter off / on (knee + resistance); collector current
-//   min(β_F·I_B, saturation line (V_CE − V_knee)/R_sat, clipped at 0), plus the breakdown line.
+//   min(β_F·I_B·(1 + V_CE/V_A), saturation line (V_CE − V_knee)/R_sat, clipped at 0), plus the
+//   breakdown line.
 //   Segments derived from the physical model at a saturated operating point (forced gain
 //   pwl_forced_beta at pwl_reference_collector_current_A) unless given explicitly.
 #include <limits>
@@ -187,7 +188,10 @@ class PwlBjt final : public TerminalDevice<PwlBjt, 3> {
     if (value_of(vbe) > d_.be_knee_V) {
       const S ib_on = (vbe - d_.be_knee_V) / d_.be_resistance_ohm;
       ib = ib + ib_on;
-      const S active = d_.beta_f * ib_on;
+      // Early effect on the active line (output conductance): without it a partly-on switch is an
+      // ideal current source and the coil rings undamped with the node capacitance.
+      const S early = std::isinf(p_.forward_early_voltage_V) || value_of(vce) <= 0.0 ? S(1.0) : 1.0 + vce / p_.forward_early_voltage_V;
+      const S active = d_.beta_f * ib_on * early;
       const S sat = (vce - d_.sat_knee_V) / d_.sat_resistance_ohm;
       if (value_of(sat) > 0.0) ic = ic + (value_of(sat) < value_of(active) ? sat : active);
     }
