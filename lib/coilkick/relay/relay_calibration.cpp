@@ -1,6 +1,7 @@
 #include "coilkick/relay/relay_calibration.hpp"
 
 #include <algorithm>
+#include <chrono>
 #include <cmath>
 #include <functional>
 #include <map>
@@ -30,6 +31,7 @@ constexpr double kStopDampingRatio = 0.7;       // of the stop's linearised spri
 constexpr double kForceRiseMargin = 1.05;       // closed-stop spring force at least 5 % above the preload
 constexpr double kDischargeFactor = 19.0;       // disconnected coil discharges into 19·R
 constexpr double kEdgeAt_s = 1e-6, kEdgeTime_s = 1e-7;
+constexpr int kCalibrationBudget_s = 30;  // typical calibrations take 0.1–1 s
 
 
 ArmatureCoilParameters shape(const RelayDatasheet& s, double core_gap_m, double mass_kg) {
@@ -161,7 +163,7 @@ engine::TransientOptions run_options(const ArmatureCoilParameters& p, double vol
   o.voltage_tolerance_V = 1e-6 * voltage_V;
   o.current_tolerance_A = 1e-6 * i;
   o.energy_tolerance_J = 1e-9 * 0.5 * p.magnetic.inductance_H(p.mechanics.residual_gap_m) * i * i;
-  o.maximum_wall_time_s = 30.0;
+  o.maximum_wall_time_s = 5.0;
   // An L-stable step much longer than the armature's snap-over time damps that instability
   // instead of following it (the relay would "hang" at a balance it cannot keep): bound it.
   o.maximum_step_s = limit_s / 400.0;
@@ -262,8 +264,15 @@ double release_time_s(const ArmatureCoilParameters& p, double voltage_V, double 
   return contact_change_time_s(net, p, voltage_V, limit_s, p.mechanics.residual_gap_m, engine::Direction::rising);
 }
 
-RelayCalibration calibrate_relay(const RelayDatasheet& s) {
-  s.check();
+namespace {
+RelayCalibration calibrate_checked(const RelayDatasheet& s) {
+  const auto started = std::chrono::steady_clock::now();
+  auto check_budget = [&] {
+    if (std::chrono::steady_clock::now() - started > std::chrono::seconds(kCalibrationBudget_s)) {
+      throw std::invalid_argument("relay: the armature model's calibration did not converge within " +
+                                  std::to_string(kCalibrationBudget_s) + " s; check operate_time_s and release_time_s");
+    }
+  };
   const double core_gap_hi = largest_core_gap_m(s) / kForceRiseMargin;
   const double core_gap_lo = 1e-3 * kResidualGap_m;
   const double v = s.nominal_voltage_V;
@@ -275,7 +284,10 @@ RelayCalibration calibrate_relay(const RelayDatasheet& s) {
   auto mass_for = [&](double core_gap) {
     const double f_closed = shape(s, core_gap, 1.0).mechanics.spring_force_N(kResidualGap_m);
     const double m0 = std::clamp(f_closed * s.release_time_s * s.release_time_s / (2.0 * s.over_travel_m), 1e-6, 1.0);
-    auto f = [&](double m) { return log_ratio(release_time_s(shape(s, core_gap, m), v, limit), s.release_time_s); };
+    auto f = [&](double m) {
+      check_budget();
+      return log_ratio(release_time_s(shape(s, core_gap, m), v, limit), s.release_time_s);
+    };
     double lo, hi, flo, fhi;
     bracket_log(f, m0, 1e-8, 100.0, lo, hi, flo, fhi);
     return solve_log(f, lo, hi, flo, fhi, 2e-4);
@@ -300,6 +312,20 @@ RelayCalibration calibrate_relay(const RelayDatasheet& s) {
   };
   return out;
 }
+}  // namespace
+
+RelayCalibration calibrate_relay(const RelayDatasheet& s) {
+  s.check();
+  try {
+    return calibrate_checked(s);
+  } catch (const engine::SimulationError& e) {
+    // Values far outside any relay (a 1 µs release of a 1 kH coil ...) can make a calibration run
+    // fail: that is a problem of the data, reported as such.
+    throw std::invalid_argument(std::string("relay: the armature model cannot be calibrated to these values (a calibration "
+                                            "run failed: ") + e.what() + ")");
+  }
+}
+
 
 const RelayCalibration& calibrate_relay_cached(const RelayDatasheet& s) {
   static std::mutex mutex;
