@@ -74,7 +74,7 @@ case "$cmd" in
     for t in scenario network; do
       mkdir -p "build-fuzz/corpus-$t"
       cp -n fuzz/corpus/$t/* "build-fuzz/corpus-$t/" 2>/dev/null || true
-      "build-fuzz/bin/fuzz_$t" -max_total_time="${COILKICK_FUZZ_SECONDS:-300}" -timeout=10 -rss_limit_mb=2048 \
+      "build-fuzz/bin/fuzz_$t" -max_total_time="${COILKICK_FUZZ_SECONDS:-300}" -timeout=45 -rss_limit_mb=2048 \
         -print_final_stats=1 "build-fuzz/corpus-$t" fuzz/corpus/$t
     done
     ;;
