@@ -88,8 +88,8 @@ std::vector<engine::InternalStateSpec> ArmatureCoil::internal_states() const {
   const auto& m = p_.mechanics;
   const double travel = m.open_gap_m - m.residual_gap_m;
   return {{"current", "A", 0.0, engine::StateKind::branch_current},
-          {"gap", "m", 1e-6 * travel, engine::StateKind::internal, m.residual_gap_m},
-          {"velocity", "m/s", 1e-5 * travel / 1e-3, engine::StateKind::internal}};  // 1e-6 of the travel per ms
+          {"gap", "m", 1e-7 * travel, engine::StateKind::internal, m.residual_gap_m},
+          {"velocity", "m/s", 1e-7 * travel / 1e-3, engine::StateKind::internal}};  // 1e-7 of the travel per ms
 }
 
 std::vector<engine::PowerChannelSpec> ArmatureCoil::power_channels() const {
