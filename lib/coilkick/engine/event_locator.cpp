@@ -101,8 +101,11 @@ double EventLocator::on_step(double t0, const double* x0, double t1, const doubl
       if (e.stops_run) stop_at = std::min(stop_at, tc);
       continue;
     }
-    // Extremum: sample, then refine around the best sample.
-    constexpr int n = 9;
+    // Extremum: sample, then refine around the best sample. When the best sample is an end of the
+    // step, one probe just inside it tells whether the extremum lies inside (then refine) or is
+    // the end itself (a monotone stretch, e.g. a spike rising over many steps): refining there
+    // would only confirm it, at ~60 probe calls.
+    constexpr int n = 5;
     double ts[n], vs[n];
     int best = 0;
     for (int j = 0; j < n; ++j) {
@@ -113,7 +116,13 @@ double EventLocator::on_step(double t0, const double* x0, double t1, const doubl
     if (!better(e.kind, vs[best], outcomes_[k].value) && outcomes_[k].time_s) continue;
     outcomes_[k].time_s = ts[best];
     outcomes_[k].value = vs[best];
-    if (t1 > a) refine_extremum(k, ts[std::max(best - 1, 0)], ts[std::min(best + 1, n - 1)], f);
+    if (!(t1 > a)) continue;
+    bool interior = best > 0 && best < n - 1;
+    if (!interior) {
+      const double inside = best == 0 ? ts[0] + 1e-3 * (ts[1] - ts[0]) : ts[n - 1] - 1e-3 * (ts[n - 1] - ts[n - 2]);
+      interior = better(e.kind, probe_at(e, inside, f), vs[best]);
+    }
+    if (interior) refine_extremum(k, ts[std::max(best - 1, 0)], ts[std::min(best + 1, n - 1)], f);
   }
   return stop_at;
 }
