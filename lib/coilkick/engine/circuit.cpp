@@ -167,6 +167,10 @@ Workspace Circuit::make_workspace() const {
   w.jacobian = Eigen::MatrixXd::Zero(n, n);
   w.time_rate = Eigen::VectorXd::Zero(n);
   w.source_current_A = Eigen::VectorXd::Zero(n_fixed_);
+  w.scratch_rhs = Eigen::VectorXd::Zero(n_circuit_);
+  w.scratch_time_rhs = Eigen::VectorXd::Zero(n_circuit_);
+  w.scratch_slope = Eigen::MatrixXd::Zero(ne, ne);
+  w.scratch_row = Eigen::RowVectorXd::Zero(n_circuit_);
   return w;
 }
 
@@ -197,8 +201,8 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
   const int nc = n_circuit_, nf = n_fixed_, nch = n_element_channels_;
   const auto vdot_f = w.ext_rate.segment(nc, nf);
   w.lu.compute(w.mass.topLeftCorner(nc, nc));
-  Eigen::VectorXd rhs = w.flow.head(nc) - w.mass.block(0, nc, nc, nf) * vdot_f;
-  w.rate.head(nc) = w.lu.solve(rhs);
+  w.scratch_rhs.noalias() = w.flow.head(nc) - w.mass.block(0, nc, nc, nf) * vdot_f;
+  w.rate.head(nc) = w.lu.solve(w.scratch_rhs);
   w.ext_rate.head(nc) = w.rate.head(nc);
   // Current each voltage source delivers into its node: what the node's elements draw.
   for (int j = 0; j < nf; ++j) {
@@ -215,12 +219,13 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
     GlobalStamper st(w, maps_[k].data(), channel_offset_[k]);
     elements_[k]->load_mass_slope(ctx, st);
   }
-  const Eigen::MatrixXd g_minus_k = w.flow_slope - w.mass_slope;
+  Eigen::MatrixXd& g_minus_k = w.scratch_slope;
+  g_minus_k = w.flow_slope - w.mass_slope;
   w.jacobian.setZero();
   auto jcc = w.jacobian.topLeftCorner(nc, nc);
   jcc = w.lu.solve(g_minus_k.topLeftCorner(nc, nc));
-  Eigen::VectorXd tr = w.flow_time_rate.head(nc) + g_minus_k.block(0, nc, nc, nf) * vdot_f;
-  w.time_rate.head(nc) = w.lu.solve(tr);
+  w.scratch_time_rhs.noalias() = w.flow_time_rate.head(nc) + g_minus_k.block(0, nc, nc, nf) * vdot_f;
+  w.time_rate.head(nc) = w.lu.solve(w.scratch_time_rhs);
   for (int c = 0; c < nch; ++c) {
     w.jacobian.row(nc + c).head(nc) = w.power_slope.row(c).head(nc);
     w.time_rate[nc + c] = w.power_time_rate[c] + w.power_slope.row(c).segment(nc, nf).dot(vdot_f);
@@ -229,7 +234,9 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
     const int p = nc + j;
     const double v = w.ext_value[p];
     // i_s = M_p·ẋ − f_p;  ∂i_s/∂x = M_pc·J_cc + K_pc − G_pc
-    Eigen::RowVectorXd di_dx = w.mass.row(p).head(nc) * jcc - g_minus_k.row(p).head(nc);
+    Eigen::RowVectorXd& di_dx = w.scratch_row;
+    di_dx.noalias() = w.mass.row(p).head(nc) * jcc;
+    di_dx -= g_minus_k.row(p).head(nc);
     w.jacobian.row(nc + nch + j).head(nc) = v * di_dx;
     const double di_dt = w.mass.row(p).head(nc).dot(w.time_rate.head(nc)) +
                          (-g_minus_k.row(p).segment(nc, nf)).dot(vdot_f) - w.flow_time_rate[p];

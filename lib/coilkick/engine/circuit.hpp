@@ -48,6 +48,10 @@ struct Workspace {
   Eigen::MatrixXd jacobian;    // ∂ẋ/∂x (only when requested)
   Eigen::VectorXd time_rate;   // ∂ẋ/∂t (only when requested)
   Eigen::VectorXd source_current_A;  // current each voltage source delivers into its node
+  // Intermediates of Circuit::evaluate, kept here so an evaluation allocates nothing.
+  Eigen::VectorXd scratch_rhs, scratch_time_rhs;
+  Eigen::MatrixXd scratch_slope;       // ∂f/∂x − ∂(M·ẋ)/∂x
+  Eigen::RowVectorXd scratch_row;
 };
 
 class Circuit {
