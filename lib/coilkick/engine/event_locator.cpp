@@ -16,6 +16,18 @@ EventLocator::EventLocator(const std::vector<EventSpec>& specs, int state_size,
                            double time_tolerance_s)
     : specs_(specs), scratch_(static_cast<std::size_t>(state_size)), tol_(time_tolerance_s) {
   for (const auto& s : specs_) outcomes_.push_back({s.name, std::nullopt, std::nan("")});
+  end_time_.assign(specs_.size(), std::nan(""));
+  end_value_.assign(specs_.size(), std::nan(""));
+}
+
+double EventLocator::probe_at_start(std::size_t k, double t0, const double* x0) {
+  return end_time_[k] == t0 ? end_value_[k] : specs_[k].probe(t0, x0);
+}
+
+double EventLocator::probe_at_end(std::size_t k, double t1, const double* x1) {
+  end_time_[k] = t1;
+  end_value_[k] = specs_[k].probe(t1, x1);
+  return end_value_[k];
 }
 
 double EventLocator::probe_at(const EventSpec& e, double t, const Interpolant& f) {
@@ -87,8 +99,8 @@ double EventLocator::on_step(double t0, const double* x0, double t1, const doubl
     const double a = std::max(t0, e.after_time_s);
     if (e.kind == EventSpec::Kind::crossing) {
       if (outcomes_[k].time_s) continue;  // first occurrence only
-      const double ga = (a == t0 ? e.probe(t0, x0) : probe_at(e, a, f)) - e.threshold;
-      const double gb = e.probe(t1, x1) - e.threshold;
+      const double ga = (a == t0 ? probe_at_start(k, t0, x0) : probe_at(e, a, f)) - e.threshold;
+      const double gb = probe_at_end(k, t1, x1) - e.threshold;
       const bool falls = ga > 0.0 && gb <= 0.0;
       const bool rises = ga < 0.0 && gb >= 0.0;
       const bool hit = (e.direction == Direction::falling && falls) ||
@@ -106,11 +118,24 @@ double EventLocator::on_step(double t0, const double* x0, double t1, const doubl
     // the end itself (a monotone stretch, e.g. a spike rising over many steps): refining there
     // would only confirm it, at ~60 probe calls.
     constexpr int n = 5;
+    // Once an extremum is known, a step whose two ends both lie more than 10 % of it on the far
+    // side cannot hold a better one: the step's error control keeps the states (and so a probe of
+    // them) from swinging that far inside one step and back. Skip it without sampling — probes
+    // such as a device's current cost a full circuit evaluation each.
     double ts[n], vs[n];
+    ts[0] = a;
+    ts[n - 1] = t1;
+    vs[0] = a == t0 ? probe_at_start(k, t0, x0) : probe_at(e, a, f);
+    vs[n - 1] = probe_at_end(k, t1, x1);
+    if (outcomes_[k].time_s) {
+      const double best_value = outcomes_[k].value, margin = 0.1 * std::abs(best_value);
+      auto far_worse = [&](double v) { return e.kind == EventSpec::Kind::maximum ? v < best_value - margin : v > best_value + margin; };
+      if (far_worse(vs[0]) && far_worse(vs[n - 1])) continue;
+    }
     int best = 0;
     for (int j = 0; j < n; ++j) {
       ts[j] = a + (t1 - a) * j / (n - 1);
-      vs[j] = j == n - 1 ? e.probe(t1, x1) : (j == 0 && a == t0 ? e.probe(t0, x0) : probe_at(e, ts[j], f));
+      if (j > 0 && j < n - 1) vs[j] = probe_at(e, ts[j], f);
       if (better(e.kind, vs[j], vs[best]) && j > 0) best = j;
     }
     if (!better(e.kind, vs[best], outcomes_[k].value) && outcomes_[k].time_s) continue;
