@@ -162,11 +162,14 @@ void DefineAnalyses(py::module_& m) {
 
   m.def(
       "suggest",
-      [](const PyScenario& s, double max_release_time_s, double max_switch_voltage_V, int threads) {
+      [](const PyScenario& s, double max_release_time_s, double max_switch_voltage_V, int threads, const std::string& time_metric,
+         const std::vector<std::string>& kinds) {
+        analyses::SuggestLimits limits{max_release_time_s, max_switch_voltage_V, time_metric, {}};
+        for (const auto& k : kinds) limits.kinds.push_back(drivers::parse_clamp_kind(k));
         std::vector<analyses::Suggestion> list;
         {
           py::gil_scoped_release release;
-          list = analyses::suggest_clamps(s.scenario, *s.parts, {max_release_time_s, max_switch_voltage_V}, threads_or_default(threads));
+          list = analyses::suggest_clamps(s.scenario, *s.parts, limits, threads_or_default(threads));
         }
         py::list l;
         for (const auto& g : list) {
@@ -181,7 +184,7 @@ void DefineAnalyses(py::module_& m) {
         return l;
       },
       py::arg("scenario"), py::arg("max_release_time_s"), py::arg("max_switch_voltage_V"), py::arg("threads") = 0,
-      "Preferred-value clamps ranked against the limits (see README, 'suggest').");
+      py::arg("time_metric") = "release_time_s", py::arg("kinds") = std::vector<std::string>{}, "Preferred-value clamps ranked against the limits (see README, 'suggest').");
 }
 
 }  // namespace coilkick::python

@@ -12,8 +12,16 @@
 namespace coilkick::cli {
 
 int cmd_suggest(const CommonOptions& o, const std::string& max_release_time, const std::string& max_switch_voltage, int top,
-                std::ostream& out) {
+                std::ostream& out, const std::string& time_metric, const std::vector<std::string>& kinds) {
   analyses::SuggestLimits lim;
+  lim.time_metric = time_metric;
+  for (const auto& k : kinds) {
+    try {
+      lim.kinds.push_back(drivers::parse_clamp_kind(k));
+    } catch (const std::invalid_argument& e) {
+      throw std::invalid_argument(std::string("--kinds: ") + e.what());
+    }
+  }
   try {
     lim.max_release_time_s = scenario::parse_quantity(max_release_time, scenario::Dimension::time);
   } catch (const std::invalid_argument& e) {
@@ -43,22 +51,23 @@ int cmd_suggest(const CommonOptions& o, const std::string& max_release_time, con
       a.push_back(j);
     }
     out << nlohmann::json{{"scenario", l.scenario.driver.name}, {"max_release_time_s", lim.max_release_time_s},
-                          {"max_switch_voltage_V", lim.max_switch_voltage_V}, {"meeting", meeting}, {"candidates", a},
+                          {"max_switch_voltage_V", lim.max_switch_voltage_V}, {"time_metric", lim.time_metric}, {"meeting", meeting}, {"candidates", a},
                           {"caution", kCaution}}.dump(2)
         << "\n";
     return 0;
   }
   out << "coilkick suggest — " << l.scenario.driver.name << " (" << o.file << ")\n"
-      << "limits: release within " << metric_text("x_s", lim.max_release_time_s) << ", switch voltage at most "
+      << "limits: " << (lim.time_metric == "contact_open_time_s" ? "contacts open" : "release") << " within "
+      << metric_text("x_s", lim.max_release_time_s) << ", switch voltage at most "
       << metric_text("x_V", lim.max_switch_voltage_V) << "; " << meeting << " of " << list.size() << " candidates meet both\n\n";
   out << std::left << std::setw(5) << "rank" << std::setw(18) << "clamp" << std::setw(34) << "parts" << std::right << std::setw(11)
-      << "release" << std::setw(9) << "margin" << std::setw(11) << "peak" << std::setw(9) << "margin" << "  checks\n";
+      << (lim.time_metric == "contact_open_time_s" ? "opens" : "release") << std::setw(9) << "margin" << std::setw(11) << "peak" << std::setw(9) << "margin" << "  checks\n";
   int shown = 0;
   for (const auto& g : list) {
     if (!g.meets || shown >= top) break;
     ++shown;
     out << std::left << std::setw(5) << shown << std::setw(18) << drivers::to_string(g.clamp.kind) << std::setw(34) << g.parts << std::right
-        << std::setw(11) << metric_text("x_s", g.run.metrics.get("release_time_s")) << std::setw(8)
+        << std::setw(11) << metric_text("x_s", g.run.metrics.get(lim.time_metric)) << std::setw(8)
         << static_cast<int>(std::lround(100 * g.release_margin)) << "%" << std::setw(11)
         << metric_text("x_V", g.run.metrics.get("switch_voltage_peak_V")) << std::setw(8) << static_cast<int>(std::lround(100 * g.voltage_margin))
         << "%  " << drivers::to_string(g.run.status) << "\n";

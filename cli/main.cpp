@@ -24,7 +24,8 @@ int main(int argc, char** argv) {
   CLI::App app{"coilkick — switch-off transients of relay, solenoid and contactor drivers, and clamp choice"};
   app.require_subcommand(1);
   CommonOptions o;
-  std::string waveforms, csv, plot, output, max_release, max_voltage;
+  std::string waveforms, csv, plot, output, max_release, max_voltage, time_metric = "release_time_s";
+  std::vector<std::string> suggest_kinds;
   std::vector<std::string> vary;
   bool fail_on_check = false;
   int samples = 1000, top = 15;
@@ -53,6 +54,10 @@ int main(int argc, char** argv) {
   auto* suggest = app.add_subcommand("suggest", "preferred-value clamps that meet release-time and voltage limits");
   common(suggest, o);
   suggest->add_option("--max-release-time", max_release, "longest acceptable release time, e.g. \"3 ms\"")->required();
+  suggest->add_option("--kinds", suggest_kinds, "only these clamp kinds, e.g. diode_zener,tvs_across_switch")->delimiter(',');
+  suggest->add_option("--time-metric", time_metric,
+                      "what the release time is: release_time_s (coil current below release, default) or "
+                      "contact_open_time_s (the contacts open; needs the armature model)");
   suggest->add_option("--max-switch-voltage", max_voltage, "highest acceptable switch voltage, e.g. \"48 V\"")->required();
   suggest->add_option("--top", top, "how many to list (default 15)")->check(CLI::Range(1, 1000));
 
@@ -80,7 +85,7 @@ int main(int argc, char** argv) {
     if (compare->parsed()) return cmd_compare(o, csv, plot, std::cout);
     if (sweep->parsed()) return cmd_sweep(o, vary, output, std::cout);
     if (tol->parsed()) return cmd_tolerance(o, samples, seed, std::cout);
-    if (suggest->parsed()) return cmd_suggest(o, max_release, max_voltage, top, std::cout);
+    if (suggest->parsed()) return cmd_suggest(o, max_release, max_voltage, top, std::cout, time_metric, suggest_kinds);
     if (faults->parsed()) return cmd_faults(o, csv, std::cout);
     if (demo->parsed()) {
       const std::string models = o.models_dir.empty() ? coilkick::catalogue::default_models_directory() : o.models_dir;

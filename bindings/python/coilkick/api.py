@@ -204,10 +204,13 @@ def tolerance(scenario, samples: int = 1000, seed: int = 1, executor=None, threa
     return ToleranceResult(spreads, rows)
 
 
-def suggest(scenario, max_release_time_s: float, max_switch_voltage_V: float, threads: int = 0) -> pd.DataFrame:
+def suggest(scenario, max_release_time_s: float, max_switch_voltage_V: float, threads: int = 0,
+            time_metric: str = "release_time_s", kinds: Optional[List[str]] = None) -> pd.DataFrame:
     """Preferred-value clamps (E24 Zeners, TVS, E12 resistors, E3 RC pairs) ranked against the limits:
-    those meeting both first, fastest release first."""
-    rows = _core.suggest(scenario, float(max_release_time_s), float(max_switch_voltage_V), threads)
+    those meeting both first, fastest release first. time_metric: what the release time is,
+    "release_time_s" (coil current below release) or "contact_open_time_s" (armature model);
+    kinds: only these clamp kinds (default: all)."""
+    rows = _core.suggest(scenario, float(max_release_time_s), float(max_switch_voltage_V), threads, time_metric, list(kinds or []))
     lead = [{"clamp_kind": r["clamp_kind"], "parts": r["parts"], "meets_limits": r["meets_limits"],
              "release_margin": r["release_margin"], "voltage_margin": r["voltage_margin"]} for r in rows]
     return _frame(rows, lead)

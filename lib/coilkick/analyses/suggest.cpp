@@ -20,10 +20,24 @@ std::vector<Suggestion> suggest_clamps(const scenario::Scenario& s, const catalo
   if (!(limits.max_switch_voltage_V > 0.0) || !std::isfinite(limits.max_switch_voltage_V)) {
     throw std::invalid_argument("suggest: --max-switch-voltage must be a positive voltage");
   }
+  const bool contacts = limits.time_metric == "contact_open_time_s";
+  if (!contacts && limits.time_metric != "release_time_s") {
+    throw std::invalid_argument("suggest: --time-metric must be release_time_s or contact_open_time_s, not '" + limits.time_metric + "'");
+  }
+  if (contacts && !s.driver.relay.armature_model) {
+    throw std::invalid_argument("suggest: --time-metric contact_open_time_s needs the armature model ([relay] armature_model = true)");
+  }
+  // The time a candidate is judged by; the current-based release time falls back to the 10 %
+  // decay when the scenario gives no release threshold.
+  auto time_of = [&](const drivers::Metrics& m) {
+    const double t = m.get(limits.time_metric);
+    return std::isnan(t) && !contacts ? m.get("current_decay_time_10pct_s") : t;
+  };
   using drivers::ClampKind;
   const drivers::ClampSpec base = s.driver.clamp;
   std::vector<Suggestion> out;
   auto add = [&](drivers::ClampSpec c) {
+    if (!limits.kinds.empty() && std::find(limits.kinds.begin(), limits.kinds.end(), c.kind) == limits.kinds.end()) return;
     c.add_rc_snubber_across_coil = false;
     Suggestion g;
     g.clamp = c;
@@ -83,18 +97,16 @@ std::vector<Suggestion> suggest_clamps(const scenario::Scenario& s, const catalo
     d.clamp = g.clamp;
     g.run = summarize_run(d, parts);
     if (!g.run.ok()) return;
-    const double t = g.run.metrics.get("release_time_s");
-    const double t_use = std::isnan(t) ? g.run.metrics.get("current_decay_time_10pct_s") : t;
+    const double t_use = time_of(g.run.metrics);
     const double v = g.run.metrics.get("switch_voltage_peak_V");
     g.release_margin = (limits.max_release_time_s - t_use) / limits.max_release_time_s;
     g.voltage_margin = (limits.max_switch_voltage_V - v) / limits.max_switch_voltage_V;
     g.meets = std::isfinite(t_use) && g.release_margin >= 0.0 && g.voltage_margin >= 0.0 &&
               g.run.status != drivers::CheckStatus::fail;
   }, progress);
-  auto key = [](const Suggestion& g) {
+  auto key = [&](const Suggestion& g) {
     if (!g.run.ok()) return std::numeric_limits<double>::infinity();
-    double t = g.run.metrics.get("release_time_s");
-    if (std::isnan(t)) t = g.run.metrics.get("current_decay_time_10pct_s");
+    const double t = time_of(g.run.metrics);
     return std::isnan(t) ? std::numeric_limits<double>::infinity() : t;
   };
   std::stable_sort(out.begin(), out.end(), [&](const Suggestion& a, const Suggestion& b) {

@@ -3,7 +3,9 @@
 // catalogue (E24 voltages, IEC 60063) for diode+Zener and for the active clamp, every TVS for
 // the clamp across the switch, E12 resistors (10 ohm … 10 kohm) for diode+resistor, and E3
 // resistor × capacitor pairs (10 ohm … 1 kohm × 10 nF … 10 µF) for an RC across the coil —
-// and ranks those that meet both limits by release time (fastest first), with the margins.
+// and ranks those that meet both limits by release time (fastest first), with the margins. The
+// release time is the coil current falling below the release current, or, with the armature
+// model, the contact opening (time_metric = "contact_open_time_s").
 #include <functional>
 #include <string>
 #include <vector>
@@ -16,6 +18,11 @@ namespace coilkick::analyses {
 struct SuggestLimits {
   double max_release_time_s = 0.0;
   double max_switch_voltage_V = 0.0;
+  // The metric the time limit applies to and the ranking uses: "release_time_s" or, with the
+  // armature model, "contact_open_time_s".
+  std::string time_metric = "release_time_s";
+  // Only these clamp kinds (empty: every kind the search knows).
+  std::vector<drivers::ClampKind> kinds;
 };
 
 struct Suggestion {
