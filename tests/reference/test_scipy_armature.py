@@ -1,7 +1,8 @@
 """The relay armature model inside a driver against an independent scipy solution.
 
 The driver is the one of test_scipy_reference.py (low-side NPN, plain diode clamp, Ebers–Moll and
-Shockley written out here, device charges and resistances overridden to zero in the library).
+Shockley written out in scipy_driver_equations.py, device charges and resistances overridden to
+zero in the library).
 The coil is the armature model, written here from its textbook form in another state: the flux
 linkage λ instead of the current (Fitzgerald, Kingsley & Umans, Electric Machinery, 6th ed., ch. 3:
 dλ/dt = v − R·i, i = λ/L(g), force ½·i²·dL/dg), with the gap and velocity of the armature, the
@@ -15,13 +16,10 @@ from scipy.optimize import brentq, fsolve
 
 import coilkick
 
-K_OVER_Q = 1.380649e-23 / 1.602176634e-19  # 2019 SI, exact
-VT = K_OVER_Q * (25.0 + 273.15)
+from scipy_driver_equations import (C_NODE, DIODE_OVERRIDES, R_B, R_COIL, R_OUT, SWITCH_OVERRIDES, T_FALL, T_OFF, V_HIGH,
+                                    VS, currents, v_logic)
+
 MU0 = 1.25663706212e-6                      # CODATA 2018
-VS, R_OUT, R_B, R_COIL, V_HIGH = 12.0, 50.0, 1e3, 400.0, 5.0
-T_OFF, T_FALL, C_NODE, G_MIN = 100e-6, 10e-9, 1e-12, 1e-12
-IS_Q, BF, BR, VA = 1e-14, 200.0, 3.0, 1e12        # npn_small_signal_40v (Early effect pushed away)
-IS_D, N_D = 5e-9, 1.8                              # rectifier_1a
 SOFT = 0.1                                         # the stop law's smoothing (armature_coil.cpp)
 
 
@@ -36,13 +34,8 @@ def scenario():
                   "contact_gap": "0.4 mm", "over_travel": "0.1 mm"},
         "switch": {"topology": "low_side_npn", "part": "npn_small_signal_40v", "base_resistor": R_B,
                    "board_stray_capacitance": 0.0,
-                   "overrides": {"collector_resistance": 0.0, "base_emitter_capacitance": 0.0,
-                                 "base_collector_capacitance": 0.0, "forward_transit_time": 0.0,
-                                 "reverse_transit_time": 0.0, "forward_early_voltage": VA,
-                                 "collector_emitter_breakdown_voltage": 1e4}},
-        "clamp": {"kind": "diode", "diode_part": "rectifier_1a",
-                  "diode": {"overrides": {"series_resistance": 0.0, "transit_time": 0.0,
-                                          "zero_bias_capacitance": 0.0, "breakdown_voltage": 1e5}}},
+                   "overrides": SWITCH_OVERRIDES},
+        "clamp": {"kind": "diode", "diode_part": "rectifier_1a", "diode": {"overrides": DIODE_OVERRIDES}},
         "analysis": {"model_level": "physical", "relative_tolerance": 1e-8},
     })
 
@@ -80,24 +73,6 @@ class Armature:
         i = lam / self.inductance(g)
         p = self.p
         return self.spring(g) + 0.5 * i * i * self.inductance_slope(g) + self.stops(g, u) - p["damping_N_s_per_m"] * u
-
-
-def v_logic(t):
-    if t <= T_OFF:
-        return V_HIGH
-    if t >= T_OFF + T_FALL:
-        return 0.0
-    return V_HIGH * (1.0 - (t - T_OFF) / T_FALL)
-
-
-def currents(vb, vc):
-    i_f = IS_Q * np.expm1(vb / VT)
-    i_r = IS_Q * np.expm1((vb - vc) / VT)
-    ic = (i_f - i_r) * (1.0 - (vb - vc) / VA) - i_r / BR - G_MIN * (vb - vc) + G_MIN * vc
-    ib = i_f / BF + i_r / BR + G_MIN * vb + G_MIN * (vb - vc)
-    u = vc - VS
-    i_d = IS_D * np.expm1(u / (N_D * VT)) + G_MIN * u
-    return ic, ib, i_d
 
 
 @pytest.fixture(scope="module")

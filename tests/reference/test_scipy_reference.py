@@ -1,5 +1,5 @@
 """An independent implementation of a low-side NPN driver with a plain diode clamp, written
-out here from the textbook device equations (Ebers–Moll transport form, Ebers & Moll, Proc. IRE
+out from the textbook device equations (scipy_driver_equations.py: Ebers–Moll transport form, Ebers & Moll, Proc. IRE
 42, 1954; Shockley diode law, Bell Syst. Tech. J. 28, 1949) and Kirchhoff's laws, solved with
 scipy's Radau (Hairer & Wanner, "Solving ODEs II", IV.8) — nothing taken from the library — and
 compared with the library on peak switch voltage, release time and clamp energy.
@@ -15,13 +15,10 @@ from scipy.optimize import fsolve
 
 import coilkick
 
-K_OVER_Q = 1.380649e-23 / 1.602176634e-19  # 2019 SI, exact
-VT = K_OVER_Q * (25.0 + 273.15)
-VS, R_OUT, R_B, R_COIL, L, V_HIGH = 12.0, 50.0, 1e3, 400.0, 0.6, 5.0
-T_OFF, T_FALL, C_NODE, G_MIN = 100e-6, 10e-9, 1e-12, 1e-12
-IS_Q, BF, BR, VA = 1e-14, 200.0, 3.0, 1e12        # npn_small_signal_40v (Early effect pushed away)
-IS_D, N_D = 5e-9, 1.8                              # rectifier_1a
-I_REL = 3e-3
+from scipy_driver_equations import (C_NODE, DIODE_OVERRIDES, R_B, R_COIL, R_OUT, SWITCH_OVERRIDES, T_FALL, T_OFF, V_HIGH,
+                                    VS, currents, v_logic)
+
+L, I_REL = 0.6, 3e-3
 
 
 def scenario():
@@ -32,34 +29,10 @@ def scenario():
         "coil": {"resistance": R_COIL, "inductance": L, "release_current": I_REL},
         "switch": {"topology": "low_side_npn", "part": "npn_small_signal_40v", "base_resistor": R_B,
                    "board_stray_capacitance": 0.0,
-                   "overrides": {"collector_resistance": 0.0, "base_emitter_capacitance": 0.0,
-                                 "base_collector_capacitance": 0.0, "forward_transit_time": 0.0,
-                                 "reverse_transit_time": 0.0, "forward_early_voltage": VA,
-                                 "collector_emitter_breakdown_voltage": 1e4}},
-        "clamp": {"kind": "diode", "diode_part": "rectifier_1a",
-                  "diode": {"overrides": {"series_resistance": 0.0, "transit_time": 0.0,
-                                          "zero_bias_capacitance": 0.0, "breakdown_voltage": 1e5}}},
+                   "overrides": SWITCH_OVERRIDES},
+        "clamp": {"kind": "diode", "diode_part": "rectifier_1a", "diode": {"overrides": DIODE_OVERRIDES}},
         "analysis": {"model_level": "physical", "relative_tolerance": 1e-8},
     })
-
-
-def v_logic(t):
-    if t <= T_OFF:
-        return V_HIGH
-    if t >= T_OFF + T_FALL:
-        return 0.0
-    return V_HIGH * (1.0 - (t - T_OFF) / T_FALL)
-
-
-def currents(vb, vc):
-    """Collector and base currents of the NPN (emitter grounded) and the clamp diode's current."""
-    i_f = IS_Q * np.expm1(vb / VT)
-    i_r = IS_Q * np.expm1((vb - vc) / VT)
-    ic = (i_f - i_r) * (1.0 - (vb - vc) / VA) - i_r / BR - G_MIN * (vb - vc) + G_MIN * vc
-    ib = i_f / BF + i_r / BR + G_MIN * vb + G_MIN * (vb - vc)
-    u = vc - VS
-    i_d = IS_D * np.expm1(u / (N_D * VT)) + G_MIN * u
-    return ic, ib, i_d
 
 
 def rates(t, y):
