@@ -9,7 +9,7 @@
 namespace coilkick::relay {
 namespace {
 
-constexpr int kA = 0, kB = 1, kI = 2, kG = 3, kU = 4;  // local indices
+constexpr int kI = 2, kG = 3, kU = 4;  // local indices of the states (terminals a, b are 0, 1)
 // Held armature: the gap relaxes to the residual gap at this rate (1/s) and the velocity to
 // zero; started there (as the operating point does) both stay exactly put.
 constexpr double kHoldRate_per_s = 1e3;
@@ -153,8 +153,6 @@ void ArmatureCoil::load(const engine::ElementContext& ctx, engine::Stamper& out)
   out.add_power_slope(ch_stops, kG, -da_c * (psi_c.value - 1.0) * u + da_o * (psi_o.value - 1.0) * u);
   out.add_power_slope(ch_stops, kU,
                       -a_c * ((psi_c.value - 1.0) - alpha * psi_c.slope * u) + a_o * ((psi_o.value - 1.0) + alpha * psi_o.slope * u));
-  (void)kA;
-  (void)kB;
 }
 
 void ArmatureCoil::load_mass_slope(const engine::ElementContext& ctx, engine::Stamper& out) const {
