@@ -127,8 +127,7 @@ TEST_CASE("suggest by contact opening: needs the armature model, then ranks by i
   std::string text = pwl_scenario_text();
   const std::string rc = "release_current = \"3 mA\"";
   text.replace(text.find(rc), rc.size(), "release_voltage = \"1.8 V\"\noperate_voltage = \"8.4 V\"\ncore_loss_resistance = \"20 kohm\"");
-  // Physical models: at the pwl level the clamp's Zener rests on its knee in the on-state and the
-  // switch-on run chatters there (58k steps; see the closing note of issue 8).
+  // Physical models, as a designer would rank clamps by contact timing.
   const std::string pwl = "model_level = \"pwl\"";
   text.replace(text.find(pwl), pwl.size(), "model_level = \"physical\"");
   text += "[relay]\narmature_model = true\noperate_time = \"8 ms\"\nrelease_time = \"2.5 ms\"\n";

@@ -116,8 +116,10 @@ class PwlDiode final : public TerminalDevice<PwlDiode, 2> {
     const S u = v[0] - v[1];
     S ia = p_.minimum_conductance_S * u;
     const double uv = value_of(u);
-    if (uv > c_.knee_voltage_V) ia = ia + (u - c_.knee_voltage_V) / c_.on_resistance_ohm;
-    if (c_.has_breakdown && -uv > c_.breakdown_knee_V) ia = ia - (-u - c_.breakdown_knee_V) / c_.breakdown_resistance_ohm;
+    if (uv > c_.knee_voltage_V - kPwlKneeRounding_V) ia = ia + knee_ramp(u - c_.knee_voltage_V) / c_.on_resistance_ohm;
+    if (c_.has_breakdown && -uv > c_.breakdown_knee_V - kPwlKneeRounding_V) {
+      ia = ia - knee_ramp(-u - c_.breakdown_knee_V) / c_.breakdown_resistance_ohm;
+    }
     i[0] = ia;
     i[1] = -ia;
   }

@@ -51,6 +51,20 @@ S exp_limited(const S& x, double x_crit) {
   return ec * (1.0 + (x - x_crit));
 }
 
+// The pwl knee max(x, 0) rounded to C¹ within ±w/2 of the corner: 0 below −w/2, the parabola
+// (x + w/2)²/(2·w) between, x above — so outside those 0.1 mV both segments are exactly the
+// straight lines. A plain corner makes the conductance jump at the knee; a node resting there
+// (a Zener held at its forward knee by a leakage path, say) then chatters between the segments
+// and the integrator takes tens of thousands of steps.
+inline constexpr double kPwlKneeRounding_V = 1e-4;
+template <class S>
+S knee_ramp(const S& x, double width = kPwlKneeRounding_V) {
+  const double xv = value_of(x);
+  if (xv <= -0.5 * width) return S(0.0);
+  if (xv < 0.5 * width) return (x + 0.5 * width) * (x + 0.5 * width) / (2.0 * width);
+  return x;
+}
+
 struct DepletionParameters {
   double zero_bias_capacitance_F = 0.0;
   double built_in_potential_V = 0.7;
