@@ -14,7 +14,7 @@
 #include "coilkick/engine/operating_point.hpp"
 #include "coilkick/engine/transient.hpp"
 #include "coilkick/relay/armature_coil.hpp"
-#include "coilkick/relay/closed_operating_point.hpp"
+#include "coilkick/relay/armature_operating_point.hpp"
 #include "coilkick/relay/relay_calibration.hpp"
 
 using namespace coilkick;

@@ -10,9 +10,8 @@
 #include "../approx.hpp"
 #include "coilkick/engine/network.hpp"
 #include "coilkick/engine/operating_point.hpp"
-#include "coilkick/engine/state.hpp"
 #include "coilkick/engine/transient.hpp"
-#include "coilkick/relay/closed_operating_point.hpp"
+#include "coilkick/relay/armature_operating_point.hpp"
 #include "coilkick/relay/relay_calibration.hpp"
 
 using namespace coilkick;
@@ -41,14 +40,8 @@ double ramp_switching_voltage_V(const relay::ArmatureCoilParameters& p, double v
   net.add_voltage_source("source", "top", engine::Waveform::edge(rising ? 0.0 : v_nominal, rising ? v_nominal : 0.0, t0, ramp));
   net.add(std::make_shared<relay::ArmatureCoil>("coil", "top", engine::Network::ground, p));
   const engine::Circuit c(net);
-  engine::CircuitState start;
-  if (rising) {
-    start = engine::guess_state(c, 0.0);
-    engine::set_state(c, start, "coil.gap", p.mechanics.open_gap_m);
-    start = engine::solve_operating_point(c, start);
-  } else {
-    start = relay::operating_point_with_armatures_closed(net, c, 0.0);
-  }
+  const engine::CircuitState start = rising ? relay::operating_point_with_armatures_open(net, c, 0.0)
+                                             : relay::operating_point_with_armatures_closed(net, c, 0.0);
   engine::TransientOptions o;
   o.stop_time_s = t0 + ramp;
   o.record_waveforms = false;

@@ -12,7 +12,7 @@
 #include "coilkick/engine/errors.hpp"
 #include "coilkick/engine/operating_point.hpp"
 #include "coilkick/engine/rewired_element.hpp"
-#include "coilkick/relay/closed_operating_point.hpp"
+#include "coilkick/relay/armature_operating_point.hpp"
 
 namespace coilkick::drivers {
 namespace {
@@ -183,6 +183,14 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
 
   std::vector<std::pair<std::pair<std::string, std::string>, BuiltDriver>> cases;
   auto add_case = [&](const std::string& part, const std::string& fault, Injector& inj) { cases.push_back({{part, fault}, inj.out}); };
+  // A coil opens, or 30 % of its turns short (`shorted`: the same coil with fewer turns).
+  auto coil_faults = [&](const std::string& n, std::shared_ptr<const engine::Element> shorted) {
+    Injector open(healthy), turns(healthy);
+    open.resistor_in_place(n, kOpen_ohm);
+    add_case(n, "open", open);
+    turns.out.network.replace(n, std::move(shorted));
+    add_case(n, "30 % of turns shorted", turns);
+  };
   for (const auto& e : healthy.network.elements()) {
     const std::string n = e->name();
     const auto& t = e->terminals();
@@ -213,24 +221,16 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
       leak.resistor_across(n + ".leak", t[0], t[1], kLeak_ohm);
       add_case(n, mos ? "drain-gate leaky" : "collector-base junction leaky", leak);
     } else if (const auto* coil = dynamic_cast<const engine::Coil*>(e.get())) {
-      Injector open(healthy), turns(healthy);
-      open.resistor_in_place(n, kOpen_ohm);
-      add_case(n, "open", open);
       engine::CoilParameters p = coil->parameters();
       p.inductance_H *= (1.0 - kShortedTurns) * (1.0 - kShortedTurns);  // L ∝ N²
       p.resistance_ohm *= (1.0 - kShortedTurns);                         // R ∝ N (same wire)
-      turns.out.network.replace(n, std::make_shared<engine::Coil>(n, t[0], t[1], p));
-      add_case(n, "30 % of turns shorted", turns);
+      coil_faults(n, std::make_shared<engine::Coil>(n, t[0], t[1], p));
     } else if (const auto* arm = dynamic_cast<const relay::ArmatureCoil*>(e.get())) {
-      Injector open(healthy), turns(healthy);
-      open.resistor_in_place(n, kOpen_ohm);
-      add_case(n, "open", open);
       relay::ArmatureCoilParameters p = arm->parameters();
       p.magnetic.turns *= (1.0 - kShortedTurns);  // the magnetic model scales L and force with N²
       p.magnetic.leakage_inductance_H *= (1.0 - kShortedTurns) * (1.0 - kShortedTurns);
       p.resistance_ohm *= (1.0 - kShortedTurns);  // R ∝ N (same wire)
-      turns.out.network.replace(n, std::make_shared<relay::ArmatureCoil>(n, t[0], t[1], p));
-      add_case(n, "30 % of turns shorted", turns);
+      coil_faults(n, std::make_shared<relay::ArmatureCoil>(n, t[0], t[1], p));
     }
   }
   {

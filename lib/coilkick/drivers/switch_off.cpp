@@ -9,8 +9,9 @@
 #include "coilkick/engine/probe.hpp"
 #include "coilkick/engine/state.hpp"
 #include "coilkick/engine/transient.hpp"
+#include "coilkick/drivers/run_options.hpp"
 #include "coilkick/drivers/switch_on.hpp"
-#include "coilkick/relay/closed_operating_point.hpp"
+#include "coilkick/relay/armature_operating_point.hpp"
 
 namespace coilkick::drivers {
 namespace {
@@ -117,19 +118,16 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   // ---- switch-off transient
   const double r_coil = b.coil_resistance_ohm;
   const double tau = spec.coil.inductance_H / r_coil;
-  engine::TransientOptions o;
   // With the armature model the contact opens after the current has fallen and the armature
   // has travelled: allow 20 data-sheet release times more.
-  const double mechanical_s = b.armature ? 20.0 * relay_datasheet(spec).release_time_s : 0.0;
-  o.stop_time_s = spec.analysis.stop_time_s > 0.0 ? spec.analysis.stop_time_s : t_off + spec.drive.fall_time_s + 8.0 * tau + mechanical_s;
-  o.relative_tolerance = spec.analysis.relative_tolerance;
-  o.voltage_tolerance_V = spec.analysis.voltage_tolerance_V;
-  o.current_tolerance_A = spec.analysis.current_tolerance_A;
-  o.energy_tolerance_J = std::max(1e-15, 1e-9 * 0.5 * spec.coil.inductance_H * i0 * i0);
-  o.maximum_wall_time_s = spec.analysis.maximum_wall_time_s;
+  const double release_s = b.armature ? relay_datasheet(spec).release_time_s : 0.0;
+  auto o = driver_transient_options(spec,
+                                    spec.analysis.stop_time_s > 0.0 ? spec.analysis.stop_time_s
+                                                                    : t_off + spec.drive.fall_time_s + 8.0 * tau + 20.0 * release_s,
+                                    i0);
   // Armature: an L-stable step much longer than its snap-over would damp that instability
   // instead of following it (relay_calibration.cpp); a tenth of the release time bounds it.
-  if (b.armature) o.maximum_step_s = 0.1 * relay_datasheet(spec).release_time_s;
+  if (b.armature) o.maximum_step_s = 0.1 * release_s;
   const Probe p_vsw("switch voltage", vsw);
   const Probe p_coil = Probe::state(c, "coil.current");
   std::vector<EventSpec> ev{EventSpec::maximum("peak", p_vsw, t_off),

@@ -118,15 +118,15 @@ double EventLocator::on_step(double t0, const double* x0, double t1, const doubl
     // the end itself (a monotone stretch, e.g. a spike rising over many steps): refining there
     // would only confirm it, at ~60 probe calls.
     constexpr int n = 5;
-    // Once an extremum is known, a step whose two ends both lie more than 10 % of it on the far
-    // side cannot hold a better one: the step's error control keeps the states (and so a probe of
-    // them) from swinging that far inside one step and back. Skip it without sampling — probes
-    // such as a device's current cost a full circuit evaluation each.
     double ts[n], vs[n];
     ts[0] = a;
     ts[n - 1] = t1;
     vs[0] = a == t0 ? probe_at_start(k, t0, x0) : probe_at(e, a, f);
     vs[n - 1] = probe_at_end(k, t1, x1);
+    // Once an extremum is known, a step whose two ends both lie more than 10 % of it on the far
+    // side cannot hold a better one: the step's error control keeps the states (and so a probe of
+    // them) from swinging that far inside one step and back. Skip it without sampling — probes
+    // such as a device's current cost a full circuit evaluation each.
     if (outcomes_[k].time_s) {
       const double best_value = outcomes_[k].value, margin = 0.1 * std::abs(best_value);
       auto far_worse = [&](double v) { return e.kind == EventSpec::Kind::maximum ? v < best_value - margin : v > best_value + margin; };

@@ -12,10 +12,9 @@
 
 #include "coilkick/engine/errors.hpp"
 #include "coilkick/engine/network.hpp"
-#include "coilkick/engine/operating_point.hpp"
 #include "coilkick/engine/parameter_check.hpp"
 #include "coilkick/engine/transient.hpp"
-#include "coilkick/relay/closed_operating_point.hpp"
+#include "coilkick/relay/armature_operating_point.hpp"
 
 namespace coilkick::relay {
 namespace {
@@ -171,17 +170,12 @@ engine::TransientOptions run_options(const ArmatureCoilParameters& p, double vol
   return o;
 }
 
+// Rising: the contact breaks (energised, operated relay); falling: it makes (released relay).
 double contact_change_time_s(const engine::Network& net, const ArmatureCoilParameters& p, double voltage_V, double limit_s,
-                             double start_gap_m, engine::Direction direction) {
+                             engine::Direction direction) {
   const engine::Circuit c(net);
-  engine::CircuitState start;
-  if (direction == engine::Direction::rising) {
-    start = operating_point_with_armatures_closed(net, c, 0.0);  // energised, operated
-  } else {
-    engine::CircuitState guess = engine::guess_state(c, 0.0);
-    engine::set_state(c, guess, "coil.gap", start_gap_m);
-    start = engine::solve_operating_point(c, guess);
-  }
+  const engine::CircuitState start = direction == engine::Direction::rising ? operating_point_with_armatures_closed(net, c, 0.0)
+                                                                             : operating_point_with_armatures_open(net, c, 0.0);
   const auto ev = engine::EventSpec::crossing("contact", engine::Probe::state(c, "coil.gap"), p.mechanics.make_gap_m, direction,
                                               kEdgeAt_s, true);
   const auto r = engine::simulate(c, start, run_options(p, voltage_V, limit_s), {ev});
@@ -252,7 +246,7 @@ double operate_time_s(const ArmatureCoilParameters& p, double voltage_V, double 
   engine::Network net;
   net.add_voltage_source("source", "coil_top", engine::Waveform::edge(0.0, voltage_V, kEdgeAt_s, kEdgeTime_s));
   net.add(std::make_shared<ArmatureCoil>("coil", "coil_top", engine::Network::ground, p));
-  return contact_change_time_s(net, p, voltage_V, limit_s, p.mechanics.open_gap_m, engine::Direction::falling);
+  return contact_change_time_s(net, p, voltage_V, limit_s, engine::Direction::falling);
 }
 
 double release_time_s(const ArmatureCoilParameters& p, double voltage_V, double limit_s) {
@@ -261,7 +255,7 @@ double release_time_s(const ArmatureCoilParameters& p, double voltage_V, double 
   net.add_timed_switch("breaker", "supply", "coil_top", {1e-3, 1e9, kEdgeAt_s, kEdgeTime_s});
   net.add(std::make_shared<ArmatureCoil>("coil", "coil_top", engine::Network::ground, p));
   net.add_resistor("discharge", "coil_top", engine::Network::ground, kDischargeFactor * p.resistance_ohm);
-  return contact_change_time_s(net, p, voltage_V, limit_s, p.mechanics.residual_gap_m, engine::Direction::rising);
+  return contact_change_time_s(net, p, voltage_V, limit_s, engine::Direction::rising);
 }
 
 namespace {

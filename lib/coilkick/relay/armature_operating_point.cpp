@@ -1,8 +1,10 @@
-#include "coilkick/relay/closed_operating_point.hpp"
+#include "coilkick/relay/armature_operating_point.hpp"
 
 #include <cmath>
 #include <memory>
 #include <vector>
+
+#include "coilkick/engine/state.hpp"
 
 #include "coilkick/relay/armature_coil.hpp"
 
@@ -32,6 +34,17 @@ engine::CircuitState operating_point_with_armatures_closed(const engine::Network
     const double hold = -(m.spring_force_N(m.residual_gap_m) + arm->parameters().magnetic.force_N(i, m.residual_gap_m));
     const double p = hold > 0.0 ? std::pow(hold / m.stop_stiffness_N_per_m1_5, 2.0 / 3.0) : 0.0;
     guess.values[circuit.state_index(arm->name() + ".gap")] = m.residual_gap_m - p;
+  }
+  return engine::solve_operating_point(circuit, guess);
+}
+
+engine::CircuitState operating_point_with_armatures_open(const engine::Network& network, const engine::Circuit& circuit,
+                                                         double time_s) {
+  engine::CircuitState guess = engine::guess_state(circuit, time_s);
+  for (const auto& e : network.elements()) {
+    if (const auto* arm = dynamic_cast<const ArmatureCoil*>(e.get())) {
+      guess.values[circuit.state_index(arm->name() + ".gap")] = arm->parameters().mechanics.open_gap_m;
+    }
   }
   return engine::solve_operating_point(circuit, guess);
 }
