@@ -138,10 +138,9 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   const int gap_i = b.armature ? c.state_index("coil.gap") : -1;
   if (b.armature) ev.push_back(EventSpec::crossing("contact_open", Probe::state(c, "coil.gap"), make_gap, Direction::rising, t_off));
   if (!b.clamp_current_element.empty()) {
-    const int el = c.element_index(b.clamp_current_element);
-    auto ws = std::make_shared<engine::Workspace>(c.make_workspace());
-    ev.push_back(EventSpec::maximum("clamp_peak", Probe("clamp current", [&c, el, ws](double t, const double* x) {
-                                      return std::abs(c.terminal_currents_A(el, t, x, *ws)[0]);
+    const Probe current = Probe::element_current(c, b.clamp_current_element, 0);
+    ev.push_back(EventSpec::maximum("clamp_peak", Probe::using_rates("clamp current", [current](double t, const double* x, const double* rates) {
+                                      return std::abs(current(t, x, rates));
                                     }), t_off));
   }
   // Stop once the energy left in the coil and at the switch node is a small fraction of the

@@ -247,6 +247,19 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
 std::vector<double> Circuit::terminal_currents_A(int element, double t_s, const double* x,
                                                  Workspace& w) const {
   evaluate(t_s, t_s, x, w, false);
+  return terminal_currents_A(element, t_s, x, w.rate.data(), w);
+}
+
+std::vector<double> Circuit::terminal_currents_A(int element, double t_s, const double* x,
+                                                 const double* rates, Workspace& w) const {
+  for (int i = 0; i < n_circuit_; ++i) {
+    w.ext_value[i] = x[i];
+    w.ext_rate[i] = rates[i];
+  }
+  for (int j = 0; j < n_fixed_; ++j) {
+    w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
+    w.ext_rate[n_circuit_ + j] = sources_[j].voltage_V.slope(t_s);
+  }
   const auto& e = *elements_.at(static_cast<std::size_t>(element));
   const auto& map = maps_[static_cast<std::size_t>(element)];
   const int n = static_cast<int>(map.size());

@@ -85,9 +85,13 @@ class Circuit {
   // ẋ (and, if asked, ∂ẋ/∂x and ∂ẋ/∂t) into w.rate / w.jacobian / w.time_rate.
   void evaluate(double t_s, double slope_time_s, const double* x, Workspace& w,
                 bool with_jacobian) const;
-  // Current (A) flowing into the element at each of its terminals at (t, x).
+  // Current (A) flowing into the element at each of its terminals at (t, x): one full
+  // evaluation for the rates its charges need.
   std::vector<double> terminal_currents_A(int element, double t_s, const double* x,
                                           Workspace& w) const;
+  // The same with the rates ẋ known (a recorded point): only the element is loaded.
+  std::vector<double> terminal_currents_A(int element, double t_s, const double* x,
+                                          const double* rates, Workspace& w) const;
   // Energy stored in fields (J): element `e`, or the whole circuit (elements + stray) for e = -1.
   double stored_energy_J(int element, double t_s, const double* x, Workspace& w) const;
   // First corner of any source waveform or element time dependence strictly after t_s.

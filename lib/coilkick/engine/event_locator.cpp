@@ -14,33 +14,35 @@ bool better(EventSpec::Kind kind, double candidate, double current) {
 
 EventLocator::EventLocator(const std::vector<EventSpec>& specs, int state_size,
                            double time_tolerance_s)
-    : specs_(specs), scratch_(static_cast<std::size_t>(state_size)), tol_(time_tolerance_s) {
+    : specs_(specs), scratch_x_(static_cast<std::size_t>(state_size)),
+      scratch_rate_(static_cast<std::size_t>(state_size)), tol_(time_tolerance_s) {
   for (const auto& s : specs_) outcomes_.push_back({s.name, std::nullopt, std::nan("")});
   end_time_.assign(specs_.size(), std::nan(""));
   end_value_.assign(specs_.size(), std::nan(""));
+  kept_.resize(specs_.size());
 }
 
-double EventLocator::probe_at_start(std::size_t k, double t0, const double* x0) {
-  return end_time_[k] == t0 ? end_value_[k] : specs_[k].probe(t0, x0);
+double EventLocator::probe_at_start(std::size_t k, double t0, const double* x0, const double* r0) {
+  return end_time_[k] == t0 ? end_value_[k] : specs_[k].probe(t0, x0, r0);
 }
 
-double EventLocator::probe_at_end(std::size_t k, double t1, const double* x1) {
+double EventLocator::probe_at_end(std::size_t k, double t1, const double* x1, const double* r1) {
   end_time_[k] = t1;
-  end_value_[k] = specs_[k].probe(t1, x1);
+  end_value_[k] = specs_[k].probe(t1, x1, r1);
   return end_value_[k];
 }
 
 double EventLocator::probe_at(const EventSpec& e, double t, const Interpolant& f) {
-  f(t, scratch_.data());
-  return e.probe(t, scratch_.data());
+  f(t, scratch_x_.data(), scratch_rate_.data());
+  return e.probe(t, scratch_x_.data(), scratch_rate_.data());
 }
 
-void EventLocator::start(double t_s, const double* x) {
+void EventLocator::start(double t_s, const double* x, const double* rates) {
   for (std::size_t k = 0; k < specs_.size(); ++k) {
     const auto& e = specs_[k];
     if (e.kind == EventSpec::Kind::crossing || t_s < e.after_time_s) continue;
     outcomes_[k].time_s = t_s;
-    outcomes_[k].value = e.probe(t_s, x);
+    outcomes_[k].value = e.probe(t_s, x, rates);
   }
 }
 
@@ -90,8 +92,9 @@ void EventLocator::refine_extremum(std::size_t k, double a, double b, const Inte
   }
 }
 
-double EventLocator::on_step(double t0, const double* x0, double t1, const double* x1,
-                             const Interpolant& f) {
+double EventLocator::on_step(double t0, const double* x0, const double* r0, double t1,
+                             const double* x1, const double* r1, const Interpolant& f,
+                             const KeepInterpolant& keep) {
   double stop_at = std::numeric_limits<double>::infinity();
   for (std::size_t k = 0; k < specs_.size(); ++k) {
     const auto& e = specs_[k];
@@ -99,8 +102,8 @@ double EventLocator::on_step(double t0, const double* x0, double t1, const doubl
     const double a = std::max(t0, e.after_time_s);
     if (e.kind == EventSpec::Kind::crossing) {
       if (outcomes_[k].time_s) continue;  // first occurrence only
-      const double ga = (a == t0 ? probe_at_start(k, t0, x0) : probe_at(e, a, f)) - e.threshold;
-      const double gb = probe_at_end(k, t1, x1) - e.threshold;
+      const double ga = (a == t0 ? probe_at_start(k, t0, x0, r0) : probe_at(e, a, f)) - e.threshold;
+      const double gb = probe_at_end(k, t1, x1, r1) - e.threshold;
       const bool falls = ga > 0.0 && gb <= 0.0;
       const bool rises = ga < 0.0 && gb >= 0.0;
       const bool hit = (e.direction == Direction::falling && falls) ||
@@ -121,8 +124,8 @@ double EventLocator::on_step(double t0, const double* x0, double t1, const doubl
     double ts[n], vs[n];
     ts[0] = a;
     ts[n - 1] = t1;
-    vs[0] = a == t0 ? probe_at_start(k, t0, x0) : probe_at(e, a, f);
-    vs[n - 1] = probe_at_end(k, t1, x1);
+    vs[0] = a == t0 ? probe_at_start(k, t0, x0, r0) : probe_at(e, a, f);
+    vs[n - 1] = probe_at_end(k, t1, x1, r1);
     // Once an extremum is known, a step whose two ends both lie more than 10 % of it on the far
     // side cannot hold a better one: the step's error control keeps the states (and so a probe of
     // them) from swinging that far inside one step and back. Skip it without sampling — probes
@@ -141,15 +144,26 @@ double EventLocator::on_step(double t0, const double* x0, double t1, const doubl
     if (!better(e.kind, vs[best], outcomes_[k].value) && outcomes_[k].time_s) continue;
     outcomes_[k].time_s = ts[best];
     outcomes_[k].value = vs[best];
+    kept_[k].f = nullptr;  // an earlier kept step holds no better sample than this one
     if (!(t1 > a)) continue;
     bool interior = best > 0 && best < n - 1;
     if (!interior) {
       const double inside = best == 0 ? ts[0] + 1e-3 * (ts[1] - ts[0]) : ts[n - 1] - 1e-3 * (ts[n - 1] - ts[n - 2]);
       interior = better(e.kind, probe_at(e, inside, f), vs[best]);
     }
-    if (interior) refine_extremum(k, ts[std::max(best - 1, 0)], ts[std::min(best + 1, n - 1)], f);
+    // Refining costs ~35 probes; while the extremum may still move to a later step, keep this
+    // step's dense output instead and refine once in finish().
+    if (interior) kept_[k] = {ts[std::max(best - 1, 0)], ts[std::min(best + 1, n - 1)], keep()};
   }
   return stop_at;
+}
+
+void EventLocator::finish() {
+  for (std::size_t k = 0; k < kept_.size(); ++k) {
+    if (!kept_[k].f) continue;
+    refine_extremum(k, kept_[k].a, kept_[k].b, kept_[k].f);
+    kept_[k].f = nullptr;
+  }
 }
 
 }  // namespace coilkick::engine

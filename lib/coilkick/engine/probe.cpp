@@ -1,5 +1,8 @@
 #include "coilkick/engine/probe.hpp"
 
+#include <memory>
+#include <stdexcept>
+
 namespace coilkick::engine {
 
 Probe Probe::node_voltage(const Circuit& circuit, const std::string& node) {
@@ -21,6 +24,20 @@ Probe Probe::voltage_between(const Circuit& circuit, const std::string& a, const
 Probe Probe::state(const Circuit& circuit, const std::string& name) {
   const int k = circuit.state_index(name);
   return Probe(name, [k](double, const double* x) { return x[k]; });
+}
+
+Probe Probe::element_current(const Circuit& circuit, const std::string& element, int terminal) {
+  const int e = circuit.element_index(element);
+  const int nt = circuit.elements()[static_cast<std::size_t>(e)]->terminal_count();
+  if (terminal < 0 || terminal >= nt) {
+    throw std::invalid_argument("probe: element '" + element + "' has terminals 0.." +
+                                std::to_string(nt - 1) + ", not " + std::to_string(terminal));
+  }
+  const Circuit* c = &circuit;
+  auto w = std::make_shared<Workspace>(circuit.make_workspace());
+  return using_rates("current into " + element, [c, e, terminal, w](double t, const double* x, const double* rates) {
+    return c->terminal_currents_A(e, t, x, rates, *w)[static_cast<std::size_t>(terminal)];
+  });
 }
 
 EventSpec EventSpec::crossing(std::string name, Probe probe, double threshold, Direction direction,

@@ -15,17 +15,30 @@ namespace coilkick::engine {
 class Probe {
  public:
   using Function = std::function<double(double t_s, const double* x)>;
-  Probe(std::string description, Function f) : description_(std::move(description)), f_(std::move(f)) {}
+  // A probe that also reads the rates ẋ (a charge or inductor current). During a transient the
+  // rates come from the evaluation at each accepted point and, inside a step, from the time
+  // derivative of the dense output — so such a probe costs one element, not one circuit.
+  using RateFunction = std::function<double(double t_s, const double* x, const double* rates)>;
+  Probe(std::string description, Function f)
+      : description_(std::move(description)),
+        f_([g = std::move(f)](double t, const double* x, const double*) { return g(t, x); }) {}
+  static Probe using_rates(std::string description, RateFunction f) {
+    Probe p(std::move(description), Function{});
+    p.f_ = std::move(f);
+    return p;
+  }
   // The circuit must outlive these probes.
   static Probe node_voltage(const Circuit& circuit, const std::string& node);            // V
   static Probe voltage_between(const Circuit& circuit, const std::string& a, const std::string& b);
   static Probe state(const Circuit& circuit, const std::string& name);                   // unit of the state
-  double operator()(double t_s, const double* x) const { return f_(t_s, x); }
+  // Current (A) into the element at one of its terminals (static and charge parts).
+  static Probe element_current(const Circuit& circuit, const std::string& element, int terminal);
+  double operator()(double t_s, const double* x, const double* rates) const { return f_(t_s, x, rates); }
   const std::string& description() const { return description_; }
 
  private:
   std::string description_;
-  Function f_;
+  RateFunction f_;
 };
 
 enum class Direction { falling, rising, either };

@@ -1,28 +1,21 @@
 #include "coilkick/engine/transient.hpp"
 
-#include <boost/numeric/odeint/stepper/rosenbrock4.hpp>
 #include <chrono>
 #include <cmath>
 #include <limits>
+#include <memory>
 #include <sstream>
 
 #include "coilkick/engine/errors.hpp"
 #include "coilkick/engine/event_locator.hpp"
+#include "coilkick/engine/rosenbrock_step.hpp"
 
 namespace coilkick::engine {
 namespace {
 
-namespace ublas = boost::numeric::ublas;
-using vector_type = ublas::vector<double>;
-using matrix_type = ublas::matrix<double>;
-
-// The ODE as odeint wants it, in autonomous form: the last component is time itself (dτ/dt = 1)
-// and ∂ẋ/∂t goes into the Jacobian's last column, with odeint's ∂f/∂t argument left at zero.
-// Reason: odeint 1.74's rosenbrock4 mishandles the ∂f/∂t term — measured here on ẋ = k·(t − t0),
-// its one-step error falls only as dt² — while the autonomous form is integrated exactly.
-// `step_start` is the start of the step being attempted: waveform slopes are taken from the
-// segment between it and the evaluation time, so a step ending on a corner uses the slope
-// before the corner.
+// Evaluations of the circuit for the stepper. `step_start` is the start of the step being
+// attempted: waveform slopes are taken from the segment between it and the evaluation time, so
+// a step ending on a corner uses the slope before the corner.
 struct OdeSystem {
   const Circuit& circuit;
   Workspace& w;
@@ -30,33 +23,47 @@ struct OdeSystem {
   double step_start = 0.0;
 
   double slope_time(double t) const { return t > step_start ? 0.5 * (step_start + t) : t; }
-};
 
-struct Rates {
-  OdeSystem* s;
-  void operator()(const vector_type& x, vector_type& dxdt, double /*t*/) const {
-    const std::size_t n = x.size() - 1;
-    const double t = x[n];
-    s->circuit.evaluate(t, s->slope_time(t), &x[0], s->w, false);
-    ++s->stats.rate_evaluations;
-    Eigen::Map<Eigen::VectorXd>(&dxdt[0], static_cast<Eigen::Index>(n)) = s->w.rate;
-    dxdt[n] = 1.0;
+  // The last full evaluation (rates, Jacobian, ∂ẋ/∂t) and the point it was taken at: a step's
+  // start after a rejected attempt, and an accepted end point (recorded, probed, then the next
+  // step's start), are each evaluated once.
+  Eigen::VectorXd full_at;
+  double full_time = std::numeric_limits<double>::quiet_NaN();
+  double full_slope_time = std::numeric_limits<double>::quiet_NaN();
+  Eigen::VectorXd full_rate, full_time_rate;
+  Eigen::MatrixXd full_jacobian;
+
+  void full_evaluation(const Eigen::VectorXd& x, double t, double slope_t) {
+    if (full_time == t && full_slope_time == slope_t && full_at.size() == x.size() && full_at == x) return;
+    circuit.evaluate(t, slope_t, x.data(), w, true);
+    ++stats.jacobian_evaluations;
+    full_at = x;
+    full_time = t;
+    full_slope_time = slope_t;
+    full_rate = w.rate;
+    full_time_rate = w.time_rate;
+    full_jacobian = w.jacobian;
+  }
+  void stage_rates(double t, const double* x, double* rate) {
+    circuit.evaluate(t, slope_time(t), x, w, false);
+    ++stats.rate_evaluations;
+    std::copy(w.rate.data(), w.rate.data() + w.rate.size(), rate);
   }
 };
 
-struct Jacobian {
-  OdeSystem* s;
-  void operator()(const vector_type& x, matrix_type& j, const double& /*t*/, vector_type& dfdt) const {
-    const auto n = static_cast<Eigen::Index>(x.size() - 1);
-    const double t = x[static_cast<std::size_t>(n)];
-    s->circuit.evaluate(t, s->slope_time(t), &x[0], s->w, true);
-    ++s->stats.jacobian_evaluations;
-    // Every entry of j and dfdt is written: the buffer still holds the previous LU factors.
-    Eigen::Map<Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::RowMajor>> jm(&j.data()[0], n + 1, n + 1);
-    jm.topLeftCorner(n, n) = s->w.jacobian;
-    jm.col(n).head(n) = s->w.time_rate;
-    jm.row(n).setZero();
-    for (std::size_t i = 0; i < dfdt.size(); ++i) dfdt[i] = 0.0;
+// One accepted step's dense output (rosenbrock_step.hpp) with its time derivative for probes
+// that read rates. A copy stays valid after the step (events refine extrema after the run,
+// EventLocator::finish).
+struct DenseStep {
+  double t0 = 0.0, t1 = 0.0;
+  Eigen::VectorXd x0, x1, c3, c4;
+
+  void at(double t, double* x, double* rate) const {
+    const double h = t1 - t0, s = (t - t0) / h, s1 = 1.0 - s;
+    for (Eigen::Index i = 0; i < x0.size(); ++i) {
+      x[i] = x0[i] * s1 + s * (x1[i] + s1 * (c3[i] + s * c4[i]));
+      rate[i] = (x1[i] - x0[i] + (1.0 - 2.0 * s) * c3[i] + s * (2.0 - 3.0 * s) * c4[i]) / h;
+    }
   }
 };
 
@@ -96,27 +103,27 @@ std::vector<double> absolute_tolerances(const Circuit& c, const TransientOptions
   return a;
 }
 
-std::string describe_state(const Circuit& c, int i, const vector_type& x, const Workspace& w) {
+std::string describe_state(const Circuit& c, int i, const Eigen::VectorXd& x, const Workspace& w) {
   const auto& s = c.states()[static_cast<std::size_t>(i)];
   std::ostringstream m;
-  m << "'" << s.name << "' (value " << x[static_cast<std::size_t>(i)] << " " << s.unit
+  m << "'" << s.name << "' (value " << x[i] << " " << s.unit
     << ", rate " << w.rate[i] << " " << s.unit << "/s)";
   return m.str();
 }
 
 EnergyReport make_energy_report(const Circuit& c, const CircuitState& initial, double t_end,
-                                const vector_type& x_end, Workspace& w) {
+                                const Eigen::VectorXd& x_end, Workspace& w) {
   EnergyReport r;
   const int nc = c.circuit_state_count();
   const auto& ch = c.power_channels();
   for (std::size_t k = 0; k < ch.size(); ++k) {
-    const double e = x_end[static_cast<std::size_t>(nc) + k];
+    const double e = x_end[nc + static_cast<Eigen::Index>(k)];
     r.channels.push_back({ch[k].name, ch[k].kind, e});
     if (ch[k].kind == PowerChannelSpec::Kind::supplied) r.supplied_J += e;
     else r.dissipated_J += e;
   }
   r.stored_initial_J = c.stored_energy_J(-1, initial.time_s, initial.values.data(), w);
-  r.stored_final_J = c.stored_energy_J(-1, t_end, &x_end[0], w);
+  r.stored_final_J = c.stored_energy_J(-1, t_end, x_end.data(), w);
   const double in = r.supplied_J + r.stored_initial_J;
   const double out = r.dissipated_J + r.stored_final_J;
   const double scale = std::max(std::abs(in), std::abs(out));
@@ -130,7 +137,7 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
                          const TransientOptions& options, const std::vector<EventSpec>& events) {
   check_state(circuit, initial);
   check_options(options, initial.time_s);
-  const auto n = static_cast<std::size_t>(circuit.state_count());
+  const auto n = static_cast<Eigen::Index>(circuit.state_count());
   const int nc = circuit.circuit_state_count();
   const std::vector<double> atol = absolute_tolerances(circuit, options);
   const double rtol = options.relative_tolerance;
@@ -139,31 +146,29 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
 
   Workspace w = circuit.make_workspace();
   SolverStatistics stats;
-  OdeSystem sys{circuit, w, stats, initial.time_s};
-  Rates rates{&sys};
-  Jacobian jac{&sys};
-  boost::numeric::odeint::rosenbrock4<double> stepper;
+  OdeSystem sys{circuit, w, stats, initial.time_s, {}, std::numeric_limits<double>::quiet_NaN(),
+                std::numeric_limits<double>::quiet_NaN(), {}, {}, {}};
+  const StageRates stage_rates = [&sys](double tq, const double* xq, double* rate) { sys.stage_rates(tq, xq, rate); };
+  const auto stepper = make_rosenbrock_step(options.step_method, static_cast<int>(n), nc);
 
-  // n states plus time (see OdeSystem).
-  vector_type x(n + 1), x_new(n + 1), x_err(n + 1), x_dense(n + 1);
-  for (std::size_t i = 0; i < n; ++i) x[i] = initial.values[static_cast<Eigen::Index>(i)];
-  for (std::size_t i = static_cast<std::size_t>(nc); i < n; ++i) x[i] = 0.0;  // energies start at 0
+  Eigen::VectorXd x = initial.values, x_new(n), x_err(n), rate_old(n);
+  x.tail(n - nc).setZero();  // energies start at 0
   double t = initial.time_s;
-  x[n] = t;
+  DenseStep dense;
 
   std::vector<double> times;
   std::vector<double> rec_x, rec_rate;
-  auto record = [&](double tr, const vector_type& xr) {
-    circuit.evaluate(tr, tr, &xr[0], w, false);
-    ++stats.rate_evaluations;
+  // Recording evaluates the point in full: the next step starts there.
+  auto record = [&](double tr, const Eigen::VectorXd& xr) {
+    sys.full_evaluation(xr, tr, tr);
     times.push_back(tr);
-    rec_x.insert(rec_x.end(), xr.begin(), xr.begin() + static_cast<std::ptrdiff_t>(n));
-    rec_rate.insert(rec_rate.end(), w.rate.data(), w.rate.data() + w.rate.size());
+    rec_x.insert(rec_x.end(), xr.data(), xr.data() + n);
+    rec_rate.insert(rec_rate.end(), sys.full_rate.data(), sys.full_rate.data() + n);
   };
   record(t, x);
 
   EventLocator locator(events, static_cast<int>(n), options.event_time_tolerance_s);
-  locator.start(t, &x[0]);
+  locator.start(t, x.data(), sys.full_rate.data());
 
   double dt = std::min(options.initial_step_s, t_stop - t);
   double next_corner = circuit.next_corner_after_s(t);
@@ -210,17 +215,18 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
     }
 
     sys.step_start = t;
-    stepper.do_step(std::make_pair(rates, jac), x, t, x_new, dt, x_err);
+    sys.full_evaluation(x, t, t);
+    stepper->attempt(x, t, dt, {sys.full_rate, sys.full_jacobian, sys.full_time_rate}, stage_rates, x_new, x_err);
 
     double err = 0.0;
     bool finite = true;
-    for (std::size_t i = 0; i < n; ++i) {
+    for (Eigen::Index i = 0; i < n; ++i) {
       if (!std::isfinite(x_new[i]) || !std::isfinite(x_err[i])) {
         finite = false;
         worst_state = static_cast<int>(i);
         break;
       }
-      const double sk = atol[i] + rtol * std::max(std::abs(x[i]), std::abs(x_new[i]));
+      const double sk = atol[static_cast<std::size_t>(i)] + rtol * std::max(std::abs(x[i]), std::abs(x_new[i]));
       const double e = std::abs(x_err[i]) / sk;
       if (e > err) {
         err = e;
@@ -241,15 +247,21 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
     // Accepted.
     rejections_in_a_row = 0;
     ++stats.accepted_steps;
-    const double t_new = lands_on_target ? target : t + dt;
-    stepper.prepare_dense_output();
-    const double t_old = t;
-    const vector_type& x_old_ref = x;
-    auto interp = [&](double tq, double* out) {
-      stepper.calc_state(tq, x_dense, x_old_ref, t_old, x_new, t_new);
-      for (std::size_t i = 0; i < n; ++i) out[i] = x_dense[i];
+    const double t_old = t, t_new = lands_on_target ? target : t + dt;
+    dense.t0 = t_old;
+    dense.t1 = t_new;
+    dense.x0 = x;
+    dense.x1 = x_new;
+    stepper->dense_output(dense.c3, dense.c4);
+    rate_old = sys.full_rate;                // the full evaluation at the start of the step
+    sys.full_evaluation(x_new, t_new, t_new);  // at its end: probes read it, the next step starts there
+    auto interp = [&dense](double tq, double* xo, double* ro) { dense.at(tq, xo, ro); };
+    auto keep = [&dense]() {
+      auto d = std::make_shared<const DenseStep>(dense);
+      return EventLocator::Interpolant([d](double tq, double* xo, double* ro) { d->at(tq, xo, ro); });
     };
-    const double stop_at = locator.on_step(t_old, &x[0], t_new, &x_new[0], interp);
+    const double stop_at = locator.on_step(t_old, x.data(), rate_old.data(), t_new, x_new.data(),
+                                           sys.full_rate.data(), interp, keep);
     // Step-size proposal (predictive controller of Gustafsson, as in Hairer & Wanner II, IV.8).
     double fac = std::max(1.0 / 6.0, std::min(5.0, std::pow(err, 0.25) / 0.9));
     if (!first_accepted && dt_old > 0.0) {
@@ -264,16 +276,13 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
     err_old = std::max(0.01, err);
 
     if (std::isfinite(stop_at)) {
-      stepper.calc_state(stop_at, x_dense, x, t_old, x_new, t_new);
-      x = x_dense;
+      dense.at(stop_at, x.data(), rate_old.data());
       t = stop_at;
-      x[n] = t;
       record(t, x);
       break;
     }
     x.swap(x_new);
     t = t_new;
-    x[n] = t;  // no drift between the time state and the step bookkeeping
     if (options.record_waveforms || t >= t_stop) record(t, x);
     if (t >= next_corner) next_corner = circuit.next_corner_after_s(t);
     dt = dt_next;
@@ -286,11 +295,11 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
     }
   }
 
+  locator.finish();
   EnergyReport energy = make_energy_report(circuit, initial, t, x, w);
   const auto rows = static_cast<Eigen::Index>(times.size());
-  const auto cols = static_cast<Eigen::Index>(n);
-  RowMatrix states = Eigen::Map<RowMatrix>(rec_x.data(), rows, cols);
-  RowMatrix rate_m = Eigen::Map<RowMatrix>(rec_rate.data(), rows, cols);
+  RowMatrix states = Eigen::Map<RowMatrix>(rec_x.data(), rows, n);
+  RowMatrix rate_m = Eigen::Map<RowMatrix>(rec_rate.data(), rows, n);
   return TransientResult(circuit, std::move(times), std::move(states), std::move(rate_m),
                          locator.outcomes(), std::move(energy), stats);
 }
