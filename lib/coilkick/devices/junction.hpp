@@ -134,10 +134,16 @@ S branch_current(const S& u, const ExpBranch& b, S* junction_voltage = nullptr) 
   }
   S uj = S(branch_junction_voltage_V(value_of(u), b));
   for (int k = 0; k < 2; ++k) {  // exact first and second derivatives
-    const S i = branch_junction_current(uj, b);
     const S x = (uj - b.offset_V) / b.emission_voltage_V;
-    const S di = value_of(x) <= b.x_crit ? b.scale_current_A / b.emission_voltage_V * exp(x)
-                                         : S(b.scale_current_A / b.emission_voltage_V * std::exp(b.x_crit));
+    S i, di;
+    if (value_of(x) <= b.x_crit) {  // one exponential for the current and its slope
+      const S e = exp(x);
+      i = b.scale_current_A * (e - b.minus_one);
+      di = b.scale_current_A / b.emission_voltage_V * e;
+    } else {
+      i = branch_junction_current(uj, b);
+      di = S(b.scale_current_A / b.emission_voltage_V * std::exp(b.x_crit));
+    }
     uj = uj - (uj + r * i - u) / (1.0 + r * di);
   }
   if (junction_voltage) *junction_voltage = uj;
