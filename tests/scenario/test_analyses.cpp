@@ -115,7 +115,7 @@ TEST_CASE("tolerance: corners and samples, identical numbers on 1 and 2 threads"
 
 TEST_CASE("suggest by contact opening: needs the armature model, then ranks by it") {
   auto s = pwl_scenario();
-  analyses::SuggestLimits lim{5e-3, 32.0, "contact_open_time_s"};
+  analyses::SuggestLimits lim{5e-3, 32.0, "contact_open_time_s", {}};
   CHECK_THROWS_WITH_AS(analyses::suggest_clamps(s, test_support::catalogue(), lim, 2), doctest::Contains("needs the armature model"),
                        std::invalid_argument);
   lim.time_metric = "release_time";
@@ -153,7 +153,7 @@ TEST_CASE("suggest by contact opening: needs the armature model, then ranks by i
 
 TEST_CASE("suggest: ranked candidates meet both limits and the fastest comes first") {
   const auto s = pwl_scenario();
-  const auto list = analyses::suggest_clamps(s, test_support::catalogue(), {0.8e-3, 32.0}, 2);
+  const auto list = analyses::suggest_clamps(s, test_support::catalogue(), {0.8e-3, 32.0, "release_time_s", {}}, 2);
   REQUIRE_FALSE(list.empty());
   REQUIRE(list.front().meets);
   double previous = 0.0;

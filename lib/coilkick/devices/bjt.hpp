@@ -117,8 +117,9 @@ class PhysicalBjt final : public TerminalDevice<PhysicalBjt, 3> {
   template <class S>
   S collector_slope(const S& vbc, const S& i_f, const S& i_r) const {
     const double nvt = p_.reverse_emission_coefficient * d_.vt;
+    // Below the limit i_r = I_s·(e^x − 1), so dI_R/dv = (i_r + I_s)/(n·V_T): no second exponential.
     const S x = vbc / nvt;
-    const S di_r = value_of(x) <= d_.xcrit ? d_.is / nvt * exp(x) : S(d_.is / nvt * std::exp(d_.xcrit));
+    const S di_r = value_of(x) <= d_.xcrit ? (i_r + d_.is) / nvt : S(d_.is / nvt * std::exp(d_.xcrit));
     const double va = p_.forward_early_voltage_V;
     const S early = std::isinf(va) ? S(1.0) : 1.0 - vbc / va;
     S slope = -di_r * early - di_r / d_.beta_r;
@@ -141,12 +142,25 @@ class PhysicalBjt final : public TerminalDevice<PhysicalBjt, 3> {
   }
 
   template <class S>
-  void currents(const S* v, S* i) const {
+  void currents(const S* v, S* i) const { currents_and_charges(v, i, static_cast<S*>(nullptr)); }
+  template <class S>
+  void charges(const S* v, S* q) const {
+    const double sg = d_.sign;
+    const S vbe = sg * (v[1] - v[2]), vbc = intrinsic_vbc(vbe, S(sg * (v[1] - v[0])));
+    S ic, ib, i_f, i_r;
+    transport(vbe, vbc, ic, ib, i_f, i_r);
+    junction_charges(vbe, vbc, i_f, i_r, q);
+  }
+  // Both at once (TerminalDevice::load): the collector-resistance solve and the transport
+  // currents are shared. q may be null.
+  template <class S>
+  void currents_and_charges(const S* v, S* i, S* q) const {
     const double sg = d_.sign, g = p_.minimum_conductance_S;
     const S vbe = sg * (v[1] - v[2]), vbc_t = sg * (v[1] - v[0]), vce = sg * (v[0] - v[2]);
     const S vbc = intrinsic_vbc(vbe, vbc_t);
     S ic, ib, i_f, i_r;
     transport(vbe, vbc, ic, ib, i_f, i_r);
+    if (q) junction_charges(vbe, vbc, i_f, i_r, q);
     ic = ic - g * vbc_t + g * vce;
     ib = ib + g * vbe + g * vbc_t;
     if (d_.has_breakdown) ic = ic + branch_current(vce, d_.breakdown);
@@ -154,22 +168,21 @@ class PhysicalBjt final : public TerminalDevice<PhysicalBjt, 3> {
     i[1] = sg * ib;
     i[2] = -(i[0] + i[1]);
   }
+
+ private:
+  BjtParameters p_;
+  BjtDerived d_;
+
+  // Depletion and diffusion charges at each terminal from the intrinsic junction voltages.
   template <class S>
-  void charges(const S* v, S* q) const {
+  void junction_charges(const S& vbe, const S& vbc, const S& i_f, const S& i_r, S* q) const {
     const double sg = d_.sign;
-    const S vbe = sg * (v[1] - v[2]), vbc = intrinsic_vbc(vbe, S(sg * (v[1] - v[0])));
-    S ic, ib, i_f, i_r;
-    transport(vbe, vbc, ic, ib, i_f, i_r);
     const S q_be = depletion_charge_C(vbe, d_.be_depletion) + p_.forward_transit_time_s * i_f;
     const S q_bc = depletion_charge_C(vbc, d_.bc_depletion) + p_.reverse_transit_time_s * i_r;
     q[0] = -sg * q_bc;
     q[1] = sg * (q_be + q_bc);
     q[2] = -sg * q_be;
   }
-
- private:
-  BjtParameters p_;
-  BjtDerived d_;
 };
 
 class PwlBjt final : public TerminalDevice<PwlBjt, 3> {

@@ -5,18 +5,28 @@
 // TerminalDevice<Model, N> and provides two templates on the scalar type S:
 //   void currents(const S* v, S* i) const;  // static (resistive) current INTO each terminal, A
 //   void charges(const S* v, S* q) const;   // charge held at each terminal, C (sums to zero)
+// and optionally currents_and_charges(v, i, q) (q may be null) when the two share work.
 // from the terminal voltages v (V). The adapter differentiates them exactly (dual.hpp) into
 // conductances, capacitances and the capacitance slope the Jacobian needs; the heat is
 // Σ v_k·i_k (channel "heat") and the stored energy is ∫ v·dq along the straight path s·v from 0
 // (composite Gauss–Legendre quadrature; charges here are reciprocal so the integral is a
 // state function).
 #include <array>
+#include <type_traits>
+#include <utility>
 #include <vector>
 
 #include "coilkick/devices/dual.hpp"
 #include "coilkick/engine/element.hpp"
 
 namespace coilkick::devices {
+
+template <class Model, class S, class = void>
+struct has_currents_and_charges : std::false_type {};
+template <class Model, class S>
+struct has_currents_and_charges<Model, S, std::void_t<decltype(std::declval<const Model&>().currents_and_charges(
+                                              std::declval<const S*>(), std::declval<S*>(), std::declval<S*>()))>>
+    : std::true_type {};
 
 template <class Model, int N>
 class TerminalDevice : public engine::Element {
@@ -31,7 +41,13 @@ class TerminalDevice : public engine::Element {
     using D = Dual<N>;
     std::array<D, N> v, i, q;
     for (int k = 0; k < N; ++k) v[idx(k)] = D::variable(ctx.value(k), k);
-    model().currents(v.data(), i.data());
+    const bool with_charges = model().has_charges();
+    if constexpr (has_currents_and_charges<Model, D>::value) {
+      model().currents_and_charges(v.data(), i.data(), with_charges ? q.data() : nullptr);
+    } else {
+      model().currents(v.data(), i.data());
+      if (with_charges) model().charges(v.data(), q.data());
+    }
     D p(0.0);
     for (int k = 0; k < N; ++k) {
       out.add_flow(k, -i[idx(k)].v);
@@ -40,8 +56,7 @@ class TerminalDevice : public engine::Element {
     }
     out.add_power(0, p.v);
     for (int j = 0; j < N; ++j) out.add_power_slope(0, j, p.g[idx(j)]);
-    if (!model().has_charges()) return;
-    model().charges(v.data(), q.data());
+    if (!with_charges) return;
     for (int k = 0; k < N; ++k) {
       for (int j = 0; j < N; ++j) out.add_mass(k, j, q[idx(k)].g[idx(j)]);
     }
