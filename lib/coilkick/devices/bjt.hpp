@@ -133,7 +133,7 @@ class PhysicalBjt final : public TerminalDevice<PhysicalBjt, 3> {
     const double rc = p_.collector_resistance_ohm;
     if (rc == 0.0) return vbc_terminal;
     S y = S(intrinsic_vbc_V(value_of(vbe), value_of(vbc_terminal)));
-    for (int k = 0; k < 2; ++k) {  // exact first and second derivatives
+    for (int k = 0; k < derivative_order<S>::value; ++k) {  // exact derivatives of each order
       S ic, ib, i_f, i_r;
       transport(vbe, y, ic, ib, i_f, i_r);
       y = y - (y - rc * ic - vbc_terminal) / (1.0 - rc * collector_slope(y, i_f, i_r));

@@ -7,6 +7,7 @@
 // differentiates its own formula.
 #include <array>
 #include <cmath>
+#include <type_traits>
 
 namespace coilkick::devices {
 
@@ -26,6 +27,13 @@ struct Dual {
     return d;
   }
 };
+
+// How many orders of derivatives a scalar type carries: 0 for double, 1 for Dual<N>, 2 for
+// Dual<N, Dual<1>>. Implicit solves need one Newton step in S per order for exact derivatives.
+template <class S>
+struct derivative_order : std::integral_constant<int, 0> {};
+template <int N, class T>
+struct derivative_order<Dual<N, T>> : std::integral_constant<int, 1 + derivative_order<T>::value> {};
 
 inline double value_of(double x) { return x; }
 template <int N, class T>
@@ -90,7 +98,7 @@ Dual<N, T> sqrt(const Dual<N, T>& a) {
 template <int N, class T>
 Dual<N, T> pow(const Dual<N, T>& a, double p) {
   const T ap = pow(a.v, p);
-  return chain(a, ap, T(p * pow(a.v, p - 1.0)));
+  return chain(a, ap, T(p * ap / a.v));  // a^(p−1) = a^p / a
 }
 
 }  // namespace coilkick::devices

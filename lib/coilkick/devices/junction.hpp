@@ -14,8 +14,9 @@
 //
 // Exponential branch with series resistance: terminal voltage u = u_j + R·I(u_j) with
 // I(u_j) = I_s·(exp_lim((u_j − u_0)/(n·V_T)) − c). Solved for u_j by safeguarded Newton in
-// double precision, then two Newton steps in the scalar type so that first and second
-// derivatives of I(u) are exact (implicit-function theorem).
+// double precision, then one Newton step in the scalar type per order of derivatives it carries
+// (derivative_order), so that first (and second) derivatives of I(u) are exact
+// (implicit-function theorem).
 #include <cmath>
 #include <limits>
 
@@ -133,7 +134,7 @@ S branch_current(const S& u, const ExpBranch& b, S* junction_voltage = nullptr) 
     return branch_junction_current(u, b);
   }
   S uj = S(branch_junction_voltage_V(value_of(u), b));
-  for (int k = 0; k < 2; ++k) {  // exact first and second derivatives
+  for (int k = 0; k < derivative_order<S>::value; ++k) {  // exact derivatives of each order
     const S x = (uj - b.offset_V) / b.emission_voltage_V;
     S i, di;
     if (value_of(x) <= b.x_crit) {  // one exponential for the current and its slope
