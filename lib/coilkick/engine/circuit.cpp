@@ -162,7 +162,6 @@ Workspace Circuit::make_workspace() const {
   w.power = Eigen::VectorXd::Zero(nch);
   w.power_time_rate = Eigen::VectorXd::Zero(nch);
   w.power_slope = Eigen::MatrixXd::Zero(nch, ne);
-  w.lu = Eigen::PartialPivLU<Eigen::MatrixXd>(n_circuit_);
   w.rate = Eigen::VectorXd::Zero(n);
   w.jacobian = Eigen::MatrixXd::Zero(n, n);
   w.time_rate = Eigen::VectorXd::Zero(n);
@@ -202,7 +201,8 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
   const auto vdot_f = w.ext_rate.segment(nc, nf);
   w.lu.compute(w.mass.topLeftCorner(nc, nc));
   w.scratch_rhs.noalias() = w.flow.head(nc) - w.mass.block(0, nc, nc, nf) * vdot_f;
-  w.rate.head(nc) = w.lu.solve(w.scratch_rhs);
+  w.lu.solve_in_place(w.scratch_rhs);
+  w.rate.head(nc) = w.scratch_rhs;
   w.ext_rate.head(nc) = w.rate.head(nc);
   // Current each voltage source delivers into its node: what the node's elements draw.
   for (int j = 0; j < nf; ++j) {
@@ -223,9 +223,11 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
   g_minus_k = w.flow_slope - w.mass_slope;
   w.jacobian.setZero();
   auto jcc = w.jacobian.topLeftCorner(nc, nc);
-  jcc = w.lu.solve(g_minus_k.topLeftCorner(nc, nc));
+  jcc = g_minus_k.topLeftCorner(nc, nc);
+  w.lu.solve_columns_in_place(jcc);
   w.scratch_time_rhs.noalias() = w.flow_time_rate.head(nc) + g_minus_k.block(0, nc, nc, nf) * vdot_f;
-  w.time_rate.head(nc) = w.lu.solve(w.scratch_time_rhs);
+  w.lu.solve_in_place(w.scratch_time_rhs);
+  w.time_rate.head(nc) = w.scratch_time_rhs;
   for (int c = 0; c < nch; ++c) {
     w.jacobian.row(nc + c).head(nc) = w.power_slope.row(c).head(nc);
     w.time_rate[nc + c] = w.power_time_rate[c] + w.power_slope.row(c).segment(nc, nf).dot(vdot_f);

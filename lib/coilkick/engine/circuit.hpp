@@ -17,6 +17,7 @@
 
 #include "coilkick/engine/element.hpp"
 #include "coilkick/engine/network.hpp"
+#include "coilkick/engine/small_lu.hpp"
 
 namespace coilkick::engine {
 
@@ -42,7 +43,7 @@ struct Workspace {
   Eigen::MatrixXd flow_slope, mass, mass_slope;
   Eigen::VectorXd power, power_time_rate;
   Eigen::MatrixXd power_slope;
-  Eigen::PartialPivLU<Eigen::MatrixXd> lu;
+  SmallLu lu;  // of the circuit block of M
   // Outputs of Circuit::evaluate:
   Eigen::VectorXd rate;        // ẋ for all states
   Eigen::MatrixXd jacobian;    // ∂ẋ/∂x (only when requested)

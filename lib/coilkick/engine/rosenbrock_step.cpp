@@ -1,5 +1,7 @@
 #include "coilkick/engine/rosenbrock_step.hpp"
 
+#include "coilkick/engine/small_lu.hpp"
+
 #include <array>
 #include <boost/numeric/odeint/stepper/rosenbrock4.hpp>
 
@@ -16,7 +18,7 @@ using Coefficients = boost::numeric::odeint::default_rosenbrock_coefficients<dou
 class Blockwise final : public RosenbrockStep {
  public:
   Blockwise(int n, int coupled)
-      : n_(n), nc_(coupled), a_(coupled, coupled), lu_(coupled), xtmp_(n), f_(n), r_(n), rc_(coupled) {
+      : n_(n), nc_(coupled), a_(coupled, coupled), xtmp_(n), f_(n), r_(n), rc_(coupled) {
     for (auto& g : g_) g = Eigen::VectorXd::Zero(n);
   }
 
@@ -30,7 +32,8 @@ class Blockwise final : public RosenbrockStep {
     auto solve = [&](const Eigen::VectorXd& r, double rt, Eigen::VectorXd& g) {
       const double gt = gh * rt;
       rc_.noalias() = r.head(nc_) + s.time_rate.head(nc_) * gt;
-      g.head(nc_) = lu_.solve(rc_);
+      lu_.solve_in_place(rc_);
+      g.head(nc_) = rc_;
       const int nq = n_ - nc_;
       g.tail(nq) = gh * (r.tail(nq) + s.jacobian.bottomLeftCorner(nq, nc_) * g.head(nc_) +
                          s.time_rate.tail(nq) * gt);
@@ -79,7 +82,7 @@ class Blockwise final : public RosenbrockStep {
   const Coefficients k_;
   int n_, nc_;
   Eigen::MatrixXd a_;
-  Eigen::PartialPivLU<Eigen::MatrixXd> lu_;
+  SmallLu lu_;
   std::array<Eigen::VectorXd, 5> g_;
   Eigen::VectorXd xtmp_, f_, r_, rc_;
 };
