@@ -1,5 +1,6 @@
 #include "coilkick/engine/circuit.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 #include <map>
@@ -44,19 +45,26 @@ class GlobalStamper final : public Stamper {
 
 namespace {
 // Collects one element's flow and mass rows in local numbering (for terminal currents).
+// Writes into the workspace's local scratch (sized for the largest element), so a probe of one
+// element's current allocates nothing.
 class LocalStamper final : public Stamper {
  public:
-  explicit LocalStamper(int n) : flow(n, 0.0), mass(n, std::vector<double>(n, 0.0)) {}
-  void add_flow(int row, double v) override { flow[row] += v; }
+  LocalStamper(Eigen::VectorXd& flow, Eigen::MatrixXd& mass, int n) : flow_(flow), mass_(mass) {
+    flow_.head(n).setZero();
+    mass_.topLeftCorner(n, n).setZero();
+  }
+  void add_flow(int row, double v) override { flow_[row] += v; }
   void add_flow_slope(int, int, double) override {}
   void add_flow_time_rate(int, double) override {}
-  void add_mass(int row, int col, double v) override { mass[row][col] += v; }
+  void add_mass(int row, int col, double v) override { mass_(row, col) += v; }
   void add_mass_slope(int, int, double) override {}
   void add_power(int, double) override {}
   void add_power_slope(int, int, double) override {}
   void add_power_time_rate(int, double) override {}
-  std::vector<double> flow;
-  std::vector<std::vector<double>> mass;
+
+ private:
+  Eigen::VectorXd& flow_;
+  Eigen::MatrixXd& mass_;
 };
 }  // namespace
 
@@ -170,6 +178,10 @@ Workspace Circuit::make_workspace() const {
   w.scratch_time_rhs = Eigen::VectorXd::Zero(n_circuit_);
   w.scratch_slope = Eigen::MatrixXd::Zero(ne, ne);
   w.scratch_row = Eigen::RowVectorXd::Zero(n_circuit_);
+  std::size_t locals = 0;
+  for (const auto& m : maps_) locals = std::max(locals, m.size());
+  w.local_flow = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(locals));
+  w.local_mass = Eigen::MatrixXd::Zero(static_cast<Eigen::Index>(locals), static_cast<Eigen::Index>(locals));
   return w;
 }
 
@@ -254,27 +266,32 @@ std::vector<double> Circuit::terminal_currents_A(int element, double t_s, const 
 
 std::vector<double> Circuit::terminal_currents_A(int element, double t_s, const double* x,
                                                  const double* rates, Workspace& w) const {
-  for (int i = 0; i < n_circuit_; ++i) {
-    w.ext_value[i] = x[i];
-    w.ext_rate[i] = rates[i];
-  }
-  for (int j = 0; j < n_fixed_; ++j) {
-    w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
-    w.ext_rate[n_circuit_ + j] = sources_[j].voltage_V.slope(t_s);
-  }
-  const auto& e = *elements_.at(static_cast<std::size_t>(element));
+  const int nt = elements_.at(static_cast<std::size_t>(element))->terminal_count();
+  std::vector<double> out;
+  for (int k = 0; k < nt; ++k) out.push_back(terminal_current_A(element, k, t_s, x, rates, w, k == 0));
+  return out;
+}
+
+double Circuit::terminal_current_A(int element, int terminal, double t_s, const double* x,
+                                   const double* rates, Workspace& w, bool load) const {
   const auto& map = maps_[static_cast<std::size_t>(element)];
   const int n = static_cast<int>(map.size());
-  LocalStamper st(n);
-  ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), map.data());
-  e.load(ctx, st);
-  std::vector<double> out;
-  for (int k = 0; k < e.terminal_count(); ++k) {
-    double i = -st.flow[k];
-    for (int c = 0; c < n; ++c) i += st.mass[k][c] * (map[c] < 0 ? 0.0 : w.ext_rate[map[c]]);
-    out.push_back(i);
+  if (load) {
+    for (int i = 0; i < n_circuit_; ++i) {
+      w.ext_value[i] = x[i];
+      w.ext_rate[i] = rates[i];
+    }
+    for (int j = 0; j < n_fixed_; ++j) {
+      w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
+      w.ext_rate[n_circuit_ + j] = sources_[j].voltage_V.slope(t_s);
+    }
+    LocalStamper st(w.local_flow, w.local_mass, n);
+    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), map.data());
+    elements_[static_cast<std::size_t>(element)]->load(ctx, st);
   }
-  return out;
+  double i = -w.local_flow[terminal];
+  for (int c = 0; c < n; ++c) i += w.local_mass(terminal, c) * (map[c] < 0 ? 0.0 : w.ext_rate[map[c]]);
+  return i;
 }
 
 double Circuit::stored_energy_J(int element, double t_s, const double* x, Workspace& w) const {

@@ -53,6 +53,8 @@ struct Workspace {
   Eigen::VectorXd scratch_rhs, scratch_time_rhs;
   Eigen::MatrixXd scratch_slope;       // ∂f/∂x − ∂(M·ẋ)/∂x
   Eigen::RowVectorXd scratch_row;
+  Eigen::VectorXd local_flow;  // one element's own rows (terminal_current_A)
+  Eigen::MatrixXd local_mass;
 };
 
 class Circuit {
@@ -93,6 +95,10 @@ class Circuit {
   // The same with the rates ẋ known (a recorded point): only the element is loaded.
   std::vector<double> terminal_currents_A(int element, double t_s, const double* x,
                                           const double* rates, Workspace& w) const;
+  // One terminal's current, allocating nothing. load = false reuses the element's rows loaded
+  // by the previous call with the same (t, x, rates) — for several terminals of one point.
+  double terminal_current_A(int element, int terminal, double t_s, const double* x,
+                            const double* rates, Workspace& w, bool load = true) const;
   // Energy stored in fields (J): element `e`, or the whole circuit (elements + stray) for e = -1.
   double stored_energy_J(int element, double t_s, const double* x, Workspace& w) const;
   // First corner of any source waveform or element time dependence strictly after t_s.

@@ -36,7 +36,7 @@ Probe Probe::element_current(const Circuit& circuit, const std::string& element,
   const Circuit* c = &circuit;
   auto w = std::make_shared<Workspace>(circuit.make_workspace());
   return using_rates("current into " + element, [c, e, terminal, w](double t, const double* x, const double* rates) {
-    return c->terminal_currents_A(e, t, x, rates, *w)[static_cast<std::size_t>(terminal)];
+    return c->terminal_current_A(e, terminal, t, x, rates, *w);
   });
 }
 

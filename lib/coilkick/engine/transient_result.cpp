@@ -58,8 +58,7 @@ Eigen::VectorXd TransientResult::element_current_A(const std::string& element, i
   Eigen::VectorXd out(static_cast<Eigen::Index>(times_.size()));
   for (std::size_t k = 0; k < times_.size(); ++k) {
     const auto row = static_cast<Eigen::Index>(k);
-    const auto i = circuit_.terminal_currents_A(e, times_[k], states_.row(row).data(), rates_.row(row).data(), w);
-    out[static_cast<Eigen::Index>(k)] = i[static_cast<std::size_t>(terminal)];
+    out[row] = circuit_.terminal_current_A(e, terminal, times_[k], states_.row(row).data(), rates_.row(row).data(), w);
   }
   return out;
 }
