@@ -7,12 +7,15 @@ branch and exponential breakdown knee) clamp, 5 V logic through 50 ohm + 1 kohm,
 100 us, about 1 ms simulated with the spike resolved. Device charges, series resistances and
 far-away breakdowns are overridden so that the equations below are the library's exactly.
 
-Prints times, the ratio, step counts and each side's error against a tight scipy reference
-(rtol 1e-11), and ends with the line
+Prints times (best of several, both measured in this run), step counts and each side's error
+against a tight scipy reference (rtol 1e-11): once with both at rtol 1e-6, once at matched
+accuracy (each solver at the loosest tolerance of a ladder that keeps peak and release time
+within 0.1 % of the reference). Ends with the matched-accuracy line
   reference_transient speedup_vs_scipy=<x> steps=<n> peak_error=<e> release_error=<e>
-Targets (benchmarks, not tests): speed-up >= 1000 at matched accuracy (errors <= 1e-3), <= 1000 steps.
+Targets (benchmarks, not tests): speed-up >= 1000 at matched accuracy, <= 1000 steps.
 """
 import time
+import warnings
 
 import numpy as np
 from scipy.integrate import solve_ivp
@@ -97,32 +100,78 @@ def scipy_run(rtol, atol_scale=1.0):
     return {"peak": peak, "release": b.t_events[0][0] - T_OFF, "steps": len(a.t) + len(b.t) - 2}
 
 
+LADDER = [1e-3, 1e-4, 1e-5, 1e-6, 1e-7]
+MATCHED = 1e-3  # "matched accuracy": peak and release time within 0.1 % of the tight reference
+
+
+def best_time(fn, repeats, inner=1):
+    """Best of `repeats` timings of `inner` calls (seconds per call): the least disturbed by
+    other work on a shared machine."""
+    best = float("inf")
+    out = None
+    for _ in range(repeats):
+        t0 = time.perf_counter()
+        for _ in range(inner):
+            out = fn()
+        best = min(best, (time.perf_counter() - t0) / inner)
+    return best, out
+
+
+def errors(peak, release, ref):
+    return abs(peak - ref["peak"]) / ref["peak"], abs(release - ref["release"]) / ref["release"]
+
+
+def coilkick_at(rtol, ref):
+    s = scenario(rtol)
+    coilkick.run(s)  # warm-up (catalogue load)
+    t, r = best_time(lambda: coilkick.run(s), 5, 10)
+    m = r.metrics
+    pe, re_ = errors(m["switch_voltage_peak_V"], m["release_time_s"], ref)
+    return {"time": t, "steps": r._core.accepted_steps, "peak_error": pe, "release_error": re_}
+
+
+def scipy_at(rtol, ref):
+    t, sp = best_time(lambda: scipy_run(rtol), 3)
+    pe, re_ = errors(sp["peak"], sp["release"], ref)
+    return {"time": t, "steps": sp["steps"], "peak_error": pe, "release_error": re_}
+
+
+def loosest_matched(run_at, ref):
+    """The loosest relative tolerance of the ladder whose peak and release errors are both
+    within MATCHED, with its measurements."""
+    for rtol in LADDER:
+        r = run_at(rtol, ref)
+        if max(r["peak_error"], r["release_error"]) <= MATCHED:
+            return rtol, r
+    raise RuntimeError("no tolerance of the ladder reaches the matched accuracy")
+
+
+def show(name, rtol, r):
+    print("  %-9s rtol %.0e: %9.3f ms, %4d steps, peak error %.2e, release error %.2e"
+          % (name, rtol, r["time"] * 1e3, r["steps"], r["peak_error"], r["release_error"]))
+
+
 def main():
     print("reference transient: low-side NPN, physical models, diode + 15 V Zener clamp")
     ref = scipy_run(1e-11, 1e-5)
-    s = scenario(1e-6)
-    r = coilkick.run(s)  # warm-up (catalogue load)
-    n = 20
-    t0 = time.perf_counter()
-    for _ in range(n):
-        r = coilkick.run(s)
-    t_lib = (time.perf_counter() - t0) / n
-    t0 = time.perf_counter()
-    sp = scipy_run(1e-6)
-    t_sp = time.perf_counter() - t0
-    m = r.metrics
-    pe_lib = abs(m["switch_voltage_peak_V"] - ref["peak"]) / ref["peak"]
-    re_lib = abs(m["release_time_s"] - ref["release"]) / ref["release"]
-    pe_sp = abs(sp["peak"] - ref["peak"]) / ref["peak"]
-    re_sp = abs(sp["release"] - ref["release"]) / ref["release"]
     print("  tight reference (scipy Radau, rtol 1e-11): peak %.6f V, release %.6f ms" % (ref["peak"], ref["release"] * 1e3))
-    print("  coilkick (rtol 1e-6): %.3f ms per run, %d accepted steps, peak error %.2e, release error %.2e"
-          % (t_lib * 1e3, r._core.accepted_steps, pe_lib, re_lib))
-    print("  scipy Radau (rtol 1e-6): %.3f ms, %d steps, peak error %.2e, release error %.2e"
-          % (t_sp * 1e3, sp["steps"], pe_sp, re_sp))
+    print("same tolerance (rtol 1e-6 on both):")
+    lib_same, sp_same = coilkick_at(1e-6, ref), scipy_at(1e-6, ref)
+    show("coilkick", 1e-6, lib_same)
+    show("scipy", 1e-6, sp_same)
+    print("  speed-up %.1f" % (sp_same["time"] / lib_same["time"]))
+    print("matched accuracy (each at the loosest tolerance of %s with both errors <= %.0e):"
+          % ("/".join("%.0e" % x for x in LADDER), MATCHED))
+    rtol_lib, lib = loosest_matched(coilkick_at, ref)
+    rtol_sp, sp = loosest_matched(scipy_at, ref)
+    show("coilkick", rtol_lib, lib)
+    show("scipy", rtol_sp, sp)
     print("reference_transient speedup_vs_scipy=%.1f steps=%d peak_error=%.2e release_error=%.2e"
-          % (t_sp / t_lib, r._core.accepted_steps, pe_lib, re_lib))
+          % (sp["time"] / lib["time"], lib["steps"], lib["peak_error"], lib["release_error"]))
 
 
 if __name__ == "__main__":
+    # Radau's Newton iterations try far-out states where the junction exponentials overflow
+    # (the step is then rejected); those warnings are expected.
+    warnings.simplefilter("ignore", RuntimeWarning)
     main()
