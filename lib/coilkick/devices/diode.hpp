@@ -82,26 +82,39 @@ class PhysicalDiode final : public TerminalDevice<PhysicalDiode, 2> {
   bool has_charges() const { return p_.zero_bias_capacitance_F > 0.0 || p_.transit_time_s > 0.0; }
 
   template <class S>
-  void currents(const S* v, S* i) const {
-    const S u = v[0] - v[1];
-    S ia = branch_current(u, c_.forward) + p_.minimum_conductance_S * u;
-    if (c_.has_breakdown) ia = ia - branch_current(-u, c_.breakdown);
-    i[0] = ia;
-    i[1] = -ia;
-  }
+  void currents(const S* v, S* i) const { currents_and_charges(v, i, static_cast<S*>(nullptr)); }
   template <class S>
   void charges(const S* v, S* q) const {
     const S u = v[0] - v[1];
     S uj;
     const S i_forward = branch_current(u, c_.forward, &uj);
-    const S qa = depletion_charge_C(uj, c_.depletion) + p_.transit_time_s * i_forward;
-    q[0] = qa;
-    q[1] = -qa;
+    junction_charges(uj, i_forward, q);
+  }
+  // Both at once (TerminalDevice::load): the forward branch's series-resistance solve is shared.
+  // q may be null.
+  template <class S>
+  void currents_and_charges(const S* v, S* i, S* q) const {
+    const S u = v[0] - v[1];
+    S uj;
+    const S i_forward = branch_current(u, c_.forward, &uj);
+    if (q) junction_charges(uj, i_forward, q);
+    S ia = i_forward + p_.minimum_conductance_S * u;
+    if (c_.has_breakdown) ia = ia - branch_current(-u, c_.breakdown);
+    i[0] = ia;
+    i[1] = -ia;
   }
 
  private:
   DiodeParameters p_;
   DiodeCurves c_;
+
+  // Depletion charge at the junction voltage and diffusion charge of the forward current.
+  template <class S>
+  void junction_charges(const S& uj, const S& i_forward, S* q) const {
+    const S qa = depletion_charge_C(uj, c_.depletion) + p_.transit_time_s * i_forward;
+    q[0] = qa;
+    q[1] = -qa;
+  }
 };
 
 class PwlDiode final : public TerminalDevice<PwlDiode, 2> {
