@@ -81,16 +81,20 @@ class TerminalDevice : public engine::Element {
 
   double stored_energy_J(const engine::ElementContext& ctx) const override {
     if (!model().has_charges()) return 0.0;
-    // W = ∫0^1 Σ_k (s·v_k) · d q_k(s·v)/ds ds, 64 panels × 3-point Gauss–Legendre.
+    // W = ∫0^1 Σ_k (s·v_k) · d q_k(s·v)/ds ds, 16 panels × 5-point Gauss–Legendre (Abramowitz &
+    // Stegun, Handbook of Mathematical Functions, Table 25.4). The steepest integrand, a
+    // diffusion charge e^(v/(n·V_T)) at ~1 V, changes by e^30 over the path: ~1.9 per panel,
+    // where the 5-point rule's error term (h^11·f^(10) scale) stays below 1e-10 relative.
     using D1 = Dual<1>;
     std::array<double, N> v0;
     for (int k = 0; k < N; ++k) v0[idx(k)] = ctx.value(k);
-    static const double nodes[3] = {-0.7745966692414834, 0.0, 0.7745966692414834};
-    static const double weights[3] = {5.0 / 9.0, 8.0 / 9.0, 5.0 / 9.0};
-    constexpr int panels = 64;
+    static const double nodes[5] = {-0.9061798459386640, -0.5384693101056831, 0.0, 0.5384693101056831, 0.9061798459386640};
+    static const double weights[5] = {0.2369268850561891, 0.4786286704993665, 0.5688888888888889, 0.4786286704993665,
+                                      0.2369268850561891};
+    constexpr int panels = 16;
     double w = 0.0;
     for (int p = 0; p < panels; ++p) {
-      for (int g = 0; g < 3; ++g) {
+      for (int g = 0; g < 5; ++g) {
         const double s = (p + 0.5 + 0.5 * nodes[g]) / panels;
         std::array<D1, N> v, q;
         for (int k = 0; k < N; ++k) {
