@@ -2,6 +2,8 @@
 // against a baseline measured in the same run:
 //  - RlcSwitchOff: series RLC ringing after switch-off (coil 0.6 H / 400 ohm, 100 nF), 3 ms;
 //  - RlcEvaluate: one right-hand-side evaluation, the unit of cost of the integrator;
+//  - StepMethods: the same switch-off with the blockwise Rosenbrock step and with Boost.Odeint's
+//    rosenbrock4 on the full system (the baseline), alternately in one loop;
 // counters report accepted steps and right-hand-side evaluations per run.
 #include <benchmark/benchmark.h>
 
@@ -69,3 +71,28 @@ static void RlcEvaluate(benchmark::State& state) {
   }
 }
 BENCHMARK(RlcEvaluate)->Arg(0)->Arg(1);
+
+static void StepMethods(benchmark::State& state) {
+  const Network net = rlc_network();
+  const Circuit c(net);
+  CircuitState s0 = zero_state(c, 0.0);
+  set_state(c, s0, "coil.current", 0.03);
+  TransientOptions o;
+  o.stop_time_s = 3e-3;
+  o.relative_tolerance = 1e-6;
+  double blockwise_s = 0.0, odeint_s = 0.0;
+  auto timed = [&](StepMethod m) {
+    o.step_method = m;
+    const auto t0 = std::chrono::steady_clock::now();
+    const auto r = simulate(c, s0, o, {EventSpec::maximum("peak", Probe::node_voltage(c, "sw"))});
+    benchmark::DoNotOptimize(r.event("peak").value);
+    return std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  };
+  for (auto _ : state) {
+    blockwise_s += timed(StepMethod::rosenbrock4_blockwise);
+    odeint_s += timed(StepMethod::rosenbrock4_odeint);
+  }
+  // Ratio against the baseline measured in the same loop: how much slower odeint's stepper is.
+  state.counters["odeint_over_blockwise"] = odeint_s / blockwise_s;
+}
+BENCHMARK(StepMethods)->Unit(benchmark::kMicrosecond);
