@@ -15,8 +15,8 @@ using RowMatrix = Eigen::Matrix<double, Eigen::Dynamic, Eigen::Dynamic, Eigen::R
 struct SolverStatistics {
   long accepted_steps = 0;
   long rejected_steps = 0;
-  long rate_evaluations = 0;      // right-hand-side evaluations
-  long jacobian_evaluations = 0;
+  long rate_evaluations = 0;      // circuit evaluations of the rates alone (Rosenbrock stages)
+  long jacobian_evaluations = 0;  // full evaluations: rates, Jacobian and ∂ẋ/∂t (one per point)
 };
 
 struct EnergyChannelTotal {
