@@ -211,7 +211,12 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
   assemble(t_s, slope_time_s, x, w);
   const int nc = n_circuit_, nf = n_fixed_, nch = n_element_channels_;
   const auto vdot_f = w.ext_rate.segment(nc, nf);
-  w.lu.compute(w.mass.topLeftCorner(nc, nc));
+  // M is often the same as at the last evaluation (pwl devices, fixed capacitors and coils):
+  // factor it only when it changed.
+  if (!(w.lu_of.rows() == nc && w.lu_of == w.mass.topLeftCorner(nc, nc))) {
+    w.lu_of = w.mass.topLeftCorner(nc, nc);
+    w.lu.compute(w.lu_of);
+  }
   w.scratch_rhs.noalias() = w.flow.head(nc) - w.mass.block(0, nc, nc, nf) * vdot_f;
   w.lu.solve_in_place(w.scratch_rhs);
   w.rate.head(nc) = w.scratch_rhs;

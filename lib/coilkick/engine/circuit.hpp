@@ -43,7 +43,8 @@ struct Workspace {
   Eigen::MatrixXd flow_slope, mass, mass_slope;
   Eigen::VectorXd power, power_time_rate;
   Eigen::MatrixXd power_slope;
-  SmallLu lu;  // of the circuit block of M
+  SmallLu lu;              // of the circuit block of M ...
+  Eigen::MatrixXd lu_of;   // ... as it was when factored
   // Outputs of Circuit::evaluate:
   Eigen::VectorXd rate;        // ẋ for all states
   Eigen::MatrixXd jacobian;    // ∂ẋ/∂x (only when requested)
