@@ -32,13 +32,10 @@ double branch_junction_voltage_V(double u, const ExpBranch& b) {
                                           std::log(std::max(u - b.offset_V, 0.0) / (r * b.scale_current_A) + 1.0);
     double x = std::min(u, above);
     for (int it = 0; it < 40; ++it) {
-      // One exponential for g and its slope (exp_limited written out).
-      const double xc = (x - b.offset_V) / b.emission_voltage_V;
-      const double e = std::exp(std::min(xc, b.x_crit));
-      const double di = b.scale_current_A / b.emission_voltage_V * e;
-      const double lim = xc <= b.x_crit ? e : e * (1.0 + (xc - b.x_crit));
+      double slope = 0.0;  // one exponential for g and its slope
+      const double lim = exp_limited((x - b.offset_V) / b.emission_voltage_V, b.x_crit, &slope);
       const double gx = x + r * (b.scale_current_A * (lim - b.minus_one)) - u;
-      const double step = gx / (1.0 + r * di);
+      const double step = gx / (1.0 + r * (b.scale_current_A / b.emission_voltage_V * slope));
       if (!std::isfinite(step)) break;
       x -= step;
       if (std::abs(step) <= 1e-15 * std::max(1.0, std::abs(x))) return x;

@@ -45,10 +45,16 @@ inline double saturation_current_at_A(double is_nom_A, double emission, double e
          std::exp((ratio - 1.0) * energy_gap_eV / (emission * vt));
 }
 
+// With `slope`, also its derivative d/dx from the same exponential.
 template <class S>
-S exp_limited(const S& x, double x_crit) {
-  if (value_of(x) <= x_crit) return exp(x);
+S exp_limited(const S& x, double x_crit, S* slope = nullptr) {
+  if (value_of(x) <= x_crit) {
+    const S e = exp(x);
+    if (slope) *slope = e;
+    return e;
+  }
   const double ec = std::exp(x_crit);
+  if (slope) *slope = S(ec);
   return ec * (1.0 + (x - x_crit));
 }
 
@@ -135,16 +141,9 @@ S branch_current(const S& u, const ExpBranch& b, S* junction_voltage = nullptr) 
   }
   S uj = S(branch_junction_voltage_V(value_of(u), b));
   for (int k = 0; k < derivative_order<S>::value; ++k) {  // exact derivatives of each order
-    const S x = (uj - b.offset_V) / b.emission_voltage_V;
-    S i, di;
-    if (value_of(x) <= b.x_crit) {  // one exponential for the current and its slope
-      const S e = exp(x);
-      i = b.scale_current_A * (e - b.minus_one);
-      di = b.scale_current_A / b.emission_voltage_V * e;
-    } else {
-      i = branch_junction_current(uj, b);
-      di = S(b.scale_current_A / b.emission_voltage_V * std::exp(b.x_crit));
-    }
+    S slope;  // one exponential for the current and its slope
+    const S i = b.scale_current_A * (exp_limited((uj - b.offset_V) / b.emission_voltage_V, b.x_crit, &slope) - b.minus_one);
+    const S di = b.scale_current_A / b.emission_voltage_V * slope;
     uj = uj - (uj + r * i - u) / (1.0 + r * di);
   }
   if (junction_voltage) *junction_voltage = uj;

@@ -271,32 +271,53 @@ std::vector<double> Circuit::terminal_currents_A(int element, double t_s, const 
 
 std::vector<double> Circuit::terminal_currents_A(int element, double t_s, const double* x,
                                                  const double* rates, Workspace& w) const {
-  const int nt = elements_.at(static_cast<std::size_t>(element))->terminal_count();
+  load_element_alone(element, t_s, x, rates, w);
   std::vector<double> out;
-  for (int k = 0; k < nt; ++k) out.push_back(terminal_current_A(element, k, t_s, x, rates, w, k == 0));
+  const int nt = elements_.at(static_cast<std::size_t>(element))->terminal_count();
+  for (int k = 0; k < nt; ++k) out.push_back(loaded_terminal_current_A(element, k, w));
   return out;
 }
 
 double Circuit::terminal_current_A(int element, int terminal, double t_s, const double* x,
-                                   const double* rates, Workspace& w, bool load) const {
-  const auto& map = maps_[static_cast<std::size_t>(element)];
-  const int n = static_cast<int>(map.size());
-  if (load) {
-    for (int i = 0; i < n_circuit_; ++i) {
-      w.ext_value[i] = x[i];
-      w.ext_rate[i] = rates[i];
-    }
-    for (int j = 0; j < n_fixed_; ++j) {
-      w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
-      w.ext_rate[n_circuit_ + j] = sources_[j].voltage_V.slope(t_s);
-    }
-    LocalStamper st(w.local_flow, w.local_mass, n);
-    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), map.data());
-    elements_[static_cast<std::size_t>(element)]->load(ctx, st);
+                                   const double* rates, Workspace& w) const {
+  load_element_alone(element, t_s, x, rates, w);
+  return loaded_terminal_current_A(element, terminal, w);
+}
+
+void Circuit::load_element_alone(int element, double t_s, const double* x, const double* rates,
+                                 Workspace& w) const {
+  for (int i = 0; i < n_circuit_; ++i) {
+    w.ext_value[i] = x[i];
+    w.ext_rate[i] = rates[i];
   }
+  for (int j = 0; j < n_fixed_; ++j) {
+    w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
+    w.ext_rate[n_circuit_ + j] = sources_[j].voltage_V.slope(t_s);
+  }
+  const auto& map = maps_[static_cast<std::size_t>(element)];
+  LocalStamper st(w.local_flow, w.local_mass, static_cast<int>(map.size()));
+  ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), map.data());
+  elements_.at(static_cast<std::size_t>(element))->load(ctx, st);
+}
+
+double Circuit::loaded_terminal_current_A(int element, int terminal, const Workspace& w) const {
+  const auto& map = maps_[static_cast<std::size_t>(element)];
   double i = -w.local_flow[terminal];
-  for (int c = 0; c < n; ++c) i += w.local_mass(terminal, c) * (map[c] < 0 ? 0.0 : w.ext_rate[map[c]]);
+  for (std::size_t c = 0; c < map.size(); ++c) {
+    i += w.local_mass(terminal, static_cast<Eigen::Index>(c)) * (map[c] < 0 ? 0.0 : w.ext_rate[map[c]]);
+  }
   return i;
+}
+
+int Circuit::element_with_terminal(const std::string& element, int terminal, const std::string& who) const {
+  const int e = element_index(element);
+  const int nt = elements_[static_cast<std::size_t>(e)]->terminal_count();
+  if (terminal < 0 || terminal >= nt) {
+    std::ostringstream m;
+    m << who << ": element '" << element << "' has terminals 0.." << nt - 1 << ", not " << terminal;
+    throw std::invalid_argument(m.str());
+  }
+  return e;
 }
 
 double Circuit::stored_energy_J(int element, double t_s, const double* x, Workspace& w) const {

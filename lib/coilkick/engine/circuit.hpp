@@ -96,10 +96,12 @@ class Circuit {
   // The same with the rates ẋ known (a recorded point): only the element is loaded.
   std::vector<double> terminal_currents_A(int element, double t_s, const double* x,
                                           const double* rates, Workspace& w) const;
-  // One terminal's current, allocating nothing. load = false reuses the element's rows loaded
-  // by the previous call with the same (t, x, rates) — for several terminals of one point.
+  // One terminal's current, allocating nothing.
   double terminal_current_A(int element, int terminal, double t_s, const double* x,
-                            const double* rates, Workspace& w, bool load = true) const;
+                            const double* rates, Workspace& w) const;
+  // Index of the element after checking that it has that terminal; throws
+  // std::invalid_argument "<who>: element 'e' has terminals 0..n, not k".
+  int element_with_terminal(const std::string& element, int terminal, const std::string& who) const;
   // Energy stored in fields (J): element `e`, or the whole circuit (elements + stray) for e = -1.
   double stored_energy_J(int element, double t_s, const double* x, Workspace& w) const;
   // First corner of any source waveform or element time dependence strictly after t_s.
@@ -120,6 +122,10 @@ class Circuit {
   int n_nodes_ = 0, n_circuit_ = 0, n_fixed_ = 0, n_element_channels_ = 0;
 
   int ext_node_index(const std::string& node) const;  // -1 ground, throws if unknown
+  // Loads one element alone at (t, x, ẋ) into w.local_flow / w.local_mass, and reads one
+  // terminal's current from them.
+  void load_element_alone(int element, double t_s, const double* x, const double* rates, Workspace& w) const;
+  double loaded_terminal_current_A(int element, int terminal, const Workspace& w) const;
   void check_every_node_has_capacitance();
 };
 

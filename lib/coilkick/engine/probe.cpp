@@ -1,7 +1,6 @@
 #include "coilkick/engine/probe.hpp"
 
 #include <memory>
-#include <stdexcept>
 
 namespace coilkick::engine {
 
@@ -27,12 +26,7 @@ Probe Probe::state(const Circuit& circuit, const std::string& name) {
 }
 
 Probe Probe::element_current(const Circuit& circuit, const std::string& element, int terminal) {
-  const int e = circuit.element_index(element);
-  const int nt = circuit.elements()[static_cast<std::size_t>(e)]->terminal_count();
-  if (terminal < 0 || terminal >= nt) {
-    throw std::invalid_argument("probe: element '" + element + "' has terminals 0.." +
-                                std::to_string(nt - 1) + ", not " + std::to_string(terminal));
-  }
+  const int e = circuit.element_with_terminal(element, terminal, "probe");
   const Circuit* c = &circuit;
   auto w = std::make_shared<Workspace>(circuit.make_workspace());
   return using_rates("current into " + element, [c, e, terminal, w](double t, const double* x, const double* rates) {

@@ -22,11 +22,7 @@ class Probe {
   Probe(std::string description, Function f)
       : description_(std::move(description)),
         f_([g = std::move(f)](double t, const double* x, const double*) { return g(t, x); }) {}
-  static Probe using_rates(std::string description, RateFunction f) {
-    Probe p(std::move(description), Function{});
-    p.f_ = std::move(f);
-    return p;
-  }
+  static Probe using_rates(std::string description, RateFunction f) { return Probe(std::move(description), std::move(f), 0); }
   // The circuit must outlive these probes.
   static Probe node_voltage(const Circuit& circuit, const std::string& node);            // V
   static Probe voltage_between(const Circuit& circuit, const std::string& a, const std::string& b);
@@ -37,6 +33,8 @@ class Probe {
   const std::string& description() const { return description_; }
 
  private:
+  Probe(std::string description, RateFunction f, int /*rates tag*/)
+      : description_(std::move(description)), f_(std::move(f)) {}
   std::string description_;
   RateFunction f_;
 };

@@ -18,7 +18,7 @@ using Coefficients = boost::numeric::odeint::default_rosenbrock_coefficients<dou
 class Blockwise final : public RosenbrockStep {
  public:
   Blockwise(int n, int coupled)
-      : n_(n), nc_(coupled), a_(coupled, coupled), xtmp_(n), f_(n), r_(n), rc_(coupled) {
+      : n_(n), nc_(coupled), a_(coupled, coupled), xtmp_(n), f_(n), r_(n), rc_(coupled), rq_(n - coupled) {
     for (auto& g : g_) g = Eigen::VectorXd::Zero(n);
   }
 
@@ -35,8 +35,8 @@ class Blockwise final : public RosenbrockStep {
       lu_.solve_in_place(rc_);
       g.head(nc_) = rc_;
       const int nq = n_ - nc_;
-      g.tail(nq) = gh * (r.tail(nq) + s.jacobian.bottomLeftCorner(nq, nc_) * g.head(nc_) +
-                         s.time_rate.tail(nq) * gt);
+      rq_.noalias() = s.jacobian.bottomLeftCorner(nq, nc_) * g.head(nc_);
+      g.tail(nq) = gh * (r.tail(nq) + rq_ + s.time_rate.tail(nq) * gt);
       return gt;
     };
     auto stage = [&](double tau) { rates(tau, xtmp_.data(), f_.data()); };
@@ -84,7 +84,7 @@ class Blockwise final : public RosenbrockStep {
   Eigen::MatrixXd a_;
   SmallLu lu_;
   std::array<Eigen::VectorXd, 5> g_;
-  Eigen::VectorXd xtmp_, f_, r_, rc_;
+  Eigen::VectorXd xtmp_, f_, r_, rc_, rq_;
 };
 
 // Boost.Odeint's rosenbrock4 on the autonomous system (states then time). Its own ∂f/∂t

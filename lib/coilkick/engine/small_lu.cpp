@@ -7,7 +7,6 @@ namespace coilkick::engine {
 
 void SmallLu::compute(const ConstMatrixRef& a) {
   n_ = static_cast<int>(a.rows());
-  if (lu_.rows() != n_ || lu_.cols() != n_) lu_.resize(n_, n_);
   lu_ = a;
   pivot_.resize(static_cast<std::size_t>(n_));
   for (int k = 0; k < n_; ++k) {

@@ -26,20 +26,19 @@ struct OdeSystem {
 
   // The last full evaluation (rates, Jacobian, ∂ẋ/∂t) and the point it was taken at: a step's
   // start after a rejected attempt, and an accepted end point (recorded, probed, then the next
-  // step's start), are each evaluated once.
+  // step's start), are each evaluated once. A full evaluation is always at a step's start or
+  // end, so its waveform slopes are those at t itself.
   Eigen::VectorXd full_at;
   double full_time = std::numeric_limits<double>::quiet_NaN();
-  double full_slope_time = std::numeric_limits<double>::quiet_NaN();
   Eigen::VectorXd full_rate, full_time_rate;
   Eigen::MatrixXd full_jacobian;
 
-  void full_evaluation(const Eigen::VectorXd& x, double t, double slope_t) {
-    if (full_time == t && full_slope_time == slope_t && full_at.size() == x.size() && full_at == x) return;
-    circuit.evaluate(t, slope_t, x.data(), w, true);
+  void full_evaluation(const Eigen::VectorXd& x, double t) {
+    if (full_time == t && full_at.size() == x.size() && full_at == x) return;
+    circuit.evaluate(t, t, x.data(), w, true);
     ++stats.jacobian_evaluations;
     full_at = x;
     full_time = t;
-    full_slope_time = slope_t;
     full_rate = w.rate;
     full_time_rate = w.time_rate;
     full_jacobian = w.jacobian;
@@ -146,8 +145,7 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
 
   Workspace w = circuit.make_workspace();
   SolverStatistics stats;
-  OdeSystem sys{circuit, w, stats, initial.time_s, {}, std::numeric_limits<double>::quiet_NaN(),
-                std::numeric_limits<double>::quiet_NaN(), {}, {}, {}};
+  OdeSystem sys{circuit, w, stats, initial.time_s, {}, std::numeric_limits<double>::quiet_NaN(), {}, {}, {}};
   const StageRates stage_rates = [&sys](double tq, const double* xq, double* rate) { sys.stage_rates(tq, xq, rate); };
   const auto stepper = make_rosenbrock_step(options.step_method, static_cast<int>(n), nc);
 
@@ -160,7 +158,7 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
   std::vector<double> rec_x, rec_rate;
   // Recording evaluates the point in full: the next step starts there.
   auto record = [&](double tr, const Eigen::VectorXd& xr) {
-    sys.full_evaluation(xr, tr, tr);
+    sys.full_evaluation(xr, tr);
     times.push_back(tr);
     rec_x.insert(rec_x.end(), xr.data(), xr.data() + n);
     rec_rate.insert(rec_rate.end(), sys.full_rate.data(), sys.full_rate.data() + n);
@@ -215,7 +213,7 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
     }
 
     sys.step_start = t;
-    sys.full_evaluation(x, t, t);
+    sys.full_evaluation(x, t);
     stepper->attempt(x, t, dt, {sys.full_rate, sys.full_jacobian, sys.full_time_rate}, stage_rates, x_new, x_err);
 
     double err = 0.0;
@@ -254,7 +252,7 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
     dense.x1 = x_new;
     stepper->dense_output(dense.c3, dense.c4);
     rate_old = sys.full_rate;                // the full evaluation at the start of the step
-    sys.full_evaluation(x_new, t_new, t_new);  // at its end: probes read it, the next step starts there
+    sys.full_evaluation(x_new, t_new);  // at its end: probes read it, the next step starts there
     auto interp = [&dense](double tq, double* xo, double* ro) { dense.at(tq, xo, ro); };
     auto keep = [&dense]() {
       auto d = std::make_shared<const DenseStep>(dense);

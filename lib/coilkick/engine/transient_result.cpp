@@ -47,13 +47,7 @@ Eigen::VectorXd TransientResult::node_voltage_V(const std::string& node) const {
 }
 
 Eigen::VectorXd TransientResult::element_current_A(const std::string& element, int terminal) const {
-  const int e = circuit_.element_index(element);
-  const int nt = circuit_.elements()[static_cast<std::size_t>(e)]->terminal_count();
-  if (terminal < 0 || terminal >= nt) {
-    std::ostringstream m;
-    m << "transient result: element '" << element << "' has terminals 0.." << nt - 1 << ", not " << terminal;
-    throw std::invalid_argument(m.str());
-  }
+  const int e = circuit_.element_with_terminal(element, terminal, "transient result");
   Workspace w = circuit_.make_workspace();
   Eigen::VectorXd out(static_cast<Eigen::Index>(times_.size()));
   for (std::size_t k = 0; k < times_.size(); ++k) {
