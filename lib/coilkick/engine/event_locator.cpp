@@ -33,7 +33,7 @@ double EventLocator::probe_at_end(std::size_t k, double t1, const double* x1, co
 }
 
 double EventLocator::probe_at(const EventSpec& e, double t, const Interpolant& f) {
-  f(t, scratch_x_.data(), scratch_rate_.data());
+  f(t, scratch_x_.data(), e.probe.reads_rates() ? scratch_rate_.data() : nullptr);
   return e.probe(t, scratch_x_.data(), scratch_rate_.data());
 }
 
@@ -84,12 +84,10 @@ void EventLocator::refine_extremum(std::size_t k, double a, double b, const Inte
       fd = sign * probe_at(e, d, f);
     }
   }
-  const double tm = 0.5 * (a + b);
-  const double vm = probe_at(e, tm, f);
-  if (better(e.kind, vm, outcomes_[k].value)) {
-    outcomes_[k].time_s = tm;
-    outcomes_[k].value = vm;
-  }
+  // The kept step holds the best sample of the run, so its refined value is the extremum, even
+  // where it lies a little below the sample (which may have read the less exact rates).
+  outcomes_[k].time_s = 0.5 * (a + b);
+  outcomes_[k].value = probe_at(e, *outcomes_[k].time_s, f);
 }
 
 double EventLocator::on_step(double t0, const double* x0, const double* r0, double t1,

@@ -5,7 +5,8 @@
 // skipped once both ends lie more than 10 % beyond the best so far); when the best sample lies
 // inside the step, that step's dense output is kept and, once the run is over (`finish`), the
 // best sample's neighbourhood is refined by golden-section search — only the step that holds
-// the extremum in the end, not every step that held it for a while. A crossing that enters and
+// the extremum in the end, not every step that held it for a while — and the refined value
+// replaces the sampled one (the kept interpolant may be more exact than the sampling one). A crossing that enters and
 // leaves within one step is not seen (steps are short against the features of interest). Every
 // probe value at a step's end is reused as the next step's start.
 #include <functional>
@@ -17,10 +18,12 @@ namespace coilkick::engine {
 
 class EventLocator {
  public:
-  // interpolate(t, x, rates): fills x and ẋ (size of the state) from the dense output inside
-  // the step.
+  // interpolate(t, x, rates): fills x and, when `rates` is not null, ẋ (size of the state)
+  // inside the step. The locator asks for rates only for probes that read them.
   using Interpolant = std::function<void(double t_s, double* x, double* rates)>;
-  // Returns an interpolant of the same step that stays valid after the step (owns its data).
+  // Returns an interpolant of the same step that stays valid after the step (owns its data); the
+  // extremum refinement in finish() uses it, so it may compute rates more exactly (and more
+  // expensively) than the one passed to on_step.
   using KeepInterpolant = std::function<Interpolant()>;
 
   EventLocator(const std::vector<EventSpec>& specs, int state_size, double time_tolerance_s);

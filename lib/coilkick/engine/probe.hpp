@@ -17,7 +17,10 @@ class Probe {
   using Function = std::function<double(double t_s, const double* x)>;
   // A probe that also reads the rates ẋ (a charge or inductor current). During a transient the
   // rates come from the evaluation at each accepted point and, inside a step, from the time
-  // derivative of the dense output — so such a probe costs one element, not one circuit.
+  // derivative of the dense output — so such a probe costs one element, not one circuit —
+  // except where an extremum is refined: there the rates come from evaluating the circuit at
+  // the interpolated states (the dense derivative is one order less accurate, and biased high
+  // where a fast edge stops, e.g. a clamp starting to conduct).
   using RateFunction = std::function<double(double t_s, const double* x, const double* rates)>;
   Probe(std::string description, Function f)
       : description_(std::move(description)),
@@ -30,13 +33,15 @@ class Probe {
   // Current (A) into the element at one of its terminals (static and charge parts).
   static Probe element_current(const Circuit& circuit, const std::string& element, int terminal);
   double operator()(double t_s, const double* x, const double* rates) const { return f_(t_s, x, rates); }
+  bool reads_rates() const { return reads_rates_; }
   const std::string& description() const { return description_; }
 
  private:
   Probe(std::string description, RateFunction f, int /*rates tag*/)
-      : description_(std::move(description)), f_(std::move(f)) {}
+      : description_(std::move(description)), f_(std::move(f)), reads_rates_(true) {}
   std::string description_;
   RateFunction f_;
+  bool reads_rates_ = false;
 };
 
 enum class Direction { falling, rising, either };

@@ -43,6 +43,13 @@ struct OdeSystem {
     full_time_rate = w.time_rate;
     full_jacobian = w.jacobian;
   }
+  // Rates at a point inside an accepted step, however long ago (no corner lies inside a step,
+  // so the waveform slopes at t itself are the step's).
+  void rates_inside_step(double t, const double* x, double* rate) {
+    circuit.evaluate(t, t, x, w, false);
+    ++stats.rate_evaluations;
+    std::copy(w.rate.data(), w.rate.data() + w.rate.size(), rate);
+  }
   void stage_rates(double t, const double* x, double* rate) {
     circuit.evaluate(t, slope_time(t), x, w, false);
     ++stats.rate_evaluations;
@@ -57,10 +64,12 @@ struct DenseStep {
   double t0 = 0.0, t1 = 0.0;
   Eigen::VectorXd x0, x1, c3, c4;
 
+  // x and, unless `rate` is null, the dense output's time derivative.
   void at(double t, double* x, double* rate) const {
     const double h = t1 - t0, s = (t - t0) / h, s1 = 1.0 - s;
+    for (Eigen::Index i = 0; i < x0.size(); ++i) x[i] = x0[i] * s1 + s * (x1[i] + s1 * (c3[i] + s * c4[i]));
+    if (!rate) return;
     for (Eigen::Index i = 0; i < x0.size(); ++i) {
-      x[i] = x0[i] * s1 + s * (x1[i] + s1 * (c3[i] + s * c4[i]));
       rate[i] = (x1[i] - x0[i] + (1.0 - 2.0 * s) * c3[i] + s * (2.0 - 3.0 * s) * c4[i]) / h;
     }
   }
@@ -254,9 +263,13 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
     rate_old = sys.full_rate;                // the full evaluation at the start of the step
     sys.full_evaluation(x_new, t_new);  // at its end: probes read it, the next step starts there
     auto interp = [&dense](double tq, double* xo, double* ro) { dense.at(tq, xo, ro); };
-    auto keep = [&dense]() {
+    // The kept copy (extremum refinement) evaluates the circuit for exact rates.
+    auto keep = [&dense, &sys]() {
       auto d = std::make_shared<const DenseStep>(dense);
-      return EventLocator::Interpolant([d](double tq, double* xo, double* ro) { d->at(tq, xo, ro); });
+      return EventLocator::Interpolant([d, &sys](double tq, double* xo, double* ro) {
+        d->at(tq, xo, nullptr);
+        if (ro) sys.rates_inside_step(tq, xo, ro);
+      });
     };
     const double stop_at = locator.on_step(t_old, x.data(), rate_old.data(), t_new, x_new.data(),
                                            sys.full_rate.data(), interp, keep);
