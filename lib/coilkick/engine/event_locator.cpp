@@ -33,8 +33,9 @@ double EventLocator::probe_at_end(std::size_t k, double t1, const double* x1, co
 }
 
 double EventLocator::probe_at(const EventSpec& e, double t, const Interpolant& f) {
-  f(t, scratch_x_.data(), e.probe.reads_rates() ? scratch_rate_.data() : nullptr);
-  return e.probe(t, scratch_x_.data(), scratch_rate_.data());
+  double* rates = e.probe.reads_rates() ? scratch_rate_.data() : nullptr;
+  f(t, scratch_x_.data(), rates);
+  return e.probe(t, scratch_x_.data(), rates);
 }
 
 void EventLocator::start(double t_s, const double* x, const double* rates) {

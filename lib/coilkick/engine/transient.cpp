@@ -43,13 +43,8 @@ struct OdeSystem {
     full_time_rate = w.time_rate;
     full_jacobian = w.jacobian;
   }
-  // Rates at a point inside an accepted step, however long ago (no corner lies inside a step,
-  // so the waveform slopes at t itself are the step's).
-  void rates_inside_step(double t, const double* x, double* rate) {
-    circuit.evaluate(t, t, x, w, false);
-    ++stats.rate_evaluations;
-    std::copy(w.rate.data(), w.rate.data() + w.rate.size(), rate);
-  }
+  // Rates at a stage of the step being attempted, or at a point inside an accepted step however
+  // long ago (events): no corner lies inside a step, so the slope time falls in t's segment.
   void stage_rates(double t, const double* x, double* rate) {
     circuit.evaluate(t, slope_time(t), x, w, false);
     ++stats.rate_evaluations;
@@ -268,7 +263,7 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
       auto d = std::make_shared<const DenseStep>(dense);
       return EventLocator::Interpolant([d, &sys](double tq, double* xo, double* ro) {
         d->at(tq, xo, nullptr);
-        if (ro) sys.rates_inside_step(tq, xo, ro);
+        if (ro) sys.stage_rates(tq, xo, ro);
       });
     };
     const double stop_at = locator.on_step(t_old, x.data(), rate_old.data(), t_new, x_new.data(),
@@ -287,7 +282,7 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
     err_old = std::max(0.01, err);
 
     if (std::isfinite(stop_at)) {
-      dense.at(stop_at, x.data(), rate_old.data());
+      dense.at(stop_at, x.data(), nullptr);  // record() evaluates the rates there
       t = stop_at;
       record(t, x);
       break;
