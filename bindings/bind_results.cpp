@@ -30,6 +30,7 @@ py::list checks_list(const std::vector<drivers::RatingCheck>& checks) {
     d["status"] = drivers::to_string(c.status);
     d["value"] = c.value;
     d["limit"] = c.limit;
+    d["fail_limit"] = c.fail_limit;
     d["unit"] = c.unit;
     d["detail"] = c.detail;
     l.append(d);

@@ -120,7 +120,9 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
     out << "\nRating checks\n";
     for (const auto& c : r.checks) {
       out << "  " << status_word(c.status) << "  " << std::left << std::setw(36) << c.name << " " << std::setw(12)
-          << metric_text("x_" + c.unit, c.value) << " limit " << std::setw(12) << metric_text("x_" + c.unit, c.limit) << c.detail << "\n";
+          << metric_text("x_" + c.unit, c.value) << " limit " << std::setw(12) << metric_text("x_" + c.unit, c.limit);
+      if (!std::isnan(c.fail_limit)) out << "(fails beyond " << metric_text("x_" + c.unit, c.fail_limit) << ") ";
+      out << c.detail << "\n";
     }
     out << "  overall: " << status_word(status) << "\n\n" << kCaution << "\n";
   }

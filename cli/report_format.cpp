@@ -45,7 +45,8 @@ nlohmann::json checks_json(const std::vector<drivers::RatingCheck>& checks) {
   nlohmann::json a = nlohmann::json::array();
   for (const auto& c : checks) {
     a.push_back({{"name", c.name}, {"status", drivers::to_string(c.status)}, {"value", number_json(c.value)},
-                 {"limit", number_json(c.limit)}, {"unit", c.unit}, {"detail", c.detail}});
+                 {"limit", number_json(c.limit)}, {"fail_limit", number_json(c.fail_limit)}, {"unit", c.unit},
+                 {"detail", c.detail}});
   }
   return a;
 }

@@ -45,6 +45,9 @@ void check_bjt_parameters(const std::string& owner, const BjtParameters& p) {
   if (!std::isnan(p.saturation_resistance_ohm)) require_positive(owner, "saturation_resistance_ohm", p.saturation_resistance_ohm);
   require_positive(owner, "pwl_reference_collector_current_A", p.pwl_reference_collector_current_A);
   require_positive(owner, "pwl_forced_beta", p.pwl_forced_beta);
+  if (!std::isnan(p.pwl_breakdown_reference_current_A)) {
+    require_positive(owner, "pwl_breakdown_reference_current_A", p.pwl_breakdown_reference_current_A);
+  }
   if (!(p.pwl_forced_beta < p.forward_beta)) {
     require_open_range(owner, "pwl_forced_beta (below forward_beta)", p.pwl_forced_beta, 0.0, p.forward_beta);
   }
@@ -94,7 +97,7 @@ BjtDerived derive_bjt(const BjtParameters& p) {
   if (d.has_breakdown) {
     const BreakdownKnee k = make_breakdown_knee(p.collector_emitter_breakdown_voltage_V, p.breakdown_test_current_A,
                                                 p.breakdown_dynamic_resistance_ohm, p.breakdown_knee_emission_coefficient,
-                                                d.vt, p.critical_current_A);
+                                                d.vt, p.critical_current_A, p.pwl_breakdown_reference_current_A);
     d.breakdown = k.branch;
     d.breakdown_resistance_ohm = k.pwl_resistance_ohm;
     d.breakdown_knee_V = k.pwl_knee_V;

@@ -68,6 +68,9 @@ struct BjtParameters {
   double saturation_resistance_ohm = std::numeric_limits<double>::quiet_NaN();
   double pwl_reference_collector_current_A = 0.1;
   double pwl_forced_beta = 10.0;
+  // pwl collector breakdown line: tangent of the physical curve at this current (NaN: at the test
+  // current). The driver builder sets it to the coil's current for the switch.
+  double pwl_breakdown_reference_current_A = std::numeric_limits<double>::quiet_NaN();
   // Numerical safeguards
   double critical_current_A = 1e3;
   double minimum_conductance_S = 1e-12;
@@ -99,6 +102,7 @@ class PhysicalBjt final : public TerminalDevice<PhysicalBjt, 3> {
   PhysicalBjt(std::string name, std::string collector, std::string base, std::string emitter, BjtParameters p);
   std::string kind() const override { return p_.polarity == Polarity::n ? "NPN (physical)" : "PNP (physical)"; }
   const BjtParameters& parameters() const { return p_; }
+  bool has_breakdown() const { return d_.has_breakdown; }
   bool has_charges() const {
     return p_.base_emitter_capacitance_F > 0 || p_.base_collector_capacitance_F > 0 ||
            p_.forward_transit_time_s > 0 || p_.reverse_transit_time_s > 0;
@@ -142,7 +146,7 @@ class PhysicalBjt final : public TerminalDevice<PhysicalBjt, 3> {
   }
 
   template <class S>
-  void currents(const S* v, S* i) const { currents_and_charges(v, i, static_cast<S*>(nullptr)); }
+  void currents(const S* v, S* i, S* breakdown = nullptr) const { currents_and_charges(v, i, static_cast<S*>(nullptr), breakdown); }
   template <class S>
   void charges(const S* v, S* q) const {
     const double sg = d_.sign;
@@ -152,9 +156,9 @@ class PhysicalBjt final : public TerminalDevice<PhysicalBjt, 3> {
     junction_charges(vbe, vbc, i_f, i_r, q);
   }
   // Both at once (TerminalDevice::load): the collector-resistance solve and the transport
-  // currents are shared. q may be null.
+  // currents are shared. q may be null; breakdown: see TerminalDevice.
   template <class S>
-  void currents_and_charges(const S* v, S* i, S* q) const {
+  void currents_and_charges(const S* v, S* i, S* q, S* breakdown = nullptr) const {
     const double sg = d_.sign, g = p_.minimum_conductance_S;
     const S vbe = sg * (v[1] - v[2]), vbc_t = sg * (v[1] - v[0]), vce = sg * (v[0] - v[2]);
     const S vbc = intrinsic_vbc(vbe, vbc_t);
@@ -163,10 +167,16 @@ class PhysicalBjt final : public TerminalDevice<PhysicalBjt, 3> {
     if (q) junction_charges(vbe, vbc, i_f, i_r, q);
     ic = ic - g * vbc_t + g * vce;
     ib = ib + g * vbe + g * vbc_t;
-    if (d_.has_breakdown) ic = ic + branch_current(vce, d_.breakdown);
+    const S ibr = d_.has_breakdown ? branch_current(vce, d_.breakdown) : S(0.0);
+    if (!breakdown) ic = ic + ibr;
     i[0] = sg * ic;
     i[1] = sg * ib;
     i[2] = -(i[0] + i[1]);
+    if (breakdown) {
+      breakdown[0] = sg * ibr;
+      breakdown[1] = S(0.0);
+      breakdown[2] = -breakdown[0];
+    }
   }
 
  private:
@@ -191,9 +201,11 @@ class PwlBjt final : public TerminalDevice<PwlBjt, 3> {
   std::string kind() const override { return p_.polarity == Polarity::n ? "NPN (pwl)" : "PNP (pwl)"; }
   bool has_charges() const { return false; }
   const BjtDerived& segments() const { return d_; }
+  bool has_breakdown() const { return d_.has_breakdown; }
 
+  // breakdown: see TerminalDevice (the breakdown line apart, when not null).
   template <class S>
-  void currents(const S* v, S* i) const {
+  void currents(const S* v, S* i, S* breakdown = nullptr) const {
     const double sg = d_.sign, g = p_.minimum_conductance_S;
     const S vbe = sg * (v[1] - v[2]), vce = sg * (v[0] - v[2]);
     S ib = g * vbe;
@@ -208,10 +220,17 @@ class PwlBjt final : public TerminalDevice<PwlBjt, 3> {
       const S sat = (vce - d_.sat_knee_V) / d_.sat_resistance_ohm;
       if (value_of(sat) > 0.0) ic = ic + (value_of(sat) < value_of(active) ? sat : active);
     }
-    if (d_.has_breakdown && value_of(vce) > d_.breakdown_knee_V) ic = ic + (vce - d_.breakdown_knee_V) / d_.breakdown_resistance_ohm;
+    S ibr(0.0);
+    if (d_.has_breakdown && value_of(vce) > d_.breakdown_knee_V) ibr = (vce - d_.breakdown_knee_V) / d_.breakdown_resistance_ohm;
+    if (!breakdown) ic = ic + ibr;
     i[0] = sg * ic;
     i[1] = sg * ib;
     i[2] = -(i[0] + i[1]);
+    if (breakdown) {
+      breakdown[0] = sg * ibr;
+      breakdown[1] = S(0.0);
+      breakdown[2] = -breakdown[0];
+    }
   }
   template <class S>
   void charges(const S*, S* q) const {

@@ -35,6 +35,9 @@ void check_diode_parameters(const std::string& owner, const DiodeParameters& p) 
   if (!std::isnan(p.knee_voltage_V)) require_finite(owner, "knee_voltage_V", p.knee_voltage_V);
   if (!std::isnan(p.on_resistance_ohm)) require_positive(owner, "on_resistance_ohm", p.on_resistance_ohm);
   require_positive(owner, "pwl_reference_current_A", p.pwl_reference_current_A);
+  if (!std::isnan(p.pwl_breakdown_reference_current_A)) {
+    require_positive(owner, "pwl_breakdown_reference_current_A", p.pwl_breakdown_reference_current_A);
+  }
   require_positive(owner, "critical_current_A", p.critical_current_A);
   require_positive(owner, "minimum_conductance_S", p.minimum_conductance_S);
 }
@@ -66,7 +69,8 @@ DiodeCurves derive_diode_curves(const DiodeParameters& p) {
                       (1.0 + p.breakdown_temperature_coefficient_per_K * (p.temperature_C - p.nominal_temperature_C));
     c.breakdown_voltage_V = bv;
     const BreakdownKnee k = make_breakdown_knee(bv, p.breakdown_test_current_A, p.breakdown_dynamic_resistance_ohm,
-                                                p.breakdown_knee_emission_coefficient, vt, p.critical_current_A);
+                                                p.breakdown_knee_emission_coefficient, vt, p.critical_current_A,
+                                                p.pwl_breakdown_reference_current_A);
     c.breakdown = k.branch;
     c.breakdown_resistance_ohm = k.pwl_resistance_ohm;
     c.breakdown_knee_V = k.pwl_knee_V;

@@ -50,6 +50,9 @@ struct DiodeParameters {
   double knee_voltage_V = std::numeric_limits<double>::quiet_NaN();
   double on_resistance_ohm = std::numeric_limits<double>::quiet_NaN();
   double pwl_reference_current_A = 0.1;
+  // pwl breakdown line: tangent of the physical breakdown curve at this current (NaN: at the test
+  // current). The driver builder sets it to the coil's current for parts that clamp the coil.
+  double pwl_breakdown_reference_current_A = std::numeric_limits<double>::quiet_NaN();
   // Numerical safeguards
   double critical_current_A = 1e3;
   double minimum_conductance_S = 1e-12;

@@ -1,11 +1,13 @@
 #include "coilkick/devices/junction.hpp"
 
 #include <algorithm>
+#include <cmath>
 
 namespace coilkick::devices {
 
 BreakdownKnee make_breakdown_knee(double breakdown_voltage_V, double test_current_A, double dynamic_resistance_ohm,
-                                  double knee_emission_coefficient, double thermal_voltage_V, double critical_current_A) {
+                                  double knee_emission_coefficient, double thermal_voltage_V, double critical_current_A,
+                                  double pwl_reference_current_A) {
   BreakdownKnee k;
   const double nvt = knee_emission_coefficient * thermal_voltage_V;
   k.branch.scale_current_A = test_current_A;
@@ -14,8 +16,13 @@ BreakdownKnee make_breakdown_knee(double breakdown_voltage_V, double test_curren
   k.branch.offset_V = breakdown_voltage_V - k.branch.series_resistance_ohm * test_current_A;
   k.branch.minus_one = 0.0;
   k.branch.x_crit = std::log(critical_current_A / test_current_A);
-  k.pwl_resistance_ohm = k.branch.series_resistance_ohm + nvt / test_current_A;
-  k.pwl_knee_V = breakdown_voltage_V - k.pwl_resistance_ohm * test_current_A;
+  // Tangent of the physical curve at the reference current (the test current if not given),
+  // kept below the critical current where the exponential is continued by its tangent anyway.
+  const double i_ref = std::min(std::isnan(pwl_reference_current_A) ? test_current_A : pwl_reference_current_A,
+                                0.5 * critical_current_A);
+  const double u_ref = k.branch.offset_V + nvt * std::log(i_ref / test_current_A) + k.branch.series_resistance_ohm * i_ref;
+  k.pwl_resistance_ohm = k.branch.series_resistance_ohm + nvt / i_ref;
+  k.pwl_knee_V = u_ref - k.pwl_resistance_ohm * i_ref;
   return k;
 }
 

@@ -112,15 +112,21 @@ struct ExpBranch {
 // Breakdown knee (Zener/TVS reverse, BJT collector–emitter, MOSFET drain avalanche): the branch
 // I = I_t·exp_lim((u_j − u_0)/(n_b·V_T)) behind R_b = r_dyn − n_b·V_T/I_t (at least 0), with u_0
 // placed so that the voltage at the test current I_t is the breakdown voltage and the slope there
-// is the dynamic resistance r_dyn; plus the straight line through the same point with that
-// slope for the pwl level.
+// is the dynamic resistance r_dyn; plus, for the pwl level, the tangent of that curve at a
+// reference current I_ref (where the two levels agree exactly; I_ref = I_t when not given).
+// Tangent at I_ref: u(I_ref) = u_0 + n_b·V_T·ln(I_ref/I_t) + R_b·I_ref, slope R_b + n_b·V_T/I_ref.
+// A line taken at the small test current would carry the knee's small-current slope n_b·V_T/I_t
+// (about 100 Ω at 250 µA) up to a coil's ampere, tens of volts above the physical clamp.
+// At a current x·I_ref the pwl line lies n_b·V_T·(x − 1 − ln x) above the physical curve: ≤ 0.31·n_b·V_T
+// for x in [1/2, 2] (derivation: docs/derivations.md, "pwl breakdown line").
 struct BreakdownKnee {
   ExpBranch branch;
   double pwl_knee_V = 0.0;          // where the pwl line crosses zero current
   double pwl_resistance_ohm = 0.0;  // its slope: the dynamic resistance at the test current
 };
 BreakdownKnee make_breakdown_knee(double breakdown_voltage_V, double test_current_A, double dynamic_resistance_ohm,
-                                  double knee_emission_coefficient, double thermal_voltage_V, double critical_current_A);
+                                  double knee_emission_coefficient, double thermal_voltage_V, double critical_current_A,
+                                  double pwl_reference_current_A);
 
 // Junction current I(u_j) of the branch.
 template <class S>

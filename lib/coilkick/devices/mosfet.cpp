@@ -31,6 +31,9 @@ void check_mosfet_parameters(const std::string& owner, const MosfetParameters& p
   if (!std::isnan(p.on_resistance_ohm)) require_positive(owner, "on_resistance_ohm", p.on_resistance_ohm);
   if (!std::isnan(p.pwl_transconductance_S)) require_positive(owner, "pwl_transconductance_S", p.pwl_transconductance_S);
   require_positive(owner, "pwl_gate_drive_V", p.pwl_gate_drive_V);
+  if (!std::isnan(p.pwl_breakdown_reference_current_A)) {
+    require_positive(owner, "pwl_breakdown_reference_current_A", p.pwl_breakdown_reference_current_A);
+  }
   if (!(p.pwl_gate_drive_V > p.threshold_voltage_V)) {
     require_open_range(owner, "pwl_gate_drive_V (above threshold_voltage_V)", p.pwl_gate_drive_V,
                        p.threshold_voltage_V, std::numeric_limits<double>::infinity());
@@ -55,7 +58,8 @@ MosfetDerived derive_mosfet(const MosfetParameters& p) {
   if (d.has_breakdown) {
     const BreakdownKnee k = make_breakdown_knee(p.drain_source_breakdown_voltage_V, p.breakdown_test_current_A,
                                                 p.breakdown_dynamic_resistance_ohm, p.breakdown_knee_emission_coefficient,
-                                                thermal_voltage_V(p.temperature_C), p.critical_current_A);
+                                                thermal_voltage_V(p.temperature_C), p.critical_current_A,
+                                                p.pwl_breakdown_reference_current_A);
     d.breakdown = k.branch;
     d.breakdown_resistance_ohm = k.pwl_resistance_ohm;
     d.breakdown_knee_V = k.pwl_knee_V;

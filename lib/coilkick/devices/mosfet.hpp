@@ -44,6 +44,9 @@ struct MosfetParameters {
   double on_resistance_ohm = std::numeric_limits<double>::quiet_NaN();
   double pwl_transconductance_S = std::numeric_limits<double>::quiet_NaN();
   double pwl_gate_drive_V = 5.0;
+  // pwl drain avalanche line: tangent of the physical curve at this current (NaN: at the test
+  // current). The driver builder sets it to the coil's current for the switch.
+  double pwl_breakdown_reference_current_A = std::numeric_limits<double>::quiet_NaN();
   double minimum_conductance_S = 1e-12;
   double critical_current_A = 1e3;
 };
@@ -77,19 +80,27 @@ class PhysicalMosfet final : public TerminalDevice<PhysicalMosfet, 3> {
   std::string kind() const override { return p_.polarity == Polarity::n ? "N-MOSFET (physical)" : "P-MOSFET (physical)"; }
   bool has_charges() const { return true; }
   const MosfetParameters& parameters() const { return p_; }
+  bool has_breakdown() const { return d_.has_breakdown; }
 
+  // breakdown: see TerminalDevice (the drain avalanche branch apart, when not null).
   template <class S>
-  void currents(const S* v, S* i) const {
+  void currents(const S* v, S* i, S* breakdown = nullptr) const {
     const double sg = d_.sign, g = p_.minimum_conductance_S;
     const S vgs = sg * (v[1] - v[2]), vds = sg * (v[0] - v[2]);
     S id = value_of(vds) >= 0.0 ? square_law_channel_A(vgs, vds, d_, p_.channel_length_modulation_per_V)
                                 : -square_law_channel_A(vgs - vds, -vds, d_, p_.channel_length_modulation_per_V);
     id = id - branch_current(-vds, d_.body_curves.forward) + g * vds;
-    if (d_.has_breakdown) id = id + branch_current(vds, d_.breakdown);
+    const S iav = d_.has_breakdown ? branch_current(vds, d_.breakdown) : S(0.0);
+    if (!breakdown) id = id + iav;
     const S ig = g * vgs;
     i[0] = sg * id;
     i[1] = sg * ig;
     i[2] = -(i[0] + i[1]);
+    if (breakdown) {
+      breakdown[0] = sg * iav;
+      breakdown[1] = S(0.0);
+      breakdown[2] = -breakdown[0];
+    }
   }
   template <class S>
   void charges(const S* v, S* q) const {
@@ -115,9 +126,11 @@ class PwlMosfet final : public TerminalDevice<PwlMosfet, 3> {
   std::string kind() const override { return p_.polarity == Polarity::n ? "N-MOSFET (pwl)" : "P-MOSFET (pwl)"; }
   bool has_charges() const { return p_.gate_source_capacitance_F > 0.0 || p_.gate_drain_capacitance_F > 0.0; }
   const MosfetDerived& segments() const { return d_; }
+  bool has_breakdown() const { return d_.has_breakdown; }
 
+  // breakdown: see TerminalDevice (the avalanche line apart, when not null).
   template <class S>
-  void currents(const S* v, S* i) const {
+  void currents(const S* v, S* i, S* breakdown = nullptr) const {
     const double sg = d_.sign, g = p_.minimum_conductance_S;
     const S vgs = sg * (v[1] - v[2]), vds = sg * (v[0] - v[2]);
     const bool forward = value_of(vds) >= 0.0;
@@ -131,10 +144,17 @@ class PwlMosfet final : public TerminalDevice<PwlMosfet, 3> {
     S id = (forward ? ich : -ich) + g * vds;
     const auto& b = d_.body_curves;
     if (-value_of(vds) > b.knee_voltage_V) id = id - (-vds - b.knee_voltage_V) / b.on_resistance_ohm;
-    if (d_.has_breakdown && value_of(vds) > d_.breakdown_knee_V) id = id + (vds - d_.breakdown_knee_V) / d_.breakdown_resistance_ohm;
+    S iav(0.0);
+    if (d_.has_breakdown && value_of(vds) > d_.breakdown_knee_V) iav = (vds - d_.breakdown_knee_V) / d_.breakdown_resistance_ohm;
+    if (!breakdown) id = id + iav;
     i[0] = sg * id;
     i[1] = sg * (g * vgs);
     i[2] = -(i[0] + i[1]);
+    if (breakdown) {
+      breakdown[0] = sg * iav;
+      breakdown[1] = S(0.0);
+      breakdown[2] = -breakdown[0];
+    }
   }
   template <class S>
   void charges(const S* v, S* q) const {

@@ -32,6 +32,7 @@ const std::vector<ParameterField<DiodeParameters>>& diode_fields() {
       FIELD(P, "knee_voltage", "V", knee_voltage_V),
       FIELD(P, "on_resistance", "ohm", on_resistance_ohm),
       FIELD(P, "pwl_reference_current", "A", pwl_reference_current_A),
+      FIELD(P, "pwl_breakdown_reference_current", "A", pwl_breakdown_reference_current_A),
       FIELD(P, "critical_current", "A", critical_current_A),
       FIELD(P, "minimum_conductance", "S", minimum_conductance_S),
   };
@@ -71,6 +72,7 @@ const std::vector<ParameterField<BjtParameters>>& bjt_fields() {
       FIELD(P, "saturation_knee_voltage", "V", saturation_knee_voltage_V),
       FIELD(P, "saturation_resistance", "ohm", saturation_resistance_ohm),
       FIELD(P, "pwl_reference_collector_current", "A", pwl_reference_collector_current_A),
+      FIELD(P, "pwl_breakdown_reference_current", "A", pwl_breakdown_reference_current_A),
       FIELD(P, "pwl_forced_beta", "1", pwl_forced_beta),
       FIELD(P, "critical_current", "A", critical_current_A),
       FIELD(P, "minimum_conductance", "S", minimum_conductance_S),
@@ -104,6 +106,7 @@ const std::vector<ParameterField<MosfetParameters>>& mosfet_fields() {
       FIELD(P, "on_resistance", "ohm", on_resistance_ohm),
       FIELD(P, "pwl_transconductance", "S", pwl_transconductance_S),
       FIELD(P, "pwl_gate_drive", "V", pwl_gate_drive_V),
+      FIELD(P, "pwl_breakdown_reference_current", "A", pwl_breakdown_reference_current_A),
       FIELD(P, "minimum_conductance", "S", minimum_conductance_S),
       FIELD(P, "critical_current", "A", critical_current_A),
   };
@@ -136,6 +139,7 @@ const std::vector<ParameterField<DarlingtonParameters>>& darlington_fields() {
              TFIELD("beta_temperature_exponent", "1", beta_temperature_exponent),
              TFIELD("temperature", "degC", temperature_C),
              TFIELD("pwl_reference_collector_current", "A", pwl_reference_collector_current_A),
+             TFIELD("pwl_breakdown_reference_current", "A", pwl_breakdown_reference_current_A),
              TFIELD("pwl_forced_beta", "1", pwl_forced_beta),
          }) {
       out.push_back(x);

@@ -6,6 +6,13 @@
 //   void currents(const S* v, S* i) const;  // static (resistive) current INTO each terminal, A
 //   void charges(const S* v, S* q) const;   // charge held at each terminal, C (sums to zero)
 // and optionally currents_and_charges(v, i, q) (q may be null) when the two share work.
+// A model with a breakdown branch (transistor avalanche) may also provide
+//   bool has_breakdown() const;
+// and take a last argument `S* breakdown` in currents (and currents_and_charges): when it is not
+// null the model leaves the breakdown branch's terminal currents out of i and writes them there.
+// The adapter then splits the heat into the channels "heat" (Σ v·i of everything else) and
+// "breakdown_heat" (Σ v·i of the branch), so a check can count avalanche energy alone; neither is
+// a difference of the other from the total, so both keep full precision.
 // from the terminal voltages v (V). The adapter differentiates them exactly (dual.hpp) into
 // conductances, capacitances and the capacitance slope the Jacobian needs; the heat is
 // Σ v_k·i_k (channel "heat") and the stored energy is ∫ v·dq along the straight path s·v from 0
@@ -28,34 +35,60 @@ struct has_currents_and_charges<Model, S, std::void_t<decltype(std::declval<cons
                                               std::declval<const S*>(), std::declval<S*>(), std::declval<S*>()))>>
     : std::true_type {};
 
+template <class Model, class = void>
+struct has_breakdown_split : std::false_type {};
+template <class Model>
+struct has_breakdown_split<Model, std::void_t<decltype(std::declval<const Model&>().has_breakdown())>> : std::true_type {};
+
 template <class Model, int N>
 class TerminalDevice : public engine::Element {
  public:
   using engine::Element::Element;
 
   std::vector<engine::PowerChannelSpec> power_channels() const override {
+    if (splits_breakdown()) {
+      return {{"heat", engine::PowerChannelSpec::Kind::dissipated}, {"breakdown_heat", engine::PowerChannelSpec::Kind::dissipated}};
+    }
     return {{"heat", engine::PowerChannelSpec::Kind::dissipated}};
   }
 
   void load(const engine::ElementContext& ctx, engine::Stamper& out) const override {
     using D = Dual<N>;
-    std::array<D, N> v, i, q;
+    std::array<D, N> v, i, q, ib;
     for (int k = 0; k < N; ++k) v[idx(k)] = D::variable(ctx.value(k), k);
     const bool with_charges = model().has_charges();
+    D* const breakdown = splits_breakdown() ? ib.data() : nullptr;
     if constexpr (has_currents_and_charges<Model, D>::value) {
-      model().currents_and_charges(v.data(), i.data(), with_charges ? q.data() : nullptr);
+      if constexpr (has_breakdown_split<Model>::value) {
+        model().currents_and_charges(v.data(), i.data(), with_charges ? q.data() : nullptr, breakdown);
+      } else {
+        model().currents_and_charges(v.data(), i.data(), with_charges ? q.data() : nullptr);
+      }
     } else {
-      model().currents(v.data(), i.data());
+      if constexpr (has_breakdown_split<Model>::value) {
+        model().currents(v.data(), i.data(), breakdown);
+      } else {
+        model().currents(v.data(), i.data());
+      }
       if (with_charges) model().charges(v.data(), q.data());
     }
-    D p(0.0);
+    D p(0.0), pb(0.0);
     for (int k = 0; k < N; ++k) {
-      out.add_flow(k, -i[idx(k)].v);
-      for (int j = 0; j < N; ++j) out.add_flow_slope(k, j, -i[idx(k)].g[idx(j)]);
+      D flow = i[idx(k)];
       p = p + v[idx(k)] * i[idx(k)];
+      if (breakdown) {
+        flow = flow + ib[idx(k)];
+        pb = pb + v[idx(k)] * ib[idx(k)];
+      }
+      out.add_flow(k, -flow.v);
+      for (int j = 0; j < N; ++j) out.add_flow_slope(k, j, -flow.g[idx(j)]);
     }
     out.add_power(0, p.v);
     for (int j = 0; j < N; ++j) out.add_power_slope(0, j, p.g[idx(j)]);
+    if (breakdown) {
+      out.add_power(1, pb.v);
+      for (int j = 0; j < N; ++j) out.add_power_slope(1, j, pb.g[idx(j)]);
+    }
     if (!with_charges) return;
     for (int k = 0; k < N; ++k) {
       for (int j = 0; j < N; ++j) out.add_mass(k, j, q[idx(k)].g[idx(j)]);
@@ -112,6 +145,10 @@ class TerminalDevice : public engine::Element {
 
  private:
   const Model& model() const { return static_cast<const Model&>(*this); }
+  bool splits_breakdown() const {
+    if constexpr (has_breakdown_split<Model>::value) return model().has_breakdown();
+    return false;
+  }
   static constexpr std::size_t idx(int k) { return static_cast<std::size_t>(k); }
 };
 

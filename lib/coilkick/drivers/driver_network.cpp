@@ -1,5 +1,6 @@
 #include "coilkick/drivers/driver_network.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <stdexcept>
 
@@ -24,6 +25,16 @@ struct Builder {
     if (!o.count("temperature")) o["temperature"] = s.analysis.device_temperature_C;
     return o;
   }
+  // A part that carries the coil's current in breakdown (the switch avalanching, a Zener or TVS
+  // clamping the coil): its pwl breakdown line is the tangent of the physical curve at the coil's
+  // on-state current (supply over hot winding resistance), so both model levels clamp at the same
+  // voltage there (devices/junction.hpp). An override of the key wins.
+  Overrides carrying_coil_current(Overrides o) const {
+    if (!o.count("pwl_breakdown_reference_current")) {
+      o["pwl_breakdown_reference_current"] = s.supply.voltage_V / coil_resistance_ohm(s.coil);
+    }
+    return with_temperature(o);
+  }
   const catalogue::PartRecord& part(const std::string& name, const char* field) const {
     try {
       return parts.part(name);
@@ -31,17 +42,31 @@ struct Builder {
       throw std::invalid_argument(std::string(field) + ": " + e.what());
     }
   }
-  // A diode-family part (diode, Zener, TVS) between anode and cathode.
+  // What each clamp part key accepts: a rectifier or signal diode where the part conducts forward;
+  // a Zener or a (unidirectional) TVS where it clamps in breakdown — the two are used for one
+  // another (common practice).
+  struct PartRole {
+    std::vector<std::string> families;
+    const char* needed;
+    bool carries_coil_current;  // in breakdown: see carrying_coil_current
+  };
+  static PartRole forward_diode() { return {{"diode"}, "a diode", false}; }
+  static PartRole breakdown_clamp(bool carries_coil_current) {
+    return {{"zener", "tvs"}, "a Zener or TVS", carries_coil_current};
+  }
+  // A diode-family part between anode and cathode, of the family its key asks for.
   void diode(const std::string& element, const std::string& part_name, const Overrides& o, const char* field,
-             const std::string& anode, const std::string& cathode) {
+             const std::string& anode, const std::string& cathode, const PartRole& role) {
     const auto& rec = part(part_name, field);
-    if (rec.family != "diode" && rec.family != "zener" && rec.family != "tvs") {
-      throw std::invalid_argument(std::string(field) + ": part '" + part_name + "' is a " + rec.family +
-                                  ", a diode, Zener or TVS is needed");
+    if (std::find(role.families.begin(), role.families.end(), rec.family) == role.families.end()) {
+      throw std::invalid_argument(std::string(field) + ": part '" + part_name + "' is a " + rec.family + "; " + role.needed +
+                                  " is needed here");
     }
-    out.network.add(devices::make_diode(element, anode, cathode, catalogue::diode_parameters(rec, with_temperature(o)), level()));
+    const Overrides with = role.carries_coil_current ? carrying_coil_current(o) : with_temperature(o);
+    out.network.add(devices::make_diode(element, anode, cathode, catalogue::diode_parameters(rec, with), level()));
     out.clamp_elements.push_back(element);
     out.clamp_parts.push_back(&rec);
+    out.clamp_part_elements.push_back(element);
   }
   void resistor(const std::string& element, const std::string& a, const std::string& b, double ohm, bool clamp) {
     out.network.add_resistor(element, a, b, ohm);
@@ -63,30 +88,30 @@ struct Builder {
     switch (sw.topology) {
       case Topology::low_side_npn:
         require({"npn"});
-        out.network.add(devices::make_bjt("switch", c, b, Network::ground, catalogue::bjt_parameters(rec, with_temperature(sw.overrides)), level()));
+        out.network.add(devices::make_bjt("switch", c, b, Network::ground, catalogue::bjt_parameters(rec, carrying_coil_current(sw.overrides)), level()));
         break;
       case Topology::low_side_nmos:
         require({"nmos"});
         out.mosfet = true;
-        out.network.add(devices::make_mosfet("switch", c, b, Network::ground, catalogue::mosfet_parameters(rec, with_temperature(sw.overrides)), level()));
+        out.network.add(devices::make_mosfet("switch", c, b, Network::ground, catalogue::mosfet_parameters(rec, carrying_coil_current(sw.overrides)), level()));
         break;
       case Topology::low_side_darlington: {
         require({"darlington_npn"});
         devices::add_darlington(out.network, "switch", c, b, Network::ground,
-                                catalogue::darlington_parameters(rec, with_temperature(sw.overrides)), level());
+                                catalogue::darlington_parameters(rec, carrying_coil_current(sw.overrides)), level());
         out.switch_elements = {"switch.input", "switch.output", "switch.input_resistor", "switch.output_resistor"};
         break;
       }
       case Topology::high_side_pnp:
         require({"pnp"});
         out.high_side = true;
-        out.network.add(devices::make_bjt("switch", c, b, "supply", catalogue::bjt_parameters(rec, with_temperature(sw.overrides)), level()));
+        out.network.add(devices::make_bjt("switch", c, b, "supply", catalogue::bjt_parameters(rec, carrying_coil_current(sw.overrides)), level()));
         break;
       case Topology::high_side_pmos:
         require({"pmos"});
         out.high_side = true;
         out.mosfet = true;
-        out.network.add(devices::make_mosfet("switch", c, b, "supply", catalogue::mosfet_parameters(rec, with_temperature(sw.overrides)), level()));
+        out.network.add(devices::make_mosfet("switch", c, b, "supply", catalogue::mosfet_parameters(rec, carrying_coil_current(sw.overrides)), level()));
         break;
     }
     if (out.switch_elements.empty()) out.switch_elements = {"switch"};
@@ -149,25 +174,25 @@ struct Builder {
         break;
       case ClampKind::diode:
         diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part",
-              across_coil_anode(sw, coil_far), across_coil_cathode(sw, coil_far));
+              across_coil_anode(sw, coil_far), across_coil_cathode(sw, coil_far), forward_diode());
         break;
       case ClampKind::diode_zener:
         // switched end -> diode -> clamp_mid -> Zener (reverse) -> far end (low side); mirrored high side.
         if (!out.high_side) {
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", sw, "clamp_mid");
-          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", coil_far, "clamp_mid");
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", sw, "clamp_mid", forward_diode());
+          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", coil_far, "clamp_mid", breakdown_clamp(true));
         } else {
-          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", "clamp_mid", coil_far);
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", sw);
+          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", "clamp_mid", coil_far, breakdown_clamp(true));
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", sw, forward_diode());
         }
         break;
       case ClampKind::diode_resistor:
         if (!out.high_side) {
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", sw, "clamp_mid");
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", sw, "clamp_mid", forward_diode());
           resistor("clamp_resistor", "clamp_mid", coil_far, cl.resistor_ohm, true);
         } else {
           resistor("clamp_resistor", coil_far, "clamp_mid", cl.resistor_ohm, true);
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", sw);
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", sw, forward_diode());
         }
         break;
       case ClampKind::rc_across_coil:
@@ -178,20 +203,20 @@ struct Builder {
         break;
       case ClampKind::tvs_across_switch:
         // Reverse-biased across the switch: cathode on the switch's positive end.
-        if (!out.high_side) diode("clamp_tvs", cl.tvs_part, cl.tvs_overrides, "clamp.tvs_part", Network::ground, sw);
-        else diode("clamp_tvs", cl.tvs_part, cl.tvs_overrides, "clamp.tvs_part", sw, "supply");
+        if (!out.high_side) diode("clamp_tvs", cl.tvs_part, cl.tvs_overrides, "clamp.tvs_part", Network::ground, sw, breakdown_clamp(true));
+        else diode("clamp_tvs", cl.tvs_part, cl.tvs_overrides, "clamp.tvs_part", sw, "supply", breakdown_clamp(true));
         break;
       case ClampKind::active_clamp:
         // Zener from the switched end to the control terminal, with a blocking diode so the
         // Zener never conducts forward in the on-state.
         if (!out.high_side) {
           diode("clamp_zener", cl.active_clamp_zener_part, cl.active_clamp_zener_overrides,
-                "clamp.active_clamp_zener_part", "clamp_mid", sw);
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", "base");
+                "clamp.active_clamp_zener_part", "clamp_mid", sw, breakdown_clamp(false));
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", "base", forward_diode());
         } else {
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "base", "clamp_mid");
+          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "base", "clamp_mid", forward_diode());
           diode("clamp_zener", cl.active_clamp_zener_part, cl.active_clamp_zener_overrides,
-                "clamp.active_clamp_zener_part", sw, "clamp_mid");
+                "clamp.active_clamp_zener_part", sw, "clamp_mid", breakdown_clamp(false));
         }
         break;
     }

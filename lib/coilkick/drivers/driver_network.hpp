@@ -31,6 +31,7 @@ struct BuiltDriver {
   std::string switch_control_terminal_element;  // element whose terminal 1 is the switch's base/gate
   const catalogue::PartRecord* switch_part = nullptr;
   std::vector<const catalogue::PartRecord*> clamp_parts;  // for the rating checks
+  std::vector<std::string> clamp_part_elements;           // the element of each of clamp_parts
   double coil_resistance_ohm = 0.0;
   // With the armature model: the calibration (the parameters at the data sheet's resistance)
   // and the element's parameters as built (hot winding resistance). Null/empty otherwise.

@@ -1,31 +1,24 @@
 #pragma once
-// The main job: one driver from its on-state through one switch-off.
-//  1. the DC operating point of the on-state is solved (not guessed);
-//  2. the logic output switches off at drive.switch_off_at_s over drive.fall_time_s;
-//  3. the transient runs until the coil's energy is spent (or analysis.stop_time_s);
-//  4. metrics (metrics.hpp) and rating checks (rating_checks.hpp) are computed.
+// The main job: one driver from its on-state through one switch-off, in stages that read top
+// to bottom, each in the file that owns it:
+//  1. on-state: the DC operating point with the drive high (on_state.hpp);
+//  2. off-state: the DC point the switch-off heads for, and whether it blocks the supply (off_state.hpp);
+//  3. transient: the drive's falling edge at drive.switch_off_at_s, events, stop rule (switch_off_transient.hpp);
+//  4. metrics and waveforms (switch_off_metrics.hpp);
+//  5. rating checks (switch_off_checks.hpp).
 // Every time metric is measured from the start of the drive's switch-off edge.
 #include <memory>
 #include <vector>
-
-#include <Eigen/Dense>
 
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/drivers/driver_network.hpp"
 #include "coilkick/drivers/driver_spec.hpp"
 #include "coilkick/drivers/metrics.hpp"
 #include "coilkick/drivers/rating_checks.hpp"
+#include "coilkick/drivers/switch_off_metrics.hpp"
 #include "coilkick/engine/transient_result.hpp"
 
 namespace coilkick::drivers {
-
-struct SwitchOffWaveforms {
-  Eigen::VectorXd time_s;            // accepted time points, from 0 (on-state) to the end
-  Eigen::VectorXd switch_voltage_V;  // across the switch (collector–emitter / drain–source magnitude)
-  Eigen::VectorXd coil_current_A;
-  Eigen::VectorXd clamp_current_A;   // through the first clamp part (0 if there is none)
-  Eigen::VectorXd armature_gap_m;    // armature model only (empty otherwise)
-};
 
 struct SwitchOffResult {
   DriverSpec spec;

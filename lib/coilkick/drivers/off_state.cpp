@@ -1,0 +1,45 @@
+#include "coilkick/drivers/off_state.hpp"
+
+#include <cmath>
+#include <sstream>
+
+#include "coilkick/drivers/si_format.hpp"
+#include "coilkick/relay/armature_operating_point.hpp"
+
+namespace coilkick::drivers {
+
+OffState solve_off_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, double on_coil_current_A) {
+  OffState s;
+  const double t = spec.drive.switch_off_at_s + spec.drive.fall_time_s;  // the drive has reached its low level
+  const auto off = relay::operating_point_with_armatures_open(b.network, c, t);
+  const double* x = off.values.data();
+  s.coil_current_A = x[c.state_index("coil.current")];
+  if (std::abs(s.coil_current_A) < kBlockingCurrentFraction * std::abs(on_coil_current_A)) return s;
+  s.blocks = false;
+  // Name the part that carries it: the switch or clamp element with the largest current.
+  engine::Workspace w = c.make_workspace();
+  std::string who;
+  double most = -1.0, across = 0.0;
+  std::vector<std::string> candidates = b.switch_elements;
+  candidates.insert(candidates.end(), b.clamp_elements.begin(), b.clamp_elements.end());
+  for (const auto& name : candidates) {
+    const int e = c.element_index(name);
+    const double i = std::abs(c.terminal_currents_A(e, t, x, w)[0]);
+    if (i > most) {
+      const auto& terms = b.network.element(name).terminals();
+      most = i;
+      who = name;
+      across = std::abs(c.node_voltage_V(terms[0], t, x) - c.node_voltage_V(terms[terms.size() > 2 ? 2 : 1], t, x));
+    }
+  }
+  std::ostringstream o;
+  o << "with the drive off the supply (" << format_si(spec.supply.voltage_V, "V") << ") still drives "
+    << format_si(std::abs(s.coil_current_A), "A") << " through the coil ("
+    << std::lround(100.0 * std::abs(s.coil_current_A / on_coil_current_A)) << " % of the on-state current)";
+  if (!who.empty()) o << "; '" << who << "' conducts " << format_si(most, "A") << " at " << format_si(across, "V");
+  o << ": the driver does not block the supply, so the coil never de-energises";
+  s.reason = o.str();
+  return s;
+}
+
+}  // namespace coilkick::drivers

@@ -1,0 +1,27 @@
+#pragma once
+// Stage 1 of a switch-off: the driver's on-state (drive high, DC operating point at t = 0, every
+// relay operated) and what a designer reads from it.
+#include "coilkick/drivers/driver_network.hpp"
+#include "coilkick/drivers/driver_spec.hpp"
+#include "coilkick/engine/circuit.hpp"
+#include "coilkick/engine/state.hpp"
+
+namespace coilkick::drivers {
+
+struct OnState {
+  engine::CircuitState state;
+  double coil_current_A = 0.0;
+  double switch_voltage_V = 0.0;      // across the switch (saturation / on-resistance drop)
+  double drive_current_A = 0.0;       // base current, or the gate path's current
+  double logic_pin_current_A = 0.0;   // what the logic output sources
+  double coil_voltage_V = 0.0;
+  double control_voltage_V = 0.0;     // |v_GS| or |v_BE| of the switch
+};
+
+// Voltage across the switch (positive when it blocks) at time t for states x.
+double switch_voltage_V(const BuiltDriver& b, const engine::Circuit& c, double t_s, const double* x);
+
+// Throws engine::SimulationError if the operating point cannot be solved.
+OnState solve_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c);
+
+}  // namespace coilkick::drivers

@@ -1,0 +1,210 @@
+#include "coilkick/drivers/switch_off_checks.hpp"
+
+#include <cmath>
+#include <sstream>
+
+#include "coilkick/drivers/si_format.hpp"
+
+namespace coilkick::drivers {
+namespace {
+
+const double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+// pass up to `pass_limit`, warn up to `fail_limit`, fail beyond (a NaN value fails).
+RatingCheck graded(const std::string& name, double value, double pass_limit, double fail_limit, const std::string& unit,
+                   const std::string& detail) {
+  RatingCheck c{name, CheckStatus::pass, value, pass_limit, unit, detail, fail_limit};
+  if (!(value <= fail_limit)) c.status = CheckStatus::fail;
+  else if (!(value <= pass_limit)) c.status = CheckStatus::warn;
+  return c;
+}
+
+std::string si(double v, const char* unit) { return format_si(v, unit, 4); }
+
+struct Checker {
+  const DriverSpec& spec;
+  const BuiltDriver& b;
+  const Metrics& m;
+  std::vector<RatingCheck> out;
+
+  double rating(const char* key) const { return b.switch_part->has_rating(key) ? b.switch_part->rating(key) : kNaN; }
+
+  void switch_ratings() {
+    const double rating_V = m.get("switch_voltage_rating_V");
+    const double derate = spec.analysis.switch_voltage_derating;
+    if (!std::isnan(rating_V)) {
+      out.push_back(graded("switch_voltage", m.get("switch_voltage_peak_V"), derate * rating_V, rating_V, "V",
+                           "peak switch voltage against " + std::to_string(std::lround(100 * derate)) + " % of the rating " +
+                               si(rating_V, "V") + " (common practice); fails above the rating itself"));
+    }
+    const double current = rating(b.mosfet ? "drain_current" : "collector_current");
+    if (!std::isnan(current)) {
+      out.push_back(graded("switch_current", m.get("coil_current_at_switch_off_A"), 0.8 * current, current, "A",
+                           "on-state current against 80 % of the switch's continuous rating " + si(current, "A") +
+                               "; fails above the rating"));
+    }
+  }
+
+  void clamp_ratings(const std::vector<double>& part_energy_J) {
+    const double i_pk = m.get("clamp_current_peak_A");
+    const double t_pulse = m.get("current_decay_time_10pct_s");
+    for (std::size_t k = 0; k < b.clamp_parts.size(); ++k) {
+      const auto* part = b.clamp_parts[k];
+      const double e = part_energy_J[k];
+      const std::string tag = ":" + part->name;
+      const bool breakdown_part = part->family == "zener" || part->family == "tvs";
+      if (!breakdown_part && part->has_rating("peak_forward_current")) {
+        const double lim = part->rating("peak_forward_current");
+        out.push_back(graded("clamp_peak_current" + tag, i_pk, 0.8 * lim, lim, "A",
+                             "clamp peak current against 80 % of the diode's peak forward current rating " + si(lim, "A")));
+      }
+      if (!std::isfinite(e)) continue;  // not measured: the off-state does not block
+      if (breakdown_part && part->has_rating("peak_pulse_power") && !std::isnan(t_pulse) && t_pulse > 0.0) {
+        const double lim = part->rating("peak_pulse_power");
+        out.push_back(graded("clamp_pulse_power" + tag, e / t_pulse, 0.8 * lim, lim, "W",
+                             "this part's energy over the decay time against 80 % of its peak pulse power " + si(lim, "W")));
+      }
+      if (part->has_rating("pulse_energy")) {
+        const double lim = part->rating("pulse_energy");
+        out.push_back(graded("clamp_energy" + tag, e, 0.8 * lim, lim, "J",
+                             "this part's energy per operation against 80 % of its pulse energy rating " + si(lim, "J")));
+      }
+      if (spec.drive.period_s > 0.0 && part->has_rating("power")) {
+        const double lim = part->rating("power");
+        out.push_back(graded("clamp_average_power" + tag, e / spec.drive.period_s, 0.8 * lim, lim, "W",
+                             "this part's energy per operation times the repetition rate against 80 % of its power rating " +
+                                 si(lim, "W")));
+      }
+    }
+  }
+
+  void drive_checks() {
+    const double pin = spec.analysis.logic_pin_current_limit_A;
+    out.push_back(graded("logic_pin_current", m.get("logic_pin_current_A"), 0.8 * pin, pin, "A",
+                         "logic output current against 80 % of the pin limit " + si(pin, "A")));
+    if (!b.mosfet) {
+      const double min_beta = rating("minimum_forward_beta");
+      if (!std::isnan(min_beta)) {
+        out.push_back(graded("drive_saturation", m.get("forced_beta"), 0.5 * min_beta, min_beta, "1",
+                             "forced gain I_C/I_B against half the minimum gain " + si(min_beta, "") +
+                                 " (drive at least twice as hard as the minimum gain needs: common practice); fails above the "
+                                 "minimum gain itself"));
+      }
+      const double sat_limit = spec.switch_.topology == Topology::low_side_darlington ? 1.5 : 0.5;
+      out.push_back(graded("switch_saturated", m.get("switch_saturation_voltage_V"), 0.6 * sat_limit, sat_limit, "V",
+                           "on-state switch voltage: a saturated switch drops about 0.1–0.3 V (a Darlington about 1 V); fails "
+                           "above " + si(sat_limit, "V")));
+      return;
+    }
+  }
+
+  void gate_checks(double v_gs_on) {
+    if (!b.mosfet) return;
+    const double vth = rating("maximum_threshold_voltage");
+    if (!std::isnan(vth)) {
+      RatingCheck g{"gate_drive", CheckStatus::pass, v_gs_on, vth + 2.0, "V",
+                    "on-state gate–source voltage at least the maximum threshold + 2 V (common practice for a fully on "
+                    "channel); fails below threshold + 1 V",
+                    vth + 1.0};
+      if (v_gs_on < vth + 1.0) g.status = CheckStatus::fail;
+      else if (v_gs_on < vth + 2.0) g.status = CheckStatus::warn;
+      out.push_back(g);
+    }
+    const double lim = rating("gate_source_voltage");
+    if (!std::isnan(lim)) {
+      out.push_back(graded("gate_voltage_rating", v_gs_on, 0.8 * lim, lim, "V",
+                           "on-state gate–source voltage against 80 % of its rating " + si(lim, "V")));
+    }
+  }
+
+  // Energy the switch dissipates in breakdown (its avalanche branch), never its other heat.
+  void breakdown_checks() {
+    const double e_bd = m.get("switch_breakdown_energy_J");
+    if (!std::isfinite(e_bd)) return;
+    if (b.mosfet) {
+      const double lim = rating("avalanche_energy");
+      if (!std::isnan(lim)) {
+        out.push_back(graded("switch_avalanche_energy", e_bd, 0.8 * lim, lim, "J",
+                             "energy the switch dissipates in avalanche (breakdown only) against 80 % of its single-pulse "
+                             "rating " + si(lim, "J")));
+      }
+      return;
+    }
+    const double i0 = m.get("coil_current_at_switch_off_A");
+    const double e0 = 0.5 * spec.coil.inductance_H * i0 * i0;
+    const double lim = 1e-3 * e0;
+    out.push_back({"switch_breakdown", e_bd > lim ? CheckStatus::warn : CheckStatus::pass, e_bd, lim, "J",
+                   "energy the bipolar switch dissipates in collector breakdown, a mode it is not rated for: warns above "
+                   "0.1 % of the coil's stored energy"});
+  }
+
+  void coil_checks(double i_rel, double r_coil) {
+    if (std::isnan(i_rel)) return;
+    const double i0 = m.get("coil_current_at_switch_off_A");
+    RatingCheck g{"coil_operates", i0 > i_rel ? CheckStatus::pass : CheckStatus::fail, i0, i_rel, "A",
+                  "on-state coil current against the release current"};
+    double i_op = spec.coil.operate_current_A;
+    if (std::isnan(i_op) && !std::isnan(spec.coil.operate_voltage_V)) i_op = spec.coil.operate_voltage_V / r_coil;
+    if (!(i0 > i_rel)) {
+      g.detail = "the on-state coil current is not above the release current (" + si(i_rel, "A") +
+                 "): the relay would not even hold";
+    } else if (!std::isnan(i_op)) {
+      g.limit = i_op;
+      g.detail = "on-state coil current against the operate current";
+      g.status = i0 >= i_op ? CheckStatus::pass : CheckStatus::fail;
+    }
+    out.push_back(g);
+  }
+
+  void relay_checks() {
+    if (!b.relay_calibration) return;
+    const double worst = b.relay_calibration->worst_relative_error();
+    out.push_back({"relay_calibration", worst <= 0.02 ? CheckStatus::pass : CheckStatus::warn, worst, 0.02, "1",
+                   "largest relative miss of the armature model's calibration targets (operate and release voltage and "
+                   "time, closed inductance); above 2 % the contact times are less trustworthy"});
+    if (b.armature && std::isnan(m.get("contact_open_time_s"))) {
+      out.push_back({"contact_opens", CheckStatus::fail, kNaN, kNaN, "s", "the make contact did not open within the simulated time"});
+    }
+  }
+
+  void run_checks(const OffState& off, bool decay_observed) {
+    const double i0 = m.get("coil_current_at_switch_off_A");
+    const double blocking = kBlockingCurrentFraction * std::abs(i0);
+    out.push_back({"off_state_blocks", off.blocks ? CheckStatus::pass : CheckStatus::fail, std::abs(off.coil_current_A),
+                   blocking, "A",
+                   off.blocks ? "coil current with the drive off (DC) against 1 % of the on-state current: the driver blocks "
+                                "the supply"
+                              : off.reason});
+    if (!off.blocks) return;  // nothing of the energy account is measured (switch_off_metrics.hpp)
+    const double eb = m.get("energy_balance_error");
+    RatingCheck acc{"accuracy", eb <= spec.analysis.energy_balance_limit ? CheckStatus::pass : CheckStatus::fail, eb,
+                    spec.analysis.energy_balance_limit, "1",
+                    "relative energy-balance error of the switch-off run; above the limit the run is inaccurate"};
+    if (!decay_observed) {
+      acc.status = CheckStatus::fail;
+      acc.detail = "the run ended before the coil current was seen to fall below 10 % of its on-state value" +
+                   std::string(std::isnan(release_current_A(spec.coil)) ? "" : " and below the release current") +
+                   (spec.relay.armature_model ? " with the contact open" : "") +
+                   ": release and decay times are unknown (give a later analysis.stop_time, or leave it automatic)";
+    }
+    out.push_back(acc);
+  }
+};
+
+}  // namespace
+
+std::vector<RatingCheck> switch_off_checks(const DriverSpec& spec, const BuiltDriver& b, const SwitchOffMeasures& measures,
+                                           const OffState& off, bool decay_observed, double gate_source_on_V) {
+  Checker k{spec, b, measures.metrics, {}};
+  k.switch_ratings();
+  k.clamp_ratings(measures.clamp_part_energy_J);
+  k.drive_checks();
+  k.gate_checks(gate_source_on_V);
+  k.breakdown_checks();
+  k.coil_checks(release_current_A(spec.coil), b.coil_resistance_ohm);
+  k.relay_checks();
+  k.run_checks(off, decay_observed);
+  return k.out;
+}
+
+}  // namespace coilkick::drivers

@@ -1,0 +1,171 @@
+#include "coilkick/drivers/switch_off_metrics.hpp"
+
+#include <cmath>
+#include <functional>
+#include <limits>
+
+#include "coilkick/drivers/switch_on.hpp"
+
+namespace coilkick::drivers {
+namespace {
+
+const double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+// Heat of the given elements' dissipated channels (all of them, or only the named channel)
+// between two states of the run.
+double heat_between(const engine::TransientResult& r, const Eigen::VectorXd& x0, const Eigen::VectorXd& x1,
+                    const std::vector<std::string>& elements, const std::string& only_channel = "") {
+  const auto& c = r.circuit();
+  double e = 0.0;
+  for (std::size_t k = 0; k < c.power_channels().size(); ++k) {
+    const auto& ch = c.power_channels()[k];
+    if (ch.kind != engine::PowerChannelSpec::Kind::dissipated) continue;
+    if (!only_channel.empty() && ch.name != only_channel) continue;
+    for (const auto& el : elements) {
+      if (ch.element == el) {
+        const auto i = static_cast<Eigen::Index>(c.circuit_state_count()) + static_cast<Eigen::Index>(k);
+        e += x1[i] - x0[i];
+      }
+    }
+  }
+  return e;
+}
+
+// Relative error of the energy account over the switch-off window:
+// supplied + stored(t_off) = dissipated + stored(end).
+double energy_balance_error(const engine::TransientResult& r, double t_off, const Eigen::VectorXd& x_off,
+                            const Eigen::VectorXd& x_end) {
+  const auto& c = r.circuit();
+  engine::Workspace w = c.make_workspace();
+  double supplied = 0.0, dissipated = 0.0;
+  for (std::size_t k = 0; k < c.power_channels().size(); ++k) {
+    const auto i = static_cast<Eigen::Index>(c.circuit_state_count()) + static_cast<Eigen::Index>(k);
+    const double d = x_end[i] - x_off[i];
+    (c.power_channels()[k].kind == engine::PowerChannelSpec::Kind::supplied ? supplied : dissipated) += d;
+  }
+  const double in = supplied + c.stored_energy_J(-1, t_off, x_off.data(), w);
+  const double out = dissipated + c.stored_energy_J(-1, r.end_time_s(), x_end.data(), w);
+  return std::abs(in - out) / std::max(std::abs(in), std::abs(out));
+}
+
+// First time after `after_s` where f − level changes sign in the given direction, located on
+// the stored waveform (Hermite interpolation of the accepted points, then bisection).
+double crossing_after(const engine::TransientResult& r, const std::function<double(double, const double*)>& f,
+                      double level, double after_s, bool rising) {
+  const auto& t = r.times_s();
+  for (std::size_t k = 1; k < t.size(); ++k) {
+    if (t[k] <= after_s) continue;
+    const double a = std::max(t[k - 1], after_s), b = t[k];
+    const Eigen::VectorXd xa = r.sample(a), xb = r.sample(b);
+    const double ga = f(a, xa.data()) - level, gb = f(b, xb.data()) - level;
+    const bool hit = rising ? (ga < 0.0 && gb >= 0.0) : (ga > 0.0 && gb <= 0.0);
+    if (!hit) continue;
+    double lo = a, hi = b, glo = ga;
+    for (int it = 0; it < 100 && hi - lo > 1e-15 * std::max(1.0, std::abs(hi)); ++it) {
+      const double m = 0.5 * (lo + hi);
+      const Eigen::VectorXd xm = r.sample(m);
+      const double gm = f(m, xm.data()) - level;
+      if ((gm > 0.0) == (glo > 0.0)) {
+        lo = m;
+        glo = gm;
+      } else {
+        hi = m;
+      }
+    }
+    return hi;
+  }
+  return kNaN;
+}
+
+}  // namespace
+
+SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& b, const OnState& on, const OffState& off,
+                                     const engine::TransientResult& r) {
+  const auto& c = r.circuit();
+  const double vs = spec.supply.voltage_V;
+  const double t_off = spec.drive.switch_off_at_s;
+  const double i0 = on.coil_current_A;
+  const double i_rel = release_current_A(spec.coil);
+  SwitchOffMeasures out;
+  Metrics& m = out.metrics;
+  auto since_off = [&](const engine::EventOutcome& e) { return e.time_s ? *e.time_s - t_off : kNaN; };
+  auto vsw = [&b, &c](double t, const double* x) { return switch_voltage_V(b, c, t, x); };
+
+  m.set("coil_current_at_switch_off_A", i0);
+  m.set("drive_current_A", on.drive_current_A);
+  m.set("forced_beta", b.mosfet ? kNaN : i0 / on.drive_current_A);
+  m.set("switch_saturation_voltage_V", on.switch_voltage_V);
+  m.set("coil_voltage_on_V", on.coil_voltage_V);
+  m.set("logic_pin_current_A", on.logic_pin_current_A);
+
+  const auto& peak = r.event("peak");
+  m.set("switch_voltage_peak_V", peak.value);
+  m.set("switch_voltage_peak_time_s", since_off(peak));
+  const char* rating_key = b.mosfet ? "drain_source_voltage" : "collector_emitter_voltage";
+  const double rating = b.switch_part->has_rating(rating_key) ? b.switch_part->rating(rating_key) : kNaN;
+  m.set("switch_voltage_rating_V", rating);
+  m.set("switch_voltage_margin", peak.value / rating);
+  m.set("clamp_current_peak_A", b.clamp_current_element.empty() ? kNaN : r.event("clamp_peak").value);
+
+  // Energies over the switch-off: only where the off-state blocks (see the header).
+  const Eigen::VectorXd x_off = r.sample(t_off);
+  const Eigen::VectorXd x_end = r.states().row(r.states().rows() - 1).transpose();
+  auto energy = [&](const std::vector<std::string>& elements, const std::string& channel = "") {
+    return off.blocks ? heat_between(r, x_off, x_end, elements, channel) : kNaN;
+  };
+  const double e_clamp = b.clamp_elements.empty() ? 0.0 : energy(b.clamp_elements);
+  m.set("clamp_energy_J", e_clamp);
+  m.set("coil_resistance_energy_J", energy({"coil"}));
+  m.set("switch_energy_J", energy(b.switch_elements));
+  m.set("switch_breakdown_energy_J", energy(b.switch_elements, "breakdown_heat"));
+  m.set("energy_balance_error", off.blocks ? energy_balance_error(r, t_off, x_off, x_end) : kNaN);
+  for (const auto& element : b.clamp_part_elements) out.clamp_part_energy_J.push_back(energy({element}));
+
+  m.set("release_time_s", std::isnan(i_rel) ? kNaN : since_off(r.event("release")));
+  m.set("current_decay_time_10pct_s", since_off(r.event("decay10")));
+  m.set("switch_off_delay_s", since_off(r.event("off_delay")));
+  {
+    // Ringing: after the peak, v_sw − V_s falls through zero and comes back up half a period later.
+    double f = kNaN;
+    if (peak.time_s) {
+      const double t1 = crossing_after(r, vsw, vs, *peak.time_s, false);
+      const double t2 = std::isnan(t1) ? kNaN : crossing_after(r, vsw, vs, t1, true);
+      if (!std::isnan(t2)) f = 1.0 / (2.0 * (t2 - t1));
+    }
+    m.set("ringing_frequency_Hz", f);
+  }
+  m.set("clamp_average_power_W", spec.drive.period_s > 0.0 ? e_clamp / spec.drive.period_s : kNaN);
+  {
+    // Contact opening (armature model): time from the switch-off edge, armature speed there.
+    double t_open = kNaN, speed = kNaN, t_operate = kNaN;
+    if (b.armature) {
+      const auto& e = r.event("contact_open");
+      if (e.time_s) {
+        t_open = *e.time_s - t_off;
+        speed = r.sample(*e.time_s)[c.state_index("coil.velocity")];
+      }
+      t_operate = simulate_operate_time_s(spec, b);
+    }
+    m.set("contact_open_time_s", t_open);
+    m.set("armature_speed_at_contact_open_m_per_s", speed);
+    m.set("operate_time_s", t_operate);
+  }
+  return out;
+}
+
+SwitchOffWaveforms switch_off_waveforms(const BuiltDriver& b, const engine::TransientResult& r) {
+  const auto& c = r.circuit();
+  const auto n = static_cast<Eigen::Index>(r.times_s().size());
+  SwitchOffWaveforms wf;
+  wf.time_s = Eigen::Map<const Eigen::VectorXd>(r.times_s().data(), n);
+  wf.switch_voltage_V.resize(n);
+  for (Eigen::Index k = 0; k < n; ++k) {
+    wf.switch_voltage_V[k] = switch_voltage_V(b, c, r.times_s()[static_cast<std::size_t>(k)], r.states().row(k).data());
+  }
+  wf.coil_current_A = r.state("coil.current");
+  if (b.armature) wf.armature_gap_m = r.state("coil.gap");
+  wf.clamp_current_A = b.clamp_current_element.empty() ? Eigen::VectorXd::Zero(n) : r.element_current_A(b.clamp_current_element, 0);
+  return wf;
+}
+
+}  // namespace coilkick::drivers
