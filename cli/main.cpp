@@ -76,6 +76,14 @@ int main(int argc, char** argv) {
     return app.exit(e);
   } catch (const CLI::CallForAllHelp& e) {
     return app.exit(e);
+  } catch (const CLI::RequiredError& e) {
+    if (app.get_subcommands().empty() && argc > 1 && argv[1][0] != '-') {
+      std::cerr << "coilkick: unknown command '" << argv[1] << "'; the commands are run, compare, sweep, tolerance, suggest, "
+                   "faults, demo (coilkick --help)\n";
+      return 2;
+    }
+    app.exit(e);
+    return 2;  // bad input
   } catch (const CLI::ParseError& e) {
     app.exit(e);
     return 2;  // bad input

@@ -112,9 +112,6 @@ TEST_CASE("bad driver descriptions name the field") {
   s.coil.inductance_H = -1.0;
   CHECK_THROWS_WITH_AS(simulate_switch_off(s, test_support::catalogue()), doctest::Contains("coil: inductance_H"), std::invalid_argument);
   s = test_support::relay_case(false);
-  s.coil.release_current_A = 0.05;  // above the 30 mA on-state current
-  CHECK_THROWS_WITH_AS(simulate_switch_off(s, test_support::catalogue()), doctest::Contains("release current"), std::invalid_argument);
-  s = test_support::relay_case(false);
   s.switch_.part = "nmos_logic_level_60v";  // on an NPN topology
   CHECK_THROWS_WITH_AS(simulate_switch_off(s, test_support::catalogue()), doctest::Contains("does not fit topology low_side_npn"),
                        std::invalid_argument);

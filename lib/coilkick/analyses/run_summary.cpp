@@ -2,6 +2,7 @@
 
 #include "coilkick/drivers/switch_off.hpp"
 #include "coilkick/engine/errors.hpp"
+#include "coilkick/scenario/scenario.hpp"
 
 namespace coilkick::analyses {
 
@@ -15,7 +16,8 @@ RunSummary summarize_run(const drivers::DriverSpec& spec, const catalogue::Catal
   } catch (const engine::SimulationError& e) {
     s.error = std::string("simulation failed: ") + e.what();
   } catch (const std::invalid_argument& e) {
-    s.error = std::string("invalid at this point: ") + e.what();
+    s.error = std::string("invalid at this point: ") + scenario::with_file_keys(e.what());
+    s.invalid_input = true;
   }
   return s;
 }

@@ -17,6 +17,7 @@ struct RunSummary {
   std::vector<drivers::RatingCheck> checks;
   drivers::CheckStatus status = drivers::CheckStatus::pass;
   std::string error;  // non-empty: the run failed (bad value at this point, or solver failure)
+  bool invalid_input = false;  // the error is a bad value at this point (not a solver failure)
   bool ok() const { return error.empty(); }
 };
 

@@ -101,6 +101,7 @@ std::vector<SweepPoint> run_sweep(const scenario::Scenario& s, const std::vector
       for (std::size_t k = 0; k < axes.size(); ++k) scenario::set_numeric_key(si, axes[k].key, p.values[k], parts);
     } catch (const std::invalid_argument& e) {
       p.run.error = std::string("invalid at this point: ") + e.what();
+      p.run.invalid_input = true;
       return;
     }
     p.run = summarize_run(si.driver, parts);

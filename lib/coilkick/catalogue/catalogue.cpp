@@ -230,9 +230,17 @@ void Catalogue::load_directory(const std::string& models_dir) {
   for (const char* sub : {"parts", "coils"}) {
     const fs::path dir = fs::path(models_dir) / sub;
     if (!fs::is_directory(dir)) continue;
-    for (const auto& e : fs::recursive_directory_iterator(dir)) {
-      if (e.is_regular_file() && e.path().extension() == ".toml") files.push_back(e.path().string());
+    std::error_code ec;
+    fs::recursive_directory_iterator it(dir, ec), end;
+    if (ec) throw CatalogueError(dir.string() + ": cannot read the models directory: " + ec.message());
+    for (; it != end; it.increment(ec)) {
+      if (ec) throw CatalogueError(dir.string() + ": cannot read the models directory: " + ec.message());
+      // A broken or looping symbolic link is named, not an internal error.
+      const bool regular = it->is_regular_file(ec);
+      if (ec) throw CatalogueError(it->path().string() + ": cannot read this models file: " + ec.message());
+      if (regular && it->path().extension() == ".toml") files.push_back(it->path().string());
     }
+    if (ec) throw CatalogueError(dir.string() + ": cannot read the models directory: " + ec.message());
   }
   std::sort(files.begin(), files.end());  // deterministic order (and duplicate reports)
   for (const auto& f : files) load_file(f);

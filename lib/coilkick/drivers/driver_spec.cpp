@@ -117,13 +117,9 @@ void check_driver_spec(const DriverSpec& s) {
   at_most("clamp", "snubber_capacitance_F", s.clamp.snubber_capacitance_F, 1.0);
   at_most("drive", "switch_off_at_s", s.drive.switch_off_at_s, 100.0);
   at_most("analysis", "stop_time_s", s.analysis.stop_time_s, 1000.0);
-  const double i_full = s.supply.voltage_V / coil_resistance_ohm(s.coil);
-  const double i_rel = release_current_A(s.coil);
-  if (!std::isnan(i_rel) && !(i_rel < i_full)) {
-    throw std::invalid_argument("coil: the release current (" + std::to_string(i_rel) +
-                                " A) must be below the on-state current supply/resistance (" +
-                                std::to_string(i_full) + " A)");
-  }
+  // A release threshold at or above the on-state current is not an input error: the run's
+  // coil_operates check compares it with the solved on-state current (supply/resistance would
+  // ignore the switch's drop).
   if (s.clamp.kind == ClampKind::diode_resistor) require_positive("clamp", "resistor_ohm", s.clamp.resistor_ohm);
   if (s.clamp.kind == ClampKind::rc_across_coil || s.clamp.kind == ClampKind::rc_across_switch ||
       s.clamp.add_rc_snubber_across_coil) {
@@ -139,7 +135,7 @@ void check_driver_spec(const DriverSpec& s) {
   engine::require_open_range("analysis", "device_temperature_C", s.analysis.device_temperature_C, -60.0, 250.0);
   require_non_negative("analysis", "stop_time_s", s.analysis.stop_time_s);
   if (s.analysis.stop_time_s > 0.0 && !(s.analysis.stop_time_s > s.drive.switch_off_at_s + s.drive.fall_time_s)) {
-    throw std::invalid_argument("analysis: stop_time_s must be after the switch-off edge (drive.switch_off_at_s + fall_time_s)");
+    throw std::invalid_argument("analysis: stop_time_s must be after the end of the drive's switch-off edge");
   }
   engine::require_open_range("analysis", "relative_tolerance", s.analysis.relative_tolerance, 0.0, 0.1);
   require_positive("analysis", "voltage_tolerance_V", s.analysis.voltage_tolerance_V);
@@ -177,21 +173,22 @@ RelaySpec relay_spec_from_part(const catalogue::PartRecord& coil) {
 
 relay::RelayDatasheet relay_datasheet(const DriverSpec& s) {
   const auto& r = s.relay;
-  auto pick = [](double own, double fallback, const char* field, const char* from) {
+  // Messages name the scenario keys that supply each value.
+  auto pick = [](double own, double fallback, const char* keys) {
     const double v = std::isnan(own) ? fallback : own;
     if (std::isnan(v)) {
-      throw std::invalid_argument(std::string("relay: ") + field + " is needed by the armature model (give it, or " + from + ")");
+      throw std::invalid_argument(std::string("relay: the armature model needs ") + keys + " (give it, or a coil.part that has it)");
     }
     return v;
   };
   relay::RelayDatasheet d;
-  d.nominal_voltage_V = pick(r.nominal_voltage_V, s.supply.voltage_V, "nominal_voltage_V", "supply.voltage_V");
-  d.coil_resistance_ohm = pick(r.resistance_at_20C_ohm, s.coil.resistance_at_20C_ohm, "resistance_at_20C_ohm", "coil.resistance_at_20C_ohm");
-  d.closed_inductance_H = pick(r.closed_inductance_H, s.coil.inductance_H, "closed_inductance_H", "coil.inductance_H");
-  d.operate_voltage_V = pick(r.operate_voltage_V, s.coil.operate_voltage_V, "operate_voltage_V", "coil.operate_voltage_V");
-  d.release_voltage_V = pick(r.release_voltage_V, s.coil.release_voltage_V, "release_voltage_V", "coil.release_voltage_V");
-  d.operate_time_s = pick(r.operate_time_s, std::nan(""), "operate_time_s", "a coil part with operate_time");
-  d.release_time_s = pick(r.release_time_s, std::nan(""), "release_time_s", "a coil part with release_time");
+  d.nominal_voltage_V = pick(r.nominal_voltage_V, s.supply.voltage_V, "relay.nominal_voltage");
+  d.coil_resistance_ohm = pick(r.resistance_at_20C_ohm, s.coil.resistance_at_20C_ohm, "coil.resistance");
+  d.closed_inductance_H = pick(r.closed_inductance_H, s.coil.inductance_H, "coil.inductance");
+  d.operate_voltage_V = pick(r.operate_voltage_V, s.coil.operate_voltage_V, "coil.operate_voltage");
+  d.release_voltage_V = pick(r.release_voltage_V, s.coil.release_voltage_V, "coil.release_voltage");
+  d.operate_time_s = pick(r.operate_time_s, std::nan(""), "relay.operate_time");
+  d.release_time_s = pick(r.release_time_s, std::nan(""), "relay.release_time");
   d.contact_gap_m = r.contact_gap_m;
   d.over_travel_m = r.over_travel_m;
   d.core_loss_resistance_ohm = s.coil.core_loss_resistance_ohm;

@@ -20,7 +20,7 @@ double heat_between(const engine::TransientResult& r, const Eigen::VectorXd& x0,
   for (std::size_t k = 0; k < c.power_channels().size(); ++k) {
     const auto& ch = c.power_channels()[k];
     if (ch.kind != engine::PowerChannelSpec::Kind::dissipated) continue;
-    if (!only_channel.empty() && ch.name != only_channel) continue;
+    if (!only_channel.empty() && ch.name != ch.element + "." + only_channel) continue;
     for (const auto& el : elements) {
       if (ch.element == el) {
         const auto i = static_cast<Eigen::Index>(c.circuit_state_count()) + static_cast<Eigen::Index>(k);

@@ -1,7 +1,10 @@
 #include "coilkick/scenario/scenario.hpp"
 
 #include <algorithm>
+#include <cctype>
 #include <cmath>
+#include <limits>
+#include <filesystem>
 #include <fstream>
 #include <functional>
 #include <set>
@@ -216,6 +219,7 @@ class Reader {
       read_table(key, *v.as_table());
     }
     for (const auto& [prefix, node] : pending_overrides_) read_overrides(prefix, *node);
+    resolve_thresholds();
     require_keys(doc);
     check_ranges();
     if (s_.driver.relay.armature_model) drivers::freeze_relay_datasheet(s_.driver);
@@ -352,6 +356,35 @@ class Reader {
     }
   }
 
+  // A coil part gives its release and operate thresholds as voltages; a threshold key in the file,
+  // in either form, replaces the part's. The part's voltages stay the armature model's data-sheet
+  // values (relay.*), which the calibration needs whatever threshold the file chooses.
+  void resolve_thresholds() {
+    auto& coil = s_.driver.coil;
+    auto& relay = s_.driver.relay;
+    struct Pair {
+      const char* current_key;
+      const char* voltage_key;
+      double& current;
+      double& voltage;
+      double& datasheet_voltage;
+    };
+    for (const Pair& p : {Pair{"coil.release_current", "coil.release_voltage", coil.release_current_A, coil.release_voltage_V,
+                               relay.release_voltage_V},
+                          Pair{"coil.operate_current", "coil.operate_voltage", coil.operate_current_A, coil.operate_voltage_V,
+                               relay.operate_voltage_V}}) {
+      const bool current = seen_.count(p.current_key) > 0, voltage = seen_.count(p.voltage_key) > 0;
+      if (current && voltage) {
+        fail(at(p.current_key), p.current_key, std::string("give ") + p.current_key + " or " + p.voltage_key + ", not both");
+      }
+      if (current && !std::isnan(p.voltage)) {
+        if (std::isnan(p.datasheet_voltage)) p.datasheet_voltage = p.voltage;
+        p.voltage = std::numeric_limits<double>::quiet_NaN();
+      }
+      if (voltage) p.current = std::numeric_limits<double>::quiet_NaN();
+    }
+  }
+
   void require(const std::string& key, const std::string& why = "") {
     if (!seen_.count(key)) fail(at(key), key, "is required" + (why.empty() ? "" : " " + why));
   }
@@ -470,12 +503,55 @@ class Reader {
       }
       if (key.empty() && msg.find("override") != std::string::npos) key = "switch.overrides";
       const SourceLocation loc = key.empty() ? SourceLocation{file_, 1, 1} : at(key);
-      throw ScenarioError(loc.str() + ": " + (key.empty() ? "" : "key '" + key + "': ") + msg);
+      throw ScenarioError(loc.str() + ": " + (key.empty() ? "" : "key '" + key + "': ") + with_file_keys(msg));
     }
   }
 };
 
 }  // namespace
+
+std::string with_file_keys(const std::string& message) {
+  // Rows whose field is named in the message, longest field first ("resistance_at_20C_ohm"
+  // before "resistance_ohm"), each word-bounded.
+  const auto colon = message.find(": ");
+  if (colon == std::string::npos) return message;
+  const std::string section = message.substr(0, colon);
+  std::vector<std::pair<std::string, std::string>> fields;  // field -> key
+  for (const auto& n : numeric_table()) {
+    const std::string f = n.spec_field;
+    if (f.rfind(section + ": ", 0) == 0) fields.emplace_back(f.substr(section.size() + 2), n.key);
+  }
+  // The armature calibration names its data-sheet values (relay/relay_calibration.hpp).
+  if (section == "relay") {
+    for (const auto& [field, key] : std::vector<std::pair<std::string, std::string>>{
+             {"operate_voltage_V", "coil.operate_voltage"}, {"release_voltage_V", "coil.release_voltage"},
+             {"closed_inductance_H", "coil.inductance"}, {"coil_resistance_ohm", "coil.resistance"},
+             {"core_loss_resistance_ohm", "coil.core_loss_resistance"}}) {
+      fields.emplace_back(field, key);
+    }
+  }
+  if (fields.empty()) return message;
+  std::sort(fields.begin(), fields.end(), [](const auto& a, const auto& b) { return a.first.size() > b.first.size(); });
+  std::string text = message.substr(colon + 2);
+  auto word = [](char c) { return std::isalnum(static_cast<unsigned char>(c)) || c == '_' || c == '.'; };
+  std::string out;
+  for (std::size_t i = 0; i < text.size();) {
+    bool replaced = false;
+    if (i == 0 || !word(text[i - 1])) {
+      for (const auto& [field, key] : fields) {
+        const std::size_t end = i + field.size();
+        if (text.compare(i, field.size(), field) == 0 && (end == text.size() || !word(text[end]))) {
+          out += key;
+          i = end;
+          replaced = true;
+          break;
+        }
+      }
+    }
+    if (!replaced) out += text[i++];
+  }
+  return out == text ? message : out;
+}
 
 Scenario read_scenario_text(const std::string& text, const std::string& name, const catalogue::Catalogue& parts) {
   toml::table doc;
@@ -489,6 +565,10 @@ Scenario read_scenario_text(const std::string& text, const std::string& name, co
 }
 
 Scenario read_scenario_file(const std::string& path, const catalogue::Catalogue& parts) {
+  std::error_code ec;
+  if (std::filesystem::is_directory(path, ec)) {
+    throw ScenarioError(path + ":1:1: is a directory, not a scenario file (give a .toml file, e.g. models/scenarios/greenhouse_valve.toml)");
+  }
   std::ifstream in(path, std::ios::binary);
   if (!in) throw ScenarioError(path + ":1:1: cannot open the scenario file for reading");
   std::ostringstream text;

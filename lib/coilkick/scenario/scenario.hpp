@@ -54,6 +54,10 @@ Scenario read_scenario_text(const std::string& text, const std::string& name, co
 void set_numeric_key(Scenario& s, const std::string& key, double value, const catalogue::Catalogue& parts);
 
 // The clamp kinds whose parts and values the scenario gives (and `none`), for comparisons.
+// A message of the driver checks in the file's words: "coil: inductance_H must be > 0" becomes
+// "coil.inductance must be > 0" (fields with a scenario key; others are left as they are).
+std::string with_file_keys(const std::string& message);
+
 std::vector<drivers::ClampKind> applicable_clamp_kinds(const Scenario& s);
 
 // Every numeric key with its SI unit symbol, for --help and the README.
