@@ -149,6 +149,17 @@ TEST_CASE("overrides change one parameter, and an unknown override key is refuse
                        std::invalid_argument);
 }
 
+TEST_CASE("a looping symbolic link in a models directory is a catalogue error naming it") {
+  namespace fs = std::filesystem;
+  const fs::path dir = fs::temp_directory_path() / "coilkick_loop_models";
+  fs::remove_all(dir);
+  fs::create_directories(dir / "parts");
+  fs::create_symlink("me.toml", dir / "parts" / "me.toml");  // points at itself
+  Catalogue c;
+  CHECK_THROWS_WITH_AS(c.load_directory(dir.string()), doctest::Contains("me.toml: cannot read this models file"), CatalogueError);
+  fs::remove_all(dir);
+}
+
 TEST_CASE("malformed part files are reported with file, line and column") {
   const std::string ok_entry = R"(emission_coefficient = { value = 1.8, unit = "1", source = "test" })";
   struct Row {

@@ -176,7 +176,16 @@ TEST_CASE("the program: exit codes and messages") {
   CHECK(missing.code == 2);
   CHECK(missing.output.find("cannot open") != std::string::npos);
   CHECK(run_program("tolerance " + bad + " --samples -3").code == 2);
-  CHECK(run_program("frobnicate").code == 2);
+  const auto unknown = run_program("frobnicate " + bad);
+  CHECK(unknown.code == 2);
+  CHECK(unknown.output.find("unknown command 'frobnicate'") != std::string::npos);
+  const auto directory = run_program("run /tmp");
+  CHECK(directory.code == 2);
+  CHECK(directory.output.find("/tmp:1:1: is a directory, not a scenario file") != std::string::npos);
+  // A sweep with nothing valid in it is bad input, not a table of errors that exits 0.
+  const auto all_invalid = run_program("sweep " + scratch("ok1.toml", kPwlScenario) + " --quiet --vary coil.inductance=-1:-2:3");
+  CHECK(all_invalid.code == 2);
+  CHECK(all_invalid.output.find("every point is invalid") != std::string::npos);
   CHECK(run_program("sweep " + scratch("ok.toml", kPwlScenario) + " --vary coil.inductanse=1:2:2").code == 2);
   // A solver failure is an error (exit 3), not a result.
   std::string text = kPwlScenario;

@@ -175,5 +175,5 @@ def test_armature_model_from_a_dict_gives_contact_metrics_and_the_gap_waveform(r
 
 def test_armature_model_without_its_times_names_the_missing_key(relay_dict):
     relay_dict["relay"] = {"armature_model": True}
-    with pytest.raises(coilkick.ScenarioError, match="relay.armature_model.*operate_voltage_V"):
+    with pytest.raises(coilkick.ScenarioError, match="relay.armature_model.*needs coil.operate_voltage"):
         coilkick.scenario_from_dict(relay_dict)

@@ -79,7 +79,7 @@ FILE_ROWS = [
     ("temperature out of range", 0, 'device_temperature = "500 degC"', 21, "analysis.device_temperature must be inside"),
     ("armature model without its data", 0, "[relay]\narmature_model = true", 22, "the armature model needs coil.operate_voltage"),
     ("time for a length", 0, '[relay]\ncontact_gap = "0.4 ms"', 22, "is a time, but a length"),
-    ("negative over-travel", 0, '[relay]\nover_travel = "-0.1 mm"', 22, "over_travel_m must be inside"),
+    ("negative over-travel", 0, '[relay]\nover_travel = "-0.1 mm"', 22, "relay.over_travel must be inside"),
     ("misspelt relay key", 0, "[relay]\narmature = true", 22, "did you mean 'relay.armature_model'"),
     ("relay data no armature can meet", 10, 'release_voltage = "0.1 V"\noperate_voltage = "8.4 V"\n[relay]\n'
      'armature_model = true\noperate_time = "8 ms"\nrelease_time = "2 ms"', 13, "is too low against coil.operate_voltage"),
@@ -149,7 +149,7 @@ def test_a_sweep_point_with_a_bad_key_or_value_reports_its_error_and_the_others_
     assert (df["overall"] == "error").all()
     assert "did you mean 'coil.inductance'" in df["error"].iloc[0]
     df = coilkick.sweep(valid(), {"coil.inductance": [-1.0, 0.3]})
-    assert df["overall"].iloc[0] == "error" and "inductance_H" in df["error"].iloc[0]
+    assert df["overall"].iloc[0] == "error" and "coil.inductance must be finite" in df["error"].iloc[0]
     assert df["error"].iloc[1] == "" and math.isfinite(df["release_time_s"].iloc[1])
 
 

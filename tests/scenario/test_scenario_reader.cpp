@@ -156,6 +156,38 @@ TEST_CASE("an unreadable file is a clear error") {
                        doctest::Contains("/nonexistent/dir/x.toml:1:1: cannot open"), ScenarioError);
 }
 
+TEST_CASE("a threshold key in the file replaces the coil part's: release current over the part's release voltage") {
+  // The demo coil part gives release and operate voltages; the file's current keys win, and the
+  // part's voltages stay the armature model's data-sheet values.
+  const std::string text = R"(
+[supply]
+voltage = "24 V"
+[coil]
+part = "greenhouse_valve_24v"
+release_current = "50 mA"
+operate_current = "0.3 A"
+[switch]
+topology = "low_side_nmos"
+part = "nmos_logic_level_60v"
+[clamp]
+kind = "diode"
+diode_part = "rectifier_1a"
+)";
+  const auto s = read_scenario_text(text, "threshold.toml", test_support::catalogue());
+  CHECK(s.driver.coil.release_current_A == 0.05);
+  CHECK(std::isnan(s.driver.coil.release_voltage_V));
+  CHECK(s.driver.coil.operate_current_A == 0.3);
+  CHECK(std::isnan(s.driver.coil.operate_voltage_V));
+  const auto& part = test_support::catalogue().part("greenhouse_valve_24v");
+  CHECK(s.driver.relay.release_voltage_V == part.parameter("release_voltage"));
+  CHECK(s.driver.relay.operate_voltage_V == part.parameter("operate_voltage"));
+}
+
+TEST_CASE("a directory given as the scenario file is named as such") {
+  CHECK_THROWS_WITH_AS(read_scenario_file("/tmp", test_support::catalogue()),
+                       doctest::Contains("/tmp:1:1: is a directory, not a scenario file"), ScenarioError);
+}
+
 TEST_CASE("numeric keys set by name, part overrides included") {
   auto s = read_scenario_text(join(base_lines()), "base.toml", test_support::catalogue());
   set_numeric_key(s, "coil.inductance", 0.3, test_support::catalogue());
