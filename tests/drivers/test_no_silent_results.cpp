@@ -7,7 +7,11 @@
 #include <string>
 
 #include "../approx.hpp"
+#include <fstream>
+#include <sstream>
+
 #include "coilkick/drivers/switch_off.hpp"
+#include "coilkick/scenario/scenario.hpp"
 #include "driver_fixture.hpp"
 
 using namespace coilkick::drivers;
@@ -188,4 +192,40 @@ TEST_CASE("the two model levels clamp at the same voltage at the coil's current"
   n.analysis.model_level = coilkick::devices::ModelLevel::pwl;
   const auto pwl = simulate_switch_off(n, test_support::catalogue());
   CHECK(pwl.metrics.get("switch_voltage_peak_V") == rel(physical.metrics.get("switch_voltage_peak_V")).epsilon(5e-3));
+}
+
+namespace {
+// The bundled greenhouse valve's text with `inserted` after its line `after`.
+std::string bundled_valve_text(const std::string& after, const std::string& inserted) {
+  std::ifstream in(coilkick::catalogue::default_models_directory() + "/scenarios/greenhouse_valve.toml");
+  std::stringstream text;
+  text << in.rdbuf();
+  std::string t = text.str();
+  const auto at = t.find(after);
+  REQUIRE(at != std::string::npos);
+  t.insert(t.find('\n', at) + 1, inserted);
+  return t;
+}
+}  // namespace
+
+TEST_CASE("a 1 nH / 1 MOhm coil with the armature model finds its on-state (residuals judged on each row's own scale)") {
+  // Its armature is balanced by forces of ~1e-18 N: next to a node's round-off in amperes such a
+  // residual used to look converged-or-not by accident, and Newton stalled.
+  const auto s = coilkick::scenario::read_scenario_text(
+      bundled_valve_text("[coil]", "inductance = \"1 nH\"\nresistance = \"1 Mohm\"\n"), "tiny.toml", test_support::catalogue());
+  REQUIRE(s.driver.relay.armature_model);
+  REQUIRE(s.driver.relay.closed_inductance_H == 1e-9);  // calibrated for this coil
+  SwitchOffResult r;
+  REQUIRE_NOTHROW(r = simulate_switch_off(s.driver, test_support::catalogue()));
+  // Nodal analysis by hand: the coil carries (supply − switch drop) / hot resistance.
+  const double r_hot = coilkick::drivers::coil_resistance_ohm(s.driver.coil);
+  const double vsw = r.metrics.get("switch_saturation_voltage_V");
+  CHECK(r.metrics.get("coil_current_at_switch_off_A") == rel((s.driver.supply.voltage_V - vsw) / r_hot).epsilon(1e-6));
+}
+
+TEST_CASE("an armature that cannot meet a data-sheet time names that value, not the solver's internals") {
+  const std::string t = bundled_valve_text("armature_model = true", "operate_time = \"1 us\"\nrelease_time = \"1 us\"\n");
+  CHECK_THROWS_WITH_AS(coilkick::scenario::read_scenario_text(t, "fast.toml", test_support::catalogue()),
+                       doctest::Contains("relay.operate_time (1e-06 s) cannot be met by an armature on this coil"),
+                       coilkick::scenario::ScenarioError);
 }

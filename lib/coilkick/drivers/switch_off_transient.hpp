@@ -8,9 +8,10 @@
 // scenario's analysis.stop_time, or automatically the edge plus 8·L/R plus 20 data-sheet release
 // times (armature model). A switch that turns off slower than the coil's L/R (a small coil, a
 // slow gate) outlasts that first horizon; an automatic horizon is then lengthened 16-fold, up to
-// six times, until the decay has been observed. A run whose decay was not observed (given stop
-// time too short, the off-state does not block) is reported as such — `decay_observed` — never
-// as a quiet result.
+// six times and to at most 1 s after the edge, until the decay has been observed (the coil current
+// below 10 % and below the release current; the contact's opening has its own check). A run whose
+// decay was not observed (given stop time too short, the off-state does not block) is reported
+// as such — `decay_observed` — never as a quiet result.
 #include <memory>
 #include <vector>
 

@@ -28,6 +28,37 @@ double weighted_norm(const Circuit& c, const Eigen::VectorXd& r) {
   return std::sqrt(s);
 }
 
+// Each state's own tolerance: volts, amperes, or the element's declared unit.
+double state_tolerance(const Circuit& c, int i, const OperatingPointOptions& o) {
+  const auto& info = c.states()[static_cast<std::size_t>(i)];
+  return info.kind == StateKind::node_voltage ? o.voltage_tolerance_V
+         : info.kind == StateKind::branch_current ? o.current_tolerance_A
+                                                  : info.absolute_tolerance;
+}
+
+// Each row's own scale: Σ_j |∂f_i/∂x_j|·max(|x_j|, tol_j), what row i changes by when every
+// state moves by its own size — amperes for a node, newtons for an armature's force balance.
+// Residuals are judged against it, so a balance of 1e-18 N (a 1 nH, 1 MΩ coil's armature) counts
+// as much as a node's milliamperes, and neither hides behind the other's round-off.
+Eigen::VectorXd row_scales(const Circuit& c, const Eigen::MatrixXd& g, const Eigen::VectorXd& x, const OperatingPointOptions& o) {
+  const int n = static_cast<int>(x.size());
+  Eigen::VectorXd s(n);
+  for (int i = 0; i < n; ++i) {
+    double scale = 0.0;
+    for (int j = 0; j < n; ++j) scale += std::abs(g(i, j)) * std::max(std::abs(x[j]), state_tolerance(c, j, o));
+    s[i] = std::max(scale, 1e-300);
+  }
+  return s;
+}
+
+double relative_norm(const Eigen::VectorXd& r, const Eigen::VectorXd& scale) { return r.cwiseQuotient(scale).norm(); }
+
+// Every residual at the round-off of its own row (within 1e-11 of its scale): Newton cannot
+// improve on that, every evaluation is that noisy.
+bool residual_at_round_off(const Eigen::VectorXd& r, const Eigen::VectorXd& scale) {
+  return r.cwiseQuotient(scale).cwiseAbs().maxCoeff() <= 1e-11;
+}
+
 }  // namespace
 
 // Newton with backtracking from the guess; throws SimulationError if it does not converge.
@@ -115,7 +146,7 @@ CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
   Eigen::VectorXd r, r_try, x_try;
   circuit.assemble(t, t, x.data(), w);
   residual(circuit, w, x.head(nc), gmin, r);
-  double norm = weighted_norm(circuit, r);
+  double norm = 0.0;  // relative to the row scales, set in each iteration
   for (int it = 0; it < options.maximum_iterations; ++it) {
     Eigen::MatrixXd g = w.flow_slope.topLeftCorner(nc, nc);
     for (int i = 0; i < nc; ++i) {
@@ -130,16 +161,17 @@ CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
                             " s: the conductance matrix is singular (a state has no DC path)");
     }
     const Eigen::VectorXd dx = lu.solve(-r);
+    const Eigen::VectorXd scale = row_scales(circuit, g, x.head(nc), options);
+    norm = relative_norm(r, scale);
     bool small = true;
     for (int i = 0; i < nc; ++i) {
-      const auto& info = circuit.states()[static_cast<std::size_t>(i)];
-      const double tol = (info.kind == StateKind::node_voltage ? options.voltage_tolerance_V
-                          : info.kind == StateKind::branch_current ? options.current_tolerance_A
-                                                                   : info.absolute_tolerance) +
-                         options.relative_tolerance * std::abs(x[i]);
+      const double tol = state_tolerance(circuit, i, options) + options.relative_tolerance * std::abs(x[i]);
       small = small && std::abs(dx[i]) <= tol;
     }
-    if (small) {
+    // Converged: the Newton step is within every state's tolerance, or every residual is at the
+    // round-off of its own row (a state whose scale is far below its absolute tolerance's, such
+    // as an armature held by micronewtons, then still has an exact balance).
+    if (small || residual_at_round_off(r, scale)) {
       CircuitState out;
       out.time_s = t;
       out.values = x;
@@ -154,7 +186,7 @@ CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
       x_try.head(nc) += lambda * dx;
       circuit.assemble(t, t, x_try.data(), w);
       residual(circuit, w, x_try.head(nc), gmin, r_try);
-      norm_try = weighted_norm(circuit, r_try);
+      norm_try = relative_norm(r_try, scale);
       if (std::isfinite(norm_try) && norm_try <= norm * (1.0 - 1e-4 * lambda)) break;
       lambda *= 0.5;
     }
@@ -162,14 +194,18 @@ CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
     r = r_try;
     norm = norm_try;
   }
+  // Name the row furthest from balance relative to its own scale.
+  circuit.assemble(t, t, x.data(), w);
+  const Eigen::VectorXd scale = row_scales(circuit, w.flow_slope.topLeftCorner(nc, nc), x.head(nc), options);
   int worst = 0;
   for (int i = 1; i < nc; ++i) {
-    if (std::abs(r[i]) > std::abs(r[worst])) worst = i;
+    if (std::abs(r[i] / scale[i]) > std::abs(r[worst] / scale[worst])) worst = i;
   }
   std::ostringstream m;
   m << "operating point at t = " << t << " s did not converge in " << options.maximum_iterations
-    << " Newton iterations; the largest residual is in '"
-    << circuit.states()[static_cast<std::size_t>(worst)].name << "' (" << r[worst] << ")";
+    << " Newton iterations; the residual furthest from balance is in '"
+    << circuit.states()[static_cast<std::size_t>(worst)].name << "' (" << r[worst] << ", " << std::abs(r[worst] / scale[worst])
+    << " of its row's scale)";
   throw SimulationError(m.str());
 }
 

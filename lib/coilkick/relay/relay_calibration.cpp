@@ -274,8 +274,20 @@ RelayCalibration calibrate_checked(const RelayDatasheet& s) {
   // A contact that never changes state within the limit counts as "much too slow".
   auto log_ratio = [](double t, double target) { return std::isnan(t) ? 10.0 : std::log(t / target); };
 
+  // A calibration run that fails is a data-sheet time this coil cannot meet: name that value.
+  auto fitting = [&s](const char* field, double target_s, const auto& fit) {
+    try {
+      return fit();
+    } catch (const engine::SimulationError& e) {
+      std::ostringstream m;
+      m << "relay: " << field << " (" << target_s << " s) cannot be met by an armature on this coil (its time constant "
+        << "closed_inductance_H/coil_resistance_ohm is " << s.closed_inductance_H / s.coil_resistance_ohm
+        << " s); the calibration run that fits it failed: " << e.what();
+      throw std::invalid_argument(m.str());
+    }
+  };
   // Inner: the moving mass that meets the release time for a given core gap.
-  auto mass_for = [&](double core_gap) {
+  auto mass_fitting_release = [&](double core_gap) {
     const double f_closed = shape(s, core_gap, 1.0).mechanics.spring_force_N(kResidualGap_m);
     const double m0 = std::clamp(f_closed * s.release_time_s * s.release_time_s / (2.0 * s.over_travel_m), 1e-6, 1.0);
     auto f = [&](double m) {
@@ -286,9 +298,14 @@ RelayCalibration calibrate_checked(const RelayDatasheet& s) {
     bracket_log(f, m0, 1e-8, 100.0, lo, hi, flo, fhi);
     return solve_log(f, lo, hi, flo, fhi, 2e-4);
   };
+  auto mass_for = [&](double core_gap) {
+    return fitting("release_time_s", s.release_time_s, [&] { return mass_fitting_release(core_gap); });
+  };
   // Outer: the core gap that meets the operate time (with the mass re-solved each time).
   auto op_error = [&](double core_gap) {
-    return log_ratio(operate_time_s(shape(s, core_gap, mass_for(core_gap)), v, limit), s.operate_time_s);
+    const double mass = mass_for(core_gap);
+    return fitting("operate_time_s", s.operate_time_s,
+                   [&] { return log_ratio(operate_time_s(shape(s, core_gap, mass), v, limit), s.operate_time_s); });
   };
   const double f_lo = op_error(core_gap_lo), f_hi = op_error(core_gap_hi);
   const double core_gap = solve_log(op_error, core_gap_lo, core_gap_hi, f_lo, f_hi, 2e-4);
