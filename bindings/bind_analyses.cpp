@@ -39,8 +39,7 @@ void DefineAnalyses(py::module_& m) {
       "run_points",
       [](const PyScenario& s, const std::vector<std::string>& keys, const std::vector<std::vector<double>>& values, int threads) {
         std::vector<analyses::RunSummary> out(values.size());
-        {
-          py::gil_scoped_release release;
+        run_interruptibly([&] {
           analyses::parallel_for(static_cast<int>(values.size()), threads_or_default(threads), [&](int i) {
             scenario::Scenario si = s.scenario;
             const auto& v = values[static_cast<std::size_t>(i)];
@@ -53,7 +52,7 @@ void DefineAnalyses(py::module_& m) {
             }
             out[static_cast<std::size_t>(i)] = analyses::summarize_run(si.driver, *s.parts);
           });
-        }
+        });
         py::list l;
         for (const auto& r : out) l.append(summary_dict(r));
         return l;
@@ -87,14 +86,13 @@ void DefineAnalyses(py::module_& m) {
           if (i < 0 || i >= static_cast<int>(plan.size())) throw std::invalid_argument("tolerance point index out of range");
         }
         std::vector<analyses::RunSummary> out(indices.size());
-        {
-          py::gil_scoped_release release;
+        run_interruptibly([&] {
           analyses::parallel_for(static_cast<int>(indices.size()), threads_or_default(threads), [&](int k) {
             const auto& run = plan[static_cast<std::size_t>(indices[static_cast<std::size_t>(k)])];
             out[static_cast<std::size_t>(k)] =
                 analyses::summarize_run(analyses::apply_spreads(s.scenario, spreads, run.values, *s.parts).driver, *s.parts);
           });
-        }
+        });
         py::list l;
         for (std::size_t k = 0; k < indices.size(); ++k) {
           py::dict d = summary_dict(out[k]);
@@ -122,10 +120,9 @@ void DefineAnalyses(py::module_& m) {
       "faults",
       [](const PyScenario& s) {
         drivers::FaultReport rep;
-        {
-          py::gil_scoped_release release;
+        run_interruptibly([&] {
           rep = drivers::analyse_faults(s.scenario.driver, *s.parts);
-        }
+        });
         auto one = [](const drivers::FaultCase& c) {
           py::dict readings;
           for (const auto& r : c.readings) readings[py::str(r.node)] = py::make_tuple(r.on_V, r.off_V);
@@ -167,10 +164,9 @@ void DefineAnalyses(py::module_& m) {
         analyses::SuggestLimits limits{max_release_time_s, max_switch_voltage_V, time_metric, {}};
         for (const auto& k : kinds) limits.kinds.push_back(drivers::parse_clamp_kind(k));
         std::vector<analyses::Suggestion> list;
-        {
-          py::gil_scoped_release release;
+        run_interruptibly([&] {
           list = analyses::suggest_clamps(s.scenario, *s.parts, limits, threads_or_default(threads));
-        }
+        });
         py::list l;
         for (const auto& g : list) {
           py::dict d = summary_dict(g.run);

@@ -16,10 +16,9 @@ void DefineRelay(py::module_& m) {
       [](const PyScenario& s) {
         const auto sheet = drivers::relay_datasheet(s.scenario.driver);
         const relay::RelayCalibration* cal = nullptr;
-        {
-          py::gil_scoped_release release;  // a first calibration runs ~100 short transients
+        run_interruptibly([&] {
           cal = &relay::calibrate_relay_cached(sheet);
-        }
+        });
         py::list targets;
         for (const auto& t : cal->targets) {
           py::dict d;

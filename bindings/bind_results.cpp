@@ -38,9 +38,12 @@ py::list checks_list(const std::vector<drivers::RatingCheck>& checks) {
   return l;
 }
 
-// A 1-D view of an Eigen vector owned by the result; `owner` keeps it alive.
+// A read-only 1-D view of an Eigen vector owned by the result; `owner` keeps it alive. Read-only:
+// a write would change the result behind its metrics.
 py::array_t<double> view(const Eigen::VectorXd& v, py::handle owner) {
-  return py::array_t<double>({static_cast<py::ssize_t>(v.size())}, {static_cast<py::ssize_t>(sizeof(double))}, v.data(), owner);
+  py::array_t<double> a({static_cast<py::ssize_t>(v.size())}, {static_cast<py::ssize_t>(sizeof(double))}, v.data(), owner);
+  a.attr("setflags")(py::arg("write") = false);
+  return a;
 }
 
 }  // namespace
@@ -82,11 +85,10 @@ void DefineResults(py::module_& m) {
       "run",
       [](const PyScenario& s) {
         std::shared_ptr<const drivers::SwitchOffResult> r;
-        {
-          // The switch-off takes milliseconds to seconds: let other Python threads run.
-          py::gil_scoped_release release;
+        // The switch-off takes milliseconds to seconds: let other Python threads run, and Ctrl-C stop it.
+        run_interruptibly([&] {
           r = std::make_shared<const drivers::SwitchOffResult>(drivers::simulate_switch_off(s.scenario.driver, *s.parts));
-        }
+        });
         return PyRun{r};
       },
       py::arg("scenario"), "Simulate one switch-off of the scenario's driver.");
@@ -97,10 +99,9 @@ void DefineResults(py::module_& m) {
         std::vector<drivers::ClampKind> k;
         for (const auto& name : kinds) k.push_back(drivers::parse_clamp_kind(name));
         std::vector<drivers::ComparisonRow> rows;
-        {
-          py::gil_scoped_release release;
+        run_interruptibly([&] {
           rows = drivers::compare_clamps(s.scenario.driver, *s.parts, k);
-        }
+        });
         py::list out;
         for (auto& row : rows) {
           py::object result = py::none();

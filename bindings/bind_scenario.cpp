@@ -56,6 +56,13 @@ void DefineScenario(py::module_& m) {
           "A copy with one numeric key set (value in the key's SI base unit), e.g. "
           "with_value('clamp.zener.overrides.breakdown_voltage', 20.0).");
   m.def("numeric_keys", &scenario::numeric_keys, "Numeric scenario keys with their SI units.");
+  m.def(
+      "check_numeric_key",
+      [](const PyScenario& p, const std::string& key) {
+        scenario::Scenario copy = p.scenario;
+        scenario::set_numeric_key(copy, key, 1.0, *p.parts);  // throws ScenarioError with the closest key
+      },
+      py::arg("scenario"), py::arg("key"), "Raises ScenarioError unless `key` is a numeric key (or part override) of the scenario.");
 }
 
 }  // namespace coilkick::python

@@ -4,6 +4,7 @@
 // (bindings/python/coilkick) wraps these into the public API.
 #include <pybind11/pybind11.h>
 
+#include <functional>
 #include <memory>
 #include <string>
 #include <utility>
@@ -29,7 +30,12 @@ std::shared_ptr<const catalogue::Catalogue> catalogue_for(const std::string& mod
 PyScenario rebuild_scenario(const std::string& text, const std::string& name, const std::string& models_dir,
                             const std::vector<std::pair<std::string, double>>& assignments);
 
+// Runs `work` (C++ only, no Python objects) with the GIL released; Ctrl-C stops it within a
+// step and raises KeyboardInterrupt (bind_interrupt.cpp). Its exceptions reach Python as usual.
+void run_interruptibly(const std::function<void()>& work);
+
 void DefineErrors(pybind11::module_& m);
+void DefineInterrupt(pybind11::module_& m);
 void DefineCatalogue(pybind11::module_& m);
 void DefineScenario(pybind11::module_& m);
 void DefineResults(pybind11::module_& m);

@@ -4,6 +4,7 @@
 PYBIND11_MODULE(_core, m) {
   m.doc() = "coilkick compiled core: switch-off transients of inductive loads and clamp choice";
   coilkick::python::DefineErrors(m);
+  coilkick::python::DefineInterrupt(m);
   coilkick::python::DefineCatalogue(m);
   coilkick::python::DefineScenario(m);
   coilkick::python::DefineResults(m);

@@ -1,16 +1,26 @@
 // coilkick command-line tool: run, compare, sweep, tolerance, suggest, faults (and demo).
 #include <CLI/CLI.hpp>
+#include <csignal>
 #include <filesystem>
 #include <iostream>
+#include <unistd.h>
 
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/engine/errors.hpp"
+#include "coilkick/engine/interrupt.hpp"
 #include "coilkick/scenario/scenario.hpp"
 #include "commands.hpp"
 
 using namespace coilkick::cli;
 
 namespace {
+// Ctrl-C: the work stops at its next step and the command exits 130 without writing results; a
+// second Ctrl-C ends the program at once.
+extern "C" void on_interrupt(int) {
+  if (coilkick::engine::interrupt_requested()) _exit(130);
+  coilkick::engine::request_interrupt();
+}
+
 void common(CLI::App* app, CommonOptions& o, bool with_file = true) {
   if (with_file) app->add_option("FILE", o.file, "scenario file (TOML)")->required();
   app->add_option("--models", o.models_dir, "models directory (default: the bundled models/)");
@@ -88,6 +98,7 @@ int main(int argc, char** argv) {
     app.exit(e);
     return 2;  // bad input
   }
+  std::signal(SIGINT, on_interrupt);
   try {
     if (run->parsed()) return cmd_run(o, waveforms, fail_on_check, std::cout);
     if (compare->parsed()) return cmd_compare(o, csv, plot, std::cout);
@@ -100,6 +111,9 @@ int main(int argc, char** argv) {
       o.file = (std::filesystem::path(models) / "scenarios" / "greenhouse_valve.toml").string();
       return cmd_compare(o, csv, plot, std::cout);
     }
+  } catch (const coilkick::engine::Interrupted&) {
+    std::cerr << "\ncoilkick: interrupted (Ctrl-C); no results were written\n";
+    return 130;
   } catch (const coilkick::engine::SimulationError& e) {
     std::cerr << "coilkick: simulation failed: " << e.what() << "\n";
     return 3;

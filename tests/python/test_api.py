@@ -77,7 +77,7 @@ def test_exceptions_carry_the_messages(relay_dict):
 
 def test_sweep_dataframe_and_executor_give_the_same_numbers(relay_dict):
     s = coilkick.scenario_from_dict(relay_dict)
-    vary = {"clamp.zener.overrides.breakdown_voltage": (5.0, 25.0, 5), "supply.voltage": [11.0, 13.0]}
+    vary = {"clamp.zener.overrides.breakdown_voltage": coilkick.span(5.0, 25.0, 5), "supply.voltage": [11.0, 13.0]}
     local = coilkick.sweep(s, vary, threads=2)
     assert isinstance(local, pd.DataFrame) and len(local) == 10
     assert list(local.columns[:2]) == list(vary)
@@ -117,7 +117,7 @@ def test_long_work_releases_the_gil(relay_dict):
     # Size the sweep from a short one so that it lasts about half a second on any machine: the
     # check below compares the ticker's gaps with the sweep's own length, not with a fixed time.
     t0 = time.perf_counter()
-    coilkick.sweep(s, {"coil.inductance": (0.2, 1.0, 10)}, threads=1)
+    coilkick.sweep(s, {"coil.inductance": coilkick.span(0.2, 1.0, 10)}, threads=1)
     per_point_s = (time.perf_counter() - t0) / 10
     points = int(min(5000, max(20, 0.5 / per_point_s)))
 
@@ -132,7 +132,7 @@ def test_long_work_releases_the_gil(relay_dict):
     t = threading.Thread(target=ticker)
     t.start()
     start = time.perf_counter()
-    coilkick.sweep(s, {"coil.inductance": (0.2, 1.0, points)}, threads=1)
+    coilkick.sweep(s, {"coil.inductance": coilkick.span(0.2, 1.0, points)}, threads=1)
     end = time.perf_counter()
     stop.set()
     t.join()

@@ -20,7 +20,7 @@ def client():
 
 def test_sweep_on_dask_equals_local(client, relay_dict):
     s = coilkick.scenario_from_dict(relay_dict)
-    vary = {"clamp.zener.overrides.breakdown_voltage": (5.0, 40.0, 8)}
+    vary = {"clamp.zener.overrides.breakdown_voltage": coilkick.span(5.0, 40.0, 8)}
     local = coilkick.sweep(s, vary, threads=1)
     remote = coilkick.sweep(s, vary, executor=client, chunk_size=3)
     pd.testing.assert_frame_equal(local, remote)

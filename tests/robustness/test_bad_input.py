@@ -114,11 +114,15 @@ def test_bad_file_through_the_command_and_python(row, tmp_path, program):
     assert str(e.value) == message[len("coilkick: "):]  # the same words in Python
 
 
-def valid():
-    return coilkick.scenario_from_dict({
-        "supply": {"voltage": "12 V"}, "coil": {"resistance": "400 ohm", "inductance": "600 mH", "release_current": "3 mA"},
+def valid_dict(supply_voltage="12 V"):
+    return {
+        "supply": {"voltage": supply_voltage}, "coil": {"resistance": "400 ohm", "inductance": "600 mH", "release_current": "3 mA"},
         "switch": {"topology": "low_side_npn", "part": "npn_small_signal_40v", "base_resistor": "1 kohm"},
-        "clamp": {"kind": "diode", "diode_part": "rectifier_1a"}, "analysis": {"model_level": "pwl"}})
+        "clamp": {"kind": "diode", "diode_part": "rectifier_1a"}, "analysis": {"model_level": "pwl"}}
+
+
+def valid():
+    return coilkick.scenario_from_dict(valid_dict())
 
 
 API_ROWS = [
@@ -130,8 +134,21 @@ API_ROWS = [
     ("with_value on an unknown key", lambda: valid().with_value("coil.inductanse", 1.0), "did you mean 'coil.inductance'"),
     ("with_value NaN", lambda: valid().with_value("coil.inductance", math.nan), "must be finite"),
     ("with_value negative inductance", lambda: valid().with_value("coil.inductance", -1.0), "inductance_H"),
-    ("sweep with count 0", lambda: coilkick.sweep(valid(), {"coil.inductance": (0.1, 1.0, 0)}), "count >= 1"),
-    ("tolerance with negative samples", lambda: coilkick.tolerance(valid(), samples=-1), "samples"),
+    ("span with count 0", lambda: coilkick.span(0.1, 1.0, 0), "count: must be from 1 to 100000"),
+    ("sweep over an unknown key", lambda: coilkick.sweep(valid(), {"coil.inductanse": coilkick.span(0.1, 1.0, 2)}),
+     "did you mean 'coil.inductance'"),
+    ("sweep with a NaN value", lambda: coilkick.sweep(valid(), {"coil.inductance": [0.3, math.nan]}),
+     "key 'coil.inductance': every value must be a finite number"),
+    ("sweep of 10^9 points", lambda: coilkick.sweep(valid(), {"coil.inductance": coilkick.span(0.1, 1.0, 100000),
+                                                              "supply.voltage": coilkick.span(10, 14, 10000)}),
+     "more than 1000000 grid points"),
+    ("an empty list of values", lambda: coilkick.sweep(valid(), {"coil.inductance": []}), "the list of values is empty"),
+    ("tolerance with negative samples", lambda: coilkick.tolerance(valid(), samples=-1), "samples: must be from 0"),
+    ("tolerance with 10^9 samples", lambda: coilkick.tolerance(valid(), samples=10 ** 9), "samples: must be from 0 to 10000000"),
+    ("tolerance with a negative seed", lambda: coilkick.tolerance(valid(), seed=-1), "seed: must be from 0"),
+    ("an empty scenario dict", lambda: coilkick.scenario_from_dict({}), "key 'supply.voltage': is required"),
+    ("a huge integer in a dict", lambda: coilkick.scenario_from_dict(valid_dict(10 ** 30)),
+     "key 'supply.voltage': supply.voltage must be at most"),
     ("suggest with a negative limit", lambda: coilkick.suggest(valid(), -1e-3, 40.0), "max-release-time"),
     ("compare with an unknown kind", lambda: coilkick.compare(valid(), ["zener_only"]), "unknown clamp kind"),
 ]
@@ -144,10 +161,44 @@ def test_bad_api_calls_raise_value_errors_naming_the_field(row):
     assert row[2] in str(e.value)
 
 
-def test_a_sweep_point_with_a_bad_key_or_value_reports_its_error_and_the_others_complete():
-    df = coilkick.sweep(valid(), {"coil.inductanse": (0.1, 1.0, 2)})
-    assert (df["overall"] == "error").all()
-    assert "did you mean 'coil.inductance'" in df["error"].iloc[0]
+TYPE_ROWS = [
+    ("no scenario", lambda: coilkick.run(None), "scenario: expected a coilkick scenario"),
+    ("a dict instead of a scenario", lambda: coilkick.sweep({}, {"coil.inductance": [0.3]}), "scenario: expected a coilkick scenario"),
+    ("a tuple axis", lambda: coilkick.sweep(valid(), {"coil.inductance": (0.1, 1.0, 3)}), "a tuple is ambiguous"),
+    ("a non-integer count", lambda: coilkick.span(0.1, 1.0, 2.5), "count: expected a whole number"),
+    ("a string as values", lambda: coilkick.sweep(valid(), {"coil.inductance": "0.3"}), "expected coilkick.span"),
+    ("samples not a whole number", lambda: coilkick.tolerance(valid(), samples=2.5), "samples: expected a whole number"),
+    ("not an executor", lambda: coilkick.tolerance(valid(), executor=object()), "executor: expected an object with submit()"),
+    ("a scenario that is not a dict", lambda: coilkick.scenario_from_dict(None), "a scenario must be a dict"),
+]
+
+
+@pytest.mark.parametrize("row", TYPE_ROWS, ids=[r[0] for r in TYPE_ROWS])
+def test_api_misuse_raises_type_errors_naming_the_argument(row):
+    with pytest.raises(TypeError) as e:
+        row[1]()
+    assert row[2] in str(e.value)
+
+
+def test_a_huge_sweep_is_refused_before_any_grid_is_built():
+    # The command refuses more than 1,000,000 points at once; so does Python, without building the 10^9 grid.
+    import time
+    t0 = time.perf_counter()
+    with pytest.raises(ValueError, match="more than 1000000 grid points"):
+        coilkick.sweep(valid(), {"coil.inductance": coilkick.span(0.1, 1.0, 100000), "supply.voltage": coilkick.span(10, 14, 10000)})
+    assert time.perf_counter() - t0 < 1.0
+
+
+def test_result_arrays_are_read_only_views():
+    r = coilkick.run(valid())
+    for name in ("time_s", "switch_voltage_V", "coil_current_A", "clamp_current_A"):
+        a = getattr(r, name)
+        assert not a.flags.writeable
+        with pytest.raises(ValueError):
+            a[0] = 1.0
+
+
+def test_a_sweep_point_with_a_bad_value_reports_its_error_and_the_others_complete():
     df = coilkick.sweep(valid(), {"coil.inductance": [-1.0, 0.3]})
     assert df["overall"].iloc[0] == "error" and "coil.inductance must be finite" in df["error"].iloc[0]
     assert df["error"].iloc[1] == "" and math.isfinite(df["release_time_s"].iloc[1])

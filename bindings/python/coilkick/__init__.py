@@ -7,15 +7,15 @@ Load a scenario (file or dict in the scenario schema, see README "Scenario files
     r = coilkick.run(s)                 # RunResult: metrics, checks, waveforms (numpy, no copy)
     r.metrics.release_time_s            # every metric name ends with its SI unit
     rows = coilkick.compare(s)          # every applicable clamp, fastest release first
-    df = coilkick.sweep(s, {"clamp.zener.overrides.breakdown_voltage": (5.0, 40.0, 36)})
+    df = coilkick.sweep(s, {"clamp.zener.overrides.breakdown_voltage": coilkick.span(5.0, 40.0, 36)})
     t = coilkick.tolerance(s, samples=1000, seed=1)
 
 `sweep` and `tolerance` take any concurrent.futures-style executor (a dask.distributed Client
 works as one). Plots: coilkick.plot.
 """
 from ._core import CatalogueError, ScenarioError, SimulationError, default_models_directory, numeric_keys
-from .api import (ComparisonRow, FaultReport, RunResult, ToleranceResult, compare, faults, load_scenario, part_info,
-                  part_names, relay_calibration, run, scenario_from_dict, suggest, sweep, tolerance)
+from .api import (ComparisonRow, FaultReport, RunResult, Span, ToleranceResult, compare, faults, load_scenario, part_info,
+                  part_names, relay_calibration, run, scenario_from_dict, span, suggest, sweep, tolerance)
 
 CAUTION = ("A simulation is not a qualification. Build and measure the real driver at its worst-case supply and "
            "temperature before relying on it. Where relays or contactors switch mains loads, wiring and checks "
@@ -23,4 +23,4 @@ CAUTION = ("A simulation is not a qualification. Build and measure the real driv
 
 __all__ = ["CAUTION", "CatalogueError", "ComparisonRow", "RunResult", "ScenarioError", "SimulationError",
            "ToleranceResult", "FaultReport", "compare", "faults", "default_models_directory", "load_scenario", "numeric_keys", "part_info",
-           "part_names", "run", "scenario_from_dict", "suggest", "sweep", "tolerance"]
+           "part_names", "run", "scenario_from_dict", "Span", "span", "suggest", "sweep", "tolerance"]

@@ -1,5 +1,7 @@
 """The public Python API of coilkick (re-exported by the package)."""
 import itertools
+import math
+import numbers
 import os
 from dataclasses import dataclass
 from typing import Any, Dict, List, Optional
@@ -82,8 +84,35 @@ class RunResult:
         return "RunResult(peak %.4g V, release %.4g s, %s)" % (m["switch_voltage_peak_V"], m["release_time_s"], self.overall)
 
 
+# The same limits as the command line (coilkick sweep, coilkick tolerance).
+MAX_SWEEP_POINTS = 1_000_000
+MAX_SPAN_COUNT = 100_000
+MAX_SAMPLES = 10_000_000
+
+
+def _require_scenario(scenario, argument="scenario"):
+    if not isinstance(scenario, _core.Scenario):
+        raise TypeError("%s: expected a coilkick scenario (coilkick.load_scenario or coilkick.scenario_from_dict), got %s"
+                        % (argument, type(scenario).__name__))
+
+
+def _require_int(value, argument, low, high):
+    if isinstance(value, bool) or not isinstance(value, numbers.Integral):
+        raise TypeError("%s: expected a whole number, got %r" % (argument, value))
+    if not low <= value <= high:
+        raise ValueError("%s: must be from %d to %d, got %d" % (argument, low, high, value))
+    return int(value)
+
+
+def _require_executor(executor):
+    if executor is not None and not callable(getattr(executor, "submit", None)):
+        raise TypeError("executor: expected an object with submit() (concurrent.futures executor, dask Client), got %s"
+                        % type(executor).__name__)
+
+
 def run(scenario) -> RunResult:
     """Simulate one switch-off of the scenario's driver (on-state DC point, then the switch-off edge)."""
+    _require_scenario(scenario)
     return RunResult(_core.run(scenario))
 
 
@@ -101,18 +130,57 @@ class ComparisonRow:
 
 def compare(scenario, kinds: Optional[List[str]] = None) -> List[ComparisonRow]:
     """Every applicable clamp kind (or the given ones) on the driver, fastest release first."""
+    _require_scenario(scenario)
     kinds = list(scenario.applicable_clamp_kinds if kinds is None else kinds)
     return [ComparisonRow(k, p, RunResult(r) if r is not None else None, e) for k, p, r, e in _core.compare(scenario, kinds)]
 
 
-def _axis_values(spec):
-    if isinstance(spec, tuple) and len(spec) == 3:
-        start, stop, count = spec
-        count = int(count)
-        if count < 1:
-            raise ValueError("sweep: a (start, stop, count) axis needs count >= 1")
-        return [float(start)] if count == 1 else [float(start + (stop - start) * k / (count - 1)) for k in range(count)]
-    return [float(v) for v in spec]
+@dataclass(frozen=True)
+class Span:
+    """An even range of a sweep axis: `count` values from `start` to `stop`, both included (SI base units)."""
+    start: float
+    stop: float
+    count: int
+
+    def values(self) -> List[float]:
+        if self.count == 1:
+            return [self.start]
+        return [self.start + (self.stop - self.start) * k / (self.count - 1) for k in range(self.count)]
+
+
+def span(start: float, stop: float, count: int) -> Span:
+    """A sweep axis of `count` evenly spaced values from start to stop (both included), as the command's
+    --vary KEY=START:STOP:COUNT. A list (or numpy array) of values is the other kind of axis."""
+    for name, v in (("start", start), ("stop", stop)):
+        if isinstance(v, bool) or not isinstance(v, numbers.Real) or not math.isfinite(v):
+            raise ValueError("span: %s must be a finite number, got %r" % (name, v))
+    count = _require_int(count, "span: count", 1, MAX_SPAN_COUNT)
+    return Span(float(start), float(stop), count)
+
+
+def _axis_length(key, spec):
+    if isinstance(spec, Span):
+        return spec.count
+    if isinstance(spec, tuple):
+        raise TypeError("sweep: key %r: a tuple is ambiguous (values or start, stop, count?): give "
+                        "coilkick.span(start, stop, count) for an even range or a list of values" % key)
+    if isinstance(spec, (str, bytes, dict, numbers.Number)) or not hasattr(spec, "__len__"):
+        raise TypeError("sweep: key %r: expected coilkick.span(start, stop, count) or a list of values, got %s"
+                        % (key, type(spec).__name__))
+    if len(spec) == 0:
+        raise ValueError("sweep: key %r: the list of values is empty" % key)
+    return len(spec)
+
+
+def _axis_values(key, spec):
+    if isinstance(spec, Span):
+        return spec.values()
+    values = []
+    for v in spec:
+        if isinstance(v, bool) or not isinstance(v, numbers.Real) or not math.isfinite(v):
+            raise ValueError("sweep: key %r: every value must be a finite number, got %r" % (key, v))
+        values.append(float(v))
+    return values
 
 
 def _frame(rows, lead_columns):
@@ -143,9 +211,25 @@ def sweep(scenario, vary: Dict[str, Any], executor=None, threads: int = 0, chunk
     """Grid sweep over numeric keys. vary: {key: (start, stop, count) or [values]} in SI base units; the grid is
     the product, first key slowest. Returns a DataFrame: the keys, overall, error, failed_checks, every metric.
     With `executor` (concurrent.futures style: submit() returning futures; a dask Client works) the grid is
-    split into chunks run there; the numbers are the same as without."""
+    split into chunks run there; the numbers are the same as without. Limits as the command's: an unknown key is a
+    ScenarioError (with the closest key), at most 100,000 values per span and 1,000,000 points in all."""
+    _require_scenario(scenario)
+    _require_executor(executor)
+    _require_int(threads, "threads", 0, 1024)
+    if chunk_size is not None:
+        _require_int(chunk_size, "chunk_size", 1, MAX_SWEEP_POINTS)
+    if not isinstance(vary, dict) or not vary:
+        raise TypeError("sweep: vary must be a non-empty dict {key: coilkick.span(...) or [values]}")
     keys = list(vary.keys())
-    axes = [_axis_values(vary[k]) for k in keys]
+    total = 1
+    for k in keys:
+        if not isinstance(k, str):
+            raise TypeError("sweep: keys must be strings, got %r" % (k,))
+        _core.check_numeric_key(scenario, k)
+        total *= _axis_length(k, vary[k])
+        if total > MAX_SWEEP_POINTS:
+            raise ValueError("sweep: more than %d grid points" % MAX_SWEEP_POINTS)
+    axes = [_axis_values(k, vary[k]) for k in keys]
     points = [list(p) for p in itertools.product(*axes)]
     if executor is None:
         rows = _core.run_points(scenario, keys, points, threads)
@@ -192,6 +276,13 @@ def tolerance(scenario, samples: int = 1000, seed: int = 1, executor=None, threa
               chunk_size: Optional[int] = None) -> ToleranceResult:
     """Corners (every combination of the spreads' extremes) then `samples` Monte Carlo runs; sample i depends only on
     (seed, i), so the result is the same locally, on threads, or on an executor."""
+    _require_scenario(scenario)
+    _require_executor(executor)
+    samples = _require_int(samples, "samples", 0, MAX_SAMPLES)
+    seed = _require_int(seed, "seed", 0, 2 ** 64 - 1)
+    _require_int(threads, "threads", 0, 1024)
+    if chunk_size is not None:
+        _require_int(chunk_size, "chunk_size", 1, MAX_SAMPLES)
     n = _core.tolerance_point_count(scenario, samples)
     spreads = _core.tolerance_spreads(scenario)
     if executor is None:
@@ -210,6 +301,8 @@ def suggest(scenario, max_release_time_s: float, max_switch_voltage_V: float, th
     those meeting both first, fastest release first. time_metric: what the release time is,
     "release_time_s" (coil current below release) or "contact_open_time_s" (armature model);
     kinds: only these clamp kinds (default: all)."""
+    _require_scenario(scenario)
+    _require_int(threads, "threads", 0, 1024)
     rows = _core.suggest(scenario, float(max_release_time_s), float(max_switch_voltage_V), threads, time_metric, list(kinds or []))
     lead = [{"clamp_kind": r["clamp_kind"], "parts": r["parts"], "meets_limits": r["meets_limits"],
              "release_margin": r["release_margin"], "voltage_margin": r["voltage_margin"]} for r in rows]
@@ -242,6 +335,7 @@ def relay_calibration(scenario) -> Dict[str, Any]:
     """The relay armature model's calibration for the scenario's coil data: 'targets', a DataFrame of
     name, target, achieved, relative_error (operate and release voltage and time, closed inductance), and
     'parameters', a dict of the derived model values, each name ending in its SI unit."""
+    _require_scenario(scenario)
     d = _core.relay_calibration(scenario)
     return {"targets": pd.DataFrame(d["targets"]).set_index("name"), "parameters": d["parameters"]}
 
@@ -249,4 +343,5 @@ def relay_calibration(scenario) -> Dict[str, Any]:
 def faults(scenario) -> FaultReport:
     """Single faults of every part of the driver (open, shorted, C–E short, base open, leaky junction, shorted
     turns, low supply): DC node voltages on and off, coil current, heat, switch-off, grouped by symptom."""
+    _require_scenario(scenario)
     return FaultReport(_core.faults(scenario))

@@ -9,6 +9,9 @@ def _value(v, where):
     if isinstance(v, (int, float)):
         if isinstance(v, float) and not math.isfinite(v):
             return '"%s"' % v  # the reader says it is not a finite number, naming the key
+        if isinstance(v, int) and not -2 ** 63 <= v < 2 ** 63:
+            # Beyond TOML's 64-bit integers: as a number, so that the reader's range check names the key.
+            return repr(float(v)) if abs(v) < 1e308 else '"inf"'
         return repr(float(v)) if isinstance(v, float) else str(v)
     if isinstance(v, str):
         return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'

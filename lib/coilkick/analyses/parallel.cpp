@@ -7,6 +7,8 @@
 #include <thread>
 #include <vector>
 
+#include "coilkick/engine/interrupt.hpp"
+
 namespace coilkick::analyses {
 
 int default_thread_count() { return std::max(1u, std::thread::hardware_concurrency()); }
@@ -20,6 +22,7 @@ void parallel_for(int n, int threads, const std::function<void(int)>& job,
   std::mutex error_mutex;
   auto worker = [&] {
     for (int i = next++; i < n; i = next++) {
+      if (engine::interrupt_requested()) break;  // the jobs left are not started
       try {
         job(i);
       } catch (...) {
@@ -39,6 +42,7 @@ void parallel_for(int n, int threads, const std::function<void(int)>& job,
   worker();
   for (auto& th : pool) th.join();
   if (first_error) std::rethrow_exception(first_error);
+  engine::throw_if_interrupted();
 }
 
 }  // namespace coilkick::analyses

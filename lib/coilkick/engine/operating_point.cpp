@@ -4,6 +4,7 @@
 #include <sstream>
 
 #include "coilkick/engine/errors.hpp"
+#include "coilkick/engine/interrupt.hpp"
 
 namespace coilkick::engine {
 namespace {
@@ -148,6 +149,7 @@ CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
   residual(circuit, w, x.head(nc), gmin, r);
   double norm = 0.0;  // relative to the row scales, set in each iteration
   for (int it = 0; it < options.maximum_iterations; ++it) {
+    throw_if_interrupted();
     Eigen::MatrixXd g = w.flow_slope.topLeftCorner(nc, nc);
     for (int i = 0; i < nc; ++i) {
       if (circuit.is_node_row(i)) g(i, i) -= gmin;

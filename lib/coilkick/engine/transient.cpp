@@ -9,6 +9,7 @@
 #include "coilkick/engine/errors.hpp"
 #include "coilkick/engine/event_locator.hpp"
 #include "coilkick/engine/rosenbrock_step.hpp"
+#include "coilkick/engine/interrupt.hpp"
 
 namespace coilkick::engine {
 namespace {
@@ -189,6 +190,7 @@ TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
   };
 
   while (t < t_stop) {
+    throw_if_interrupted();
     if (stats.accepted_steps + stats.rejected_steps >= options.maximum_steps) {
       fail("the step budget of " + std::to_string(options.maximum_steps) + " steps is used up");
     }
