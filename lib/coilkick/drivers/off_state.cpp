@@ -4,6 +4,7 @@
 #include <sstream>
 
 #include "coilkick/drivers/si_format.hpp"
+#include "coilkick/engine/errors.hpp"
 #include "coilkick/relay/armature_operating_point.hpp"
 
 namespace coilkick::drivers {
@@ -11,7 +12,19 @@ namespace coilkick::drivers {
 OffState solve_off_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, double on_coil_current_A) {
   OffState s;
   const double t = spec.drive.switch_off_at_s + spec.drive.fall_time_s;  // the drive has reached its low level
-  const auto off = relay::operating_point_with_armatures_open(b.network, c, t);
+  // Relays released is the usual off-state; where the coil stays energised (a shorted switch) the
+  // armature stays operated, and Newton is started from that side instead.
+  engine::CircuitState off;
+  try {
+    off = relay::operating_point_with_armatures_open(b.network, c, t);
+  } catch (const engine::SimulationError& released_failed) {
+    if (!b.armature) throw;
+    try {
+      off = relay::operating_point_with_armatures_closed(b.network, c, t);
+    } catch (const engine::SimulationError&) {
+      throw released_failed;
+    }
+  }
   const double* x = off.values.data();
   s.coil_current_A = x[c.state_index("coil.current")];
   if (std::abs(s.coil_current_A) < kBlockingCurrentFraction * std::abs(on_coil_current_A)) return s;

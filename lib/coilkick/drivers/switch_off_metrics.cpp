@@ -144,7 +144,9 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
         t_open = *e.time_s - t_off;
         speed = r.sample(*e.time_s)[c.state_index("coil.velocity")];
       }
-      t_operate = simulate_operate_time_s(spec, b);
+      // A driver whose off-state keeps the coil energised never releases the relay: there is no
+      // switch-on to time.
+      if (off.blocks) t_operate = simulate_operate_time_s(spec, b);
     }
     m.set("contact_open_time_s", t_open);
     m.set("armature_speed_at_contact_open_m_per_s", speed);
