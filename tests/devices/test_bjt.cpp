@@ -73,7 +73,8 @@ TEST_CASE("common practice: V_CE(sat) about 0.05-0.3 V at forced gain 10") {
     CHECK(b.collector_emitter_V > 0.05);
     CHECK(b.collector_emitter_V < 0.3);
   }
-  // The classic Ebers–Moll saturation voltage (reference list §2.2, IS neglected):
+  // The Ebers–Moll saturation voltage (derived in docs/derivations.md, "Saturation voltage of a
+  // bipolar transistor"; terms of the order of the saturation current alone neglected):
   // V_CE(sat) = V_T·ln[(1 + (β_f + 1)/β_R)/(1 − β_f/β_F)] with β_f = I_C/I_B; here without Early.
   BjtParameters q = p;
   q.forward_early_voltage_V = std::numeric_limits<double>::infinity();

@@ -13,7 +13,7 @@ using namespace coilkick::devices;
 
 namespace {
 DiodeParameters test_rectifier() {
-  // The test-vector diode of the reference list (invented): I_s = 5 nA, n = 1.8, R_s = 40 mΩ.
+  // An invented test diode: saturation current 5 nA, emission coefficient 1.8, series resistance 40 mΩ.
   DiodeParameters p;
   p.saturation_current_A = 5e-9;
   p.emission_coefficient = 1.8;

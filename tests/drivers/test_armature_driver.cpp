@@ -58,7 +58,7 @@ TEST_CASE("armature driver: energy balance includes the mechanical terms") {
 }
 
 TEST_CASE("armature driver: a plain diode opens the contact later and slower than diode + Zener") {
-  // Common practice (physics notes §3.6): a flyback diode holds the coil's flux, so the armature
+  // Common practice: a flyback diode holds the coil's flux, so the armature
   // starts late and is held back while it travels; a Zener in series collapses the current first.
   // Measured here: diode 4.54 ms at 105.6 mm/s, diode + 15 V Zener 2.52 ms at 107.5 mm/s, none
   // (switch avalanche) 2.11 ms. The speeds differ little because the calibrated contact spring

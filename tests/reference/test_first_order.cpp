@@ -9,6 +9,7 @@
 
 #include <cmath>
 
+#include "closed_forms.hpp"
 #include "coilkick/coilkick.hpp"
 
 using namespace coilkick::engine;
@@ -41,7 +42,7 @@ TEST_CASE("RL decay into an ideal constant clamp: current and threshold time (cl
                               {EventSpec::crossing("threshold", Probe::state(c, "coil.current"), ith,
                                                    Direction::falling)});
     const double a = vc / r;
-    const double t_th = tau * std::log((i0 + a) / (ith + a));
+    const double t_th = test_support::threshold_time_s(tau, i0, ith, a);
     // Tolerance 1e-6 relative: the run asks 1e-9 per step; a few thousand steps accumulate
     // far less than 1e-6, and events are bisected to 1e-13 s.
     REQUIRE(res.event("threshold").time_s.has_value());
@@ -58,12 +59,16 @@ TEST_CASE("RL decay into an ideal constant clamp: current and threshold time (cl
   }
 }
 
-TEST_CASE("RL decay reproduces the published test vectors") {
-  // Same coil; the closed form evaluates to 2.84962216 ms (0.7 V) and 0.741178187 ms (15.7 V)
-  // to 3 mA — the hand-evaluated values are repeated here so a wrong formula above shows.
-  const double l = 0.6, r = 400.0;
-  CHECK(l / r * std::log((0.03 + 0.7 / r) / (0.003 + 0.7 / r)) == rel(2.84962216e-3).epsilon(1e-8));
-  CHECK(l / r * std::log((0.03 + 15.7 / r) / (0.003 + 15.7 / r)) == rel(0.741178187e-3).epsilon(1e-8));
+TEST_CASE("the threshold-time and clamp-charge closed forms, evaluated by hand (worked here, not published)") {
+  // Guards the helpers every reference test uses (closed_forms.hpp) against a wrong formula. Same
+  // coil, 30 mA to 3 mA, τ = 1.5 ms: 0.7 V clamp, V_c/R = 1.75 mA: 1.5 ms·ln(31.75/4.75) =
+  // 1.5 ms·1.899748... = 2.84962216 ms; 15.7 V, V_c/R = 39.25 mA: 1.5 ms·ln(69.25/42.25) =
+  // 0.741178187 ms. Charge to zero on 15.7 V: 1.5 ms·[30 mA − 39.25 mA·ln(1 + 30/39.25)]
+  // = 1.5 ms·(30 − 22.28...) mA. Tolerance 1e-8: eight digits written down.
+  CHECK(test_support::threshold_time_s(1.5e-3, 0.03, 0.003, 0.7 / 400.0) == rel(2.84962216e-3).epsilon(1e-8));
+  CHECK(test_support::threshold_time_s(1.5e-3, 0.03, 0.003, 15.7 / 400.0) == rel(0.741178187e-3).epsilon(1e-8));
+  CHECK(test_support::clamp_charge_C(1.5e-3, 0.03, 15.7 / 400.0) ==
+        rel(1.5e-3 * (0.03 - 0.03925 * std::log(1.0 + 0.03 / 0.03925))).epsilon(1e-12));
 }
 
 TEST_CASE("RC charge through a resistor from a ramp edge (closed form)") {

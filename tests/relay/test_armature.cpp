@@ -1,6 +1,7 @@
 // The relay armature model: the magnetic force against closed forms, the element's Jacobian and
-// energy account, exact reduction to the fixed coil, and the reference relay of the project's
-// physics notes (an invented relay whose release was solved independently with scipy).
+// energy account, exact reduction to the fixed coil, and the reference relay (an invented relay
+// whose closed forms and release are derived in docs/derivations.md, "The reference relay", and
+// solved independently with scipy in tests/reference/scipy_reference_relay.py).
 #include <doctest/doctest.h>
 
 #include "../approx.hpp"
@@ -22,7 +23,7 @@ using relay::ArmatureCoilParameters;
 
 namespace {
 
-// The reference relay (project physics notes, §4.5; invented parameters): N = 1500, A = 20 mm²,
+// The reference relay (docs/derivations.md, "The reference relay"; invented parameters): N = 1500, A = 20 mm²,
 // iron path 40 mm at μr = 2000, residual gap 0.05 mm, open gap 0.5 mm, contact opens at 0.15 mm,
 // 1 g, return spring 0.5 N at the closed stop falling by 200 N/m, viscous 0.05 N·s/m, 400 Ω, 12 V.
 ArmatureCoilParameters reference_relay() {
@@ -72,10 +73,11 @@ TEST_CASE("magnetic force equals the closed-form reluctance result and the Maxwe
       CHECK(-(w(g + h) - w(g - h)) / (2.0 * h) == rel(p.magnetic.force_N(i, g)).epsilon(1e-6));
     }
   }
-  // The physics notes' numbers for this relay (§4.5, computed there independently).
-  CHECK(p.magnetic.inductance_H(0.05e-3) == rel(0.8078).epsilon(1e-4));
-  CHECK(p.magnetic.inductance_H(0.5e-3) == rel(0.1087).epsilon(1e-3));
-  CHECK(-p.magnetic.force_N(0.03, 0.05e-3) == rel(5.193).epsilon(1e-3));
+  // The numbers of docs/derivations.md for this relay (printed by scipy_reference_relay.py, six
+  // digits: 5e-6 relative).
+  CHECK(p.magnetic.inductance_H(0.05e-3) == rel(0.807838).epsilon(5e-6));
+  CHECK(p.magnetic.inductance_H(0.5e-3) == rel(0.108747).epsilon(5e-6));
+  CHECK(-p.magnetic.force_N(0.03, 0.05e-3) == rel(5.19325).epsilon(5e-6));
   // Release current I_rel = √(2·F_spring/|dL/dg|) at the closed stop: 9.30865 mA.
   CHECK(relay::static_release_current_A(p) == rel(9.30865e-3).epsilon(1e-5));
 }
@@ -150,9 +152,10 @@ ClampedRelease release_on_ideal_clamp(const ArmatureCoilParameters& p, double cl
 }  // namespace
 
 TEST_CASE("reference relay: release onset and contact opening on an ideal diode clamp") {
-  // Project physics notes §4.3 (closed form) and §4.5 (solved there independently with scipy
-  // solve_ivp, hard stops): with a plain 0.7 V diode the armature leaves the closed stop at
-  // t = τ_closed·ln[(I0 + Vc/R)/(I_rel + Vc/R)] = 2.13003 ms and the contact opens at 3.232 ms.
+  // docs/derivations.md, "The reference relay" (closed form; contact opening solved independently
+  // with scipy solve_ivp and hard stops in tests/reference/scipy_reference_relay.py): with a plain
+  // 0.7 V diode the armature leaves the closed stop at t = τ_closed·ln[(I0 + Vc/R)/(I_rel + Vc/R)]
+  // = 2.13003 ms and the contact opens at 3.23168 ms.
   const auto p = reference_relay();
   const auto r = release_on_ideal_clamp(p, 0.7);
   const double r_ohm = 400.0, i0 = 12.0 / r_ohm, vc = 0.7, i_rel = relay::static_release_current_A(p);
@@ -161,8 +164,8 @@ TEST_CASE("reference relay: release onset and contact opening on an ideal diode 
   CHECK(onset_closed_form == rel(2.13003e-3).epsilon(1e-5));
   // Stop softness (see reference_relay): 0.13 % measured, 0.3 % allowed.
   CHECK(r.onset_s == rel(onset_closed_form).epsilon(3e-3));
-  // 3.232 ms is given to 4 digits (±0.015 %); measured 0.001 % off, 0.1 % allowed for the stops.
-  CHECK(r.contact_open_s == rel(3.232e-3).epsilon(1e-3));
+  // Measured 0.001 % off the hard-stop solution; 0.1 % allowed for the Hertz stops' softness.
+  CHECK(r.contact_open_s == rel(3.23168e-3).epsilon(1e-3));
   // Energy account with the mechanical terms (kinetic, spring and stop potentials, damping and
   // stop heat): tolerance 1e-8 of the run's energies gives a balance near 1e-8.
   CHECK(r.mechanical_heat_J > 0.0);
@@ -170,14 +173,15 @@ TEST_CASE("reference relay: release onset and contact opening on an ideal diode 
 }
 
 TEST_CASE("reference relay: release onset with ideal Zener clamps follows the closed form") {
-  // Physics notes §4.3/§4.5: onsets 0.824 ms (0.7 + 12 V) and 0.516 ms (0.7 + 24 V); the current
-  // is still positive there, so the ideal-source clamp is exact up to the onset.
+  // docs/derivations.md, "The reference relay": onsets 0.824181 ms (0.7 + 12 V) and 0.516132 ms
+  // (0.7 + 24 V); the current is still positive there, so the ideal-source clamp is exact up to
+  // the onset.
   const auto p = reference_relay();
   const double r_ohm = 400.0, i0 = 12.0 / r_ohm, i_rel = relay::static_release_current_A(p);
   const double tau = p.magnetic.inductance_H(p.mechanics.residual_gap_m) / r_ohm;
   for (double vc : {12.7, 24.7}) {
     const double closed_form = tau * std::log((i0 + vc / r_ohm) / (i_rel + vc / r_ohm));
-    CHECK(closed_form == rel(vc < 20.0 ? 0.824e-3 : 0.516e-3).epsilon(1e-3));  // the notes' 3 digits
+    CHECK(closed_form == rel(vc < 20.0 ? 0.824181e-3 : 0.516132e-3).epsilon(5e-6));  // six digits
     // The faster the magnetic force falls, the more the armature's inertia on the soft end of
     // the Hertz stop delays the moment it leaves: measured 0.28 % (12.7 V) and 0.34 % (24.7 V)
     // late; 0.5 % allowed.

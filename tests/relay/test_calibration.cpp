@@ -65,7 +65,7 @@ TEST_CASE("calibrated relay meets its data-sheet values") {
     // finding to 2e-4 in log(time); 1 % is the reporting threshold of the driver checks' half.
     CHECK(std::abs(t.relative_error()) < 0.01);
   }
-  // Closed inductance several times the open one (physics notes §2.7, common practice).
+  // Closed inductance several times the open one (common practice for small relays, from memory).
   const auto& p = cal.parameters;
   const double ratio = p.magnetic.inductance_H(p.mechanics.residual_gap_m) / p.magnetic.inductance_H(p.mechanics.open_gap_m);
   CHECK(ratio > 2.0);
