@@ -27,11 +27,13 @@ K_OVER_Q = 1.380649e-23 / 1.602176634e-19
 VT = K_OVER_Q * (25.0 + 273.15)
 VS, R_OUT, R_B, R_COIL, L, V_HIGH = 12.0, 50.0, 1e3, 400.0, 0.6, 5.0
 T_OFF, T_FALL, C_NODE, G_MIN, I_REL = 100e-6, 10e-9, 1e-12, 1e-12, 3e-3
-IS_Q, BF, BR = 1e-14, 200.0, 3.0
-IS_D, N_D = 5e-9, 1.8
+SWITCH_SATURATION_CURRENT_A, SWITCH_FORWARD_BETA, SWITCH_REVERSE_BETA = 1e-14, 200.0, 3.0
+DIODE_SATURATION_CURRENT_A, DIODE_EMISSION_COEFFICIENT = 5e-9, 1.8
 ZENER = coilkick.part_info("zener_500mw_15v")["parameters"]
-IS_Z, N_Z = ZENER["saturation_current"][0], ZENER["emission_coefficient"][0]
-BV, I_T, N_B = ZENER["breakdown_voltage"][0], ZENER["breakdown_test_current"][0], ZENER["breakdown_knee_emission_coefficient"][0]
+ZENER_SATURATION_CURRENT_A, ZENER_EMISSION_COEFFICIENT = ZENER["saturation_current"][0], ZENER["emission_coefficient"][0]
+ZENER_BREAKDOWN_VOLTAGE_V = ZENER["breakdown_voltage"][0]
+ZENER_TEST_CURRENT_A = ZENER["breakdown_test_current"][0]
+ZENER_KNEE_EMISSION_COEFFICIENT = ZENER["breakdown_knee_emission_coefficient"][0]
 
 
 def scenario(rtol):
@@ -50,7 +52,7 @@ def scenario(rtol):
                                           "breakdown_voltage": 1e5}},
                   "zener": {"overrides": {"series_resistance": 0.0, "transit_time": 0.0, "zero_bias_capacitance": 0.0,
                                           # the knee alone makes the dynamic resistance: no series part
-                                          "breakdown_dynamic_resistance": N_B * VT / I_T}}},
+                                          "breakdown_dynamic_resistance": ZENER_KNEE_EMISSION_COEFFICIENT * VT / ZENER_TEST_CURRENT_A}}},
         "analysis": {"model_level": "physical", "relative_tolerance": rtol},
     })
 
@@ -63,14 +65,14 @@ def v_logic(t):
 
 def rates(t, y):
     v_out, vb, vc, vm, i_l = y
-    i_f = IS_Q * np.expm1(vb / VT)
-    i_r = IS_Q * np.expm1((vb - vc) / VT)
-    ic = (i_f - i_r) * (1.0 - (vb - vc) / 1e12) - i_r / BR - G_MIN * (vb - vc) + G_MIN * vc
-    ib = i_f / BF + i_r / BR + G_MIN * vb + G_MIN * (vb - vc)
+    i_f = SWITCH_SATURATION_CURRENT_A * np.expm1(vb / VT)
+    i_r = SWITCH_SATURATION_CURRENT_A * np.expm1((vb - vc) / VT)
+    ic = (i_f - i_r) * (1.0 - (vb - vc) / 1e12) - i_r / SWITCH_REVERSE_BETA - G_MIN * (vb - vc) + G_MIN * vc
+    ib = i_f / SWITCH_FORWARD_BETA + i_r / SWITCH_REVERSE_BETA + G_MIN * vb + G_MIN * (vb - vc)
     ud = vc - vm
-    i_d = IS_D * np.expm1(ud / (N_D * VT)) + G_MIN * ud          # switch -> mid
+    i_d = DIODE_SATURATION_CURRENT_A * np.expm1(ud / (DIODE_EMISSION_COEFFICIENT * VT)) + G_MIN * ud          # switch -> mid
     vz = VS - vm                                                  # Zener anode (supply) - cathode (mid)
-    i_anode = IS_Z * np.expm1(vz / (N_Z * VT)) - I_T * np.exp((-vz - BV) / (N_B * VT)) + G_MIN * vz
+    i_anode = ZENER_SATURATION_CURRENT_A * np.expm1(vz / (ZENER_EMISSION_COEFFICIENT * VT)) - ZENER_TEST_CURRENT_A * np.exp((-vz - ZENER_BREAKDOWN_VOLTAGE_V) / (ZENER_KNEE_EMISSION_COEFFICIENT * VT)) + G_MIN * vz
     return [((v_logic(t) - v_out) / R_OUT - (v_out - vb) / R_B) / C_NODE,
             ((v_out - vb) / R_B - ib) / C_NODE,
             (i_l - ic - i_d) / C_NODE,
@@ -82,7 +84,7 @@ def scipy_run(rtol, atol_scale=1.0):
     # On-state DC point. Guess by hand: base ~0.75 V (I_B ~ 4 mA), switch saturated, and the clamp
     # node where the diode's reverse leakage I_s,D meets the Zener's forward branch:
     # V_s − n_Z·V_T·ln(1 + I_s,D/I_s,Z).
-    vm = VS - N_Z * VT * np.log1p(IS_D / IS_Z)
+    vm = VS - ZENER_EMISSION_COEFFICIENT * VT * np.log1p(DIODE_SATURATION_CURRENT_A / ZENER_SATURATION_CURRENT_A)
     dc = root(lambda y: np.array(rates(0.0, y)) * C_NODE, [4.8, 0.75, 0.05, vm, (VS - 0.05) / R_COIL], method="hybr",
               options={"xtol": 1e-14})
     if not dc.success:

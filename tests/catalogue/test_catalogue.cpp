@@ -97,7 +97,7 @@ TEST_CASE("every Zener and TVS of the catalogue breaks down within its tolerance
       const auto p = diode_parameters(rec);
       const double bv = rec.parameter("breakdown_voltage"), tol = rec.rating("breakdown_voltage_tolerance");
       const double it = p.breakdown_test_current_A;
-      // Reverse current below the test current at (1 − tol)·BV and above it at (1 + tol)·BV.
+      // Reverse current below the test current at (1 − tol)·V_br and above it at (1 + tol)·V_br (V_br the breakdown voltage).
       CHECK(-diode_current(p, -(1.0 - tol) * bv) < it);
       CHECK(-diode_current(p, -(1.0 + tol) * bv) > it);
     }

@@ -179,7 +179,7 @@ TEST_CASE("pwl BJT: continuous current across the knee and the active/saturation
 }
 
 TEST_CASE("depletion charge: capacitance continuous where the singular law is linearised") {
-  // Getreu 1976 (from memory): C_j = C_j0/(1 − v/V_bi)^m below FC·V_bi, linear above.
+  // Getreu 1976 (from memory): C_j = C_j0/(1 − v/V_bi)^m below f_c·V_bi (f_c the linearisation fraction), linear above.
   const DepletionParameters d{20e-12, 0.75, 0.33, 0.5};
   using D = Dual<1>;
   const double vf = 0.5 * 0.75, e = 1e-9;

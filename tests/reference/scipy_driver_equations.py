@@ -9,12 +9,14 @@ K_OVER_Q = 1.380649e-23 / 1.602176634e-19  # 2019 SI, exact
 VT = K_OVER_Q * (25.0 + 273.15)
 VS, R_OUT, R_B, R_COIL, V_HIGH = 12.0, 50.0, 1e3, 400.0, 5.0
 T_OFF, T_FALL, C_NODE, G_MIN = 100e-6, 10e-9, 1e-12, 1e-12
-IS_Q, BF, BR, VA = 1e-14, 200.0, 3.0, 1e12        # npn_small_signal_40v (Early effect pushed away)
-IS_D, N_D = 5e-9, 1.8                              # rectifier_1a
+# npn_small_signal_40v (its Early effect pushed away) and rectifier_1a, by their catalogue names.
+SWITCH_SATURATION_CURRENT_A, SWITCH_FORWARD_BETA, SWITCH_REVERSE_BETA = 1e-14, 200.0, 3.0
+SWITCH_EARLY_VOLTAGE_V = 1e12
+DIODE_SATURATION_CURRENT_A, DIODE_EMISSION_COEFFICIENT = 5e-9, 1.8
 
 # The library-side overrides that make its switch and diode these equations.
 SWITCH_OVERRIDES = {"collector_resistance": 0.0, "base_emitter_capacitance": 0.0, "base_collector_capacitance": 0.0,
-                    "forward_transit_time": 0.0, "reverse_transit_time": 0.0, "forward_early_voltage": VA,
+                    "forward_transit_time": 0.0, "reverse_transit_time": 0.0, "forward_early_voltage": SWITCH_EARLY_VOLTAGE_V,
                     "collector_emitter_breakdown_voltage": 1e4}
 DIODE_OVERRIDES = {"series_resistance": 0.0, "transit_time": 0.0, "zero_bias_capacitance": 0.0, "breakdown_voltage": 1e5}
 
@@ -29,10 +31,10 @@ def v_logic(t):
 
 def currents(vb, vc):
     """Collector and base currents of the NPN (emitter grounded) and the clamp diode's current."""
-    i_f = IS_Q * np.expm1(vb / VT)
-    i_r = IS_Q * np.expm1((vb - vc) / VT)
-    ic = (i_f - i_r) * (1.0 - (vb - vc) / VA) - i_r / BR - G_MIN * (vb - vc) + G_MIN * vc
-    ib = i_f / BF + i_r / BR + G_MIN * vb + G_MIN * (vb - vc)
+    i_f = SWITCH_SATURATION_CURRENT_A * np.expm1(vb / VT)
+    i_r = SWITCH_SATURATION_CURRENT_A * np.expm1((vb - vc) / VT)
+    ic = (i_f - i_r) * (1.0 - (vb - vc) / SWITCH_EARLY_VOLTAGE_V) - i_r / SWITCH_REVERSE_BETA - G_MIN * (vb - vc) + G_MIN * vc
+    ib = i_f / SWITCH_FORWARD_BETA + i_r / SWITCH_REVERSE_BETA + G_MIN * vb + G_MIN * (vb - vc)
     u = vc - VS
-    i_d = IS_D * np.expm1(u / (N_D * VT)) + G_MIN * u
+    i_d = DIODE_SATURATION_CURRENT_A * np.expm1(u / (DIODE_EMISSION_COEFFICIENT * VT)) + G_MIN * u
     return ic, ib, i_d

@@ -116,7 +116,7 @@ TEST_CASE("bad scenario inputs: one clear message with file:line:column each") {
       {"high side without a pull-up", 12, "topology = \"high_side_pnp\"", 11, "key 'switch.pullup_resistor': is required for a high-side switch"},
       {"key given twice", 0, "model_level = \"pwl\"", 21, "TOML syntax"},
       {"huge supply voltage", 3, "voltage = \"1e300 V\"", 3, "key 'supply.voltage': supply.voltage must be at most"},
-      {"unknown model level", 20, "model_level = \"fast\"", 20, "model level must be \"pwl\" or \"physical\""},
+      {"unknown model level", 20, "model_level = \"fast\"", 20, "device models must be \"physical\" or \"piecewise_linear\""},
       {"relative tolerance out of range", 0, "relative_tolerance = 0.5", 21, "key 'analysis.relative_tolerance'"},
       {"array for a value", 3, "voltage = [12]", 3, "must be a number or a quantity string such as \"4.7 kohm\", not an array"},
       {"coil temperature out of range", 10, "temperature = \"300 degC\"", 10, "key 'coil.temperature': coil.temperature must be inside"},
@@ -181,6 +181,25 @@ diode_part = "rectifier_1a"
   const auto& part = test_support::catalogue().part("greenhouse_valve_24v");
   CHECK(s.driver.relay.release_voltage_V == part.parameter("release_voltage"));
   CHECK(s.driver.relay.operate_voltage_V == part.parameter("operate_voltage"));
+}
+
+TEST_CASE("analysis.device_models in our own words, the older analysis.model_level still read, never both") {
+  auto with_line = [](const std::string& line) {
+    auto lines = base_lines();
+    lines[19] = line;  // the model-level line of the base file
+    return join(lines);
+  };
+  using coilkick::devices::ModelLevel;
+  CHECK(read_scenario_text(with_line("device_models = \"piecewise_linear\""), "a.toml", test_support::catalogue()).driver.analysis.model_level ==
+        ModelLevel::pwl);
+  CHECK(read_scenario_text(with_line("device_models = \"physical\""), "b.toml", test_support::catalogue()).driver.analysis.model_level ==
+        ModelLevel::physical);
+  CHECK(read_scenario_text(with_line("model_level = \"pwl\""), "c.toml", test_support::catalogue()).driver.analysis.model_level ==
+        ModelLevel::pwl);
+  CHECK_THROWS_WITH_AS(read_scenario_text(with_line("model_level = \"pwl\"\ndevice_models = \"physical\""), "d.toml",
+                                          test_support::catalogue()),
+                       doctest::Contains("give analysis.device_models (or its older spelling analysis.model_level), not both"),
+                       ScenarioError);
 }
 
 TEST_CASE("a directory given as the scenario file is named as such") {

@@ -34,32 +34,36 @@
 
 namespace coilkick::devices {
 
+// Defaults: an ideal small-signal silicon transistor (no resistances, charges or breakdown);
+// catalogue parts (models/parts) set every value with its source. Sources of the defaults:
+// [ideal] the effect off (chosen); [Si] typical of silicon, from memory; [class] typical of
+// small-signal transistors, from memory.
 struct BjtParameters {
   Polarity polarity = Polarity::n;
-  double saturation_current_A = 1e-14;
-  double forward_beta = 200.0;
-  double reverse_beta = 2.0;
-  double forward_emission_coefficient = 1.0;
-  double reverse_emission_coefficient = 1.0;
-  double forward_early_voltage_V = std::numeric_limits<double>::infinity();
-  double collector_resistance_ohm = 0.0;
-  double base_emitter_capacitance_F = 0.0;  // zero-bias depletion capacitance
-  double base_emitter_built_in_potential_V = 0.75;
-  double base_emitter_grading_coefficient = 0.33;
-  double base_collector_capacitance_F = 0.0;
-  double base_collector_built_in_potential_V = 0.75;
-  double base_collector_grading_coefficient = 0.33;
-  double depletion_linearization_fraction = 0.5;
-  double forward_transit_time_s = 0.0;
-  double reverse_transit_time_s = 0.0;
-  double collector_emitter_breakdown_voltage_V = std::numeric_limits<double>::infinity();
-  double breakdown_test_current_A = 1e-3;
-  double breakdown_dynamic_resistance_ohm = 10.0;
-  double breakdown_knee_emission_coefficient = 1.0;
-  double energy_gap_eV = 1.11;
-  double saturation_current_temperature_exponent = 3.0;
-  double beta_temperature_exponent = 1.5;
-  double nominal_temperature_C = 25.0;
+  double saturation_current_A = 1e-14;             // [class]
+  double forward_beta = 200.0;                     // [class]
+  double reverse_beta = 2.0;                       // [class]
+  double forward_emission_coefficient = 1.0;       // [ideal]
+  double reverse_emission_coefficient = 1.0;       // [ideal]
+  double forward_early_voltage_V = std::numeric_limits<double>::infinity();  // [ideal]
+  double collector_resistance_ohm = 0.0;           // [ideal]
+  double base_emitter_capacitance_F = 0.0;  // zero-bias depletion capacitance; [ideal]
+  double base_emitter_built_in_potential_V = 0.75;       // [Si]
+  double base_emitter_grading_coefficient = 0.33;        // [Si] graded junction
+  double base_collector_capacitance_F = 0.0;             // [ideal]
+  double base_collector_built_in_potential_V = 0.75;     // [Si]
+  double base_collector_grading_coefficient = 0.33;      // [Si] graded junction
+  double depletion_linearization_fraction = 0.5;         // [class] (Getreu 1976, ch. 3, from memory)
+  double forward_transit_time_s = 0.0;                   // [ideal]
+  double reverse_transit_time_s = 0.0;                   // [ideal]
+  double collector_emitter_breakdown_voltage_V = std::numeric_limits<double>::infinity();  // [ideal]
+  double breakdown_test_current_A = 1e-3;                // [class] data sheets rate it at mA
+  double breakdown_dynamic_resistance_ohm = 10.0;        // [class]
+  double breakdown_knee_emission_coefficient = 1.0;      // [ideal]
+  double energy_gap_eV = 1.11;                           // [Si] silicon at 300 K
+  double saturation_current_temperature_exponent = 3.0;  // [Si] (Getreu 1976, ch. 2, from memory)
+  double beta_temperature_exponent = 1.5;                // [class]
+  double nominal_temperature_C = 25.0;             // data-sheet reference temperature (common practice)
   double temperature_C = 25.0;
   // Piecewise-linear level (NaN: derive)
   double base_emitter_knee_voltage_V = std::numeric_limits<double>::quiet_NaN();

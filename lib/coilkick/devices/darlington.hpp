@@ -11,9 +11,9 @@ namespace coilkick::devices {
 
 struct DarlingtonParameters {
   BjtParameters transistor;        // the output transistor; its breakdown applies to the pair
-  double input_area_ratio = 0.1;   // input saturation current = ratio × output's
-  double input_resistor_ohm = 8e3;   // input base–emitter resistor
-  double output_resistor_ohm = 120.0;  // output base–emitter resistor
+  double input_area_ratio = 0.1;   // input saturation current = ratio × output's; typical of the class, from memory
+  double input_resistor_ohm = 8e3;   // input base–emitter resistor; typical of the class, from memory
+  double output_resistor_ohm = 120.0;  // output base–emitter resistor; typical of the class, from memory
 };
 
 void check_darlington_parameters(const std::string& owner, const DarlingtonParameters& p);

@@ -8,7 +8,7 @@
 //     with u = −v, behind R_b = dynamic resistance − n_b·V_T/I_t, placed so that the reverse voltage
 //     at the test current I_t equals the breakdown voltage; the breakdown voltage moves with the
 //     temperature coefficient;
-//   charge at the junction: depletion charge (C_j0, V_bi, m, FC) plus diffusion charge τ_T·I_f;
+//   charge at the junction: depletion charge (zero-bias capacitance C_j0, built-in potential V_bi, grading m, linearisation fraction f_c) plus diffusion charge τ_T·I_f;
 //   a minimum conductance (1e-12 S) across the terminals keeps an off diode's nodes conditioned.
 // Piecewise-linear level: off (minimum conductance) / on (knee voltage + on-resistance) /
 //   breakdown (knee + dynamic resistance), continuous current. The knee and on-resistance are
@@ -24,28 +24,33 @@
 
 namespace coilkick::devices {
 
+// Defaults are those of an ideal silicon junction (no series resistance, no charge, no breakdown);
+// catalogue parts (models/parts) set every value with its source. Sources of the defaults:
+//   [ideal]  the Shockley junction without the effect (chosen: the effect off)
+//   [Si]     typical of silicon junctions, from memory (band gap 1.11 eV: silicon at 300 K)
+//   [class]  typical of the class, from memory
 struct DiodeParameters {
   // Forward conduction
-  double saturation_current_A = 1e-14;
-  double emission_coefficient = 1.0;
-  double series_resistance_ohm = 0.0;
+  double saturation_current_A = 1e-14;             // [class] small-signal junction
+  double emission_coefficient = 1.0;               // [ideal]
+  double series_resistance_ohm = 0.0;              // [ideal]
   // Charge storage
-  double transit_time_s = 0.0;
-  double zero_bias_capacitance_F = 0.0;
-  double built_in_potential_V = 0.7;
-  double grading_coefficient = 0.5;
-  double depletion_linearization_fraction = 0.5;
+  double transit_time_s = 0.0;                     // [ideal]
+  double zero_bias_capacitance_F = 0.0;            // [ideal]
+  double built_in_potential_V = 0.7;               // [Si]
+  double grading_coefficient = 0.5;                // [Si] abrupt junction
+  double depletion_linearization_fraction = 0.5;   // [class] (Getreu 1976, ch. 3, from memory)
   // Temperature
-  double energy_gap_eV = 1.11;
-  double saturation_current_temperature_exponent = 3.0;
-  double nominal_temperature_C = 25.0;
+  double energy_gap_eV = 1.11;                     // [Si]
+  double saturation_current_temperature_exponent = 3.0;  // [Si] (Getreu 1976, ch. 2, from memory)
+  double nominal_temperature_C = 25.0;             // data-sheet reference temperature (common practice)
   double temperature_C = 25.0;
   // Reverse breakdown (infinite: none)
-  double breakdown_voltage_V = std::numeric_limits<double>::infinity();
-  double breakdown_test_current_A = 1e-3;
-  double breakdown_dynamic_resistance_ohm = 1.0;
-  double breakdown_knee_emission_coefficient = 1.0;
-  double breakdown_temperature_coefficient_per_K = 0.0;  // relative change of the voltage per K
+  double breakdown_voltage_V = std::numeric_limits<double>::infinity();  // [ideal]
+  double breakdown_test_current_A = 1e-3;          // [class] small Zeners are specified at mA
+  double breakdown_dynamic_resistance_ohm = 1.0;   // [class]
+  double breakdown_knee_emission_coefficient = 1.0;  // [ideal]
+  double breakdown_temperature_coefficient_per_K = 0.0;  // relative change of the voltage per K; [ideal]
   // Piecewise-linear level (NaN: derive from the physical curve)
   double knee_voltage_V = std::numeric_limits<double>::quiet_NaN();
   double on_resistance_ohm = std::numeric_limits<double>::quiet_NaN();

@@ -8,7 +8,7 @@
 // exponential beyond a critical current is the published junction-limiting technique of the
 // circuit-simulation literature (from memory).
 //
-// Depletion charge: C_j(v) = C_j0/(1 − v/V_bi)^m below FC·V_bi, continued linearly in v above it
+// Depletion charge: C_j(v) = C_j0/(1 − v/V_bi)^m below f_c·V_bi (f_c: the linearisation fraction), continued linearly in v above it
 // (Getreu, "Modeling the Bipolar Transistor", Tektronix 1976, ch. 3, from memory); the charge
 // is its integral, so it is continuous with a continuous capacitance.
 //
@@ -76,7 +76,7 @@ struct DepletionParameters {
   double zero_bias_capacitance_F = 0.0;
   double built_in_potential_V = 0.7;
   double grading_coefficient = 0.5;
-  double linearization_fraction = 0.5;  // FC
+  double linearization_fraction = 0.5;  // f_c: linear above f_c·V_bi (Getreu 1976, ch. 3, from memory)
 };
 
 template <class S>

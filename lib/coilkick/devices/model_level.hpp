@@ -9,7 +9,8 @@ namespace coilkick::devices {
 enum class ModelLevel { pwl, physical };
 enum class Polarity { n, p };  // NPN/NMOS or PNP/PMOS
 
-ModelLevel parse_model_level(const std::string& word);  // "pwl" | "physical", else invalid_argument
+// "physical" | "piecewise_linear" (or its short form "pwl"), else invalid_argument.
+ModelLevel parse_model_level(const std::string& word);
 std::string to_string(ModelLevel level);
 
 }  // namespace coilkick::devices

@@ -24,22 +24,25 @@
 
 namespace coilkick::devices {
 
+// Defaults: an ideal logic-level power MOSFET (no capacitances, no breakdown); catalogue parts
+// (models/parts) set every value with its source. Sources of the defaults: [ideal] the effect
+// off (chosen); [class] typical of small logic-level power MOSFETs, from memory.
 struct MosfetParameters {
   Polarity polarity = Polarity::n;
-  double threshold_voltage_V = 2.0;  // magnitude
-  double transconductance_parameter_A_per_V2 = 1.0;  // K
-  double channel_length_modulation_per_V = 0.0;      // λ
-  double gate_source_capacitance_F = 0.0;
-  double gate_drain_capacitance_F = 0.0;
-  double threshold_temperature_coefficient_V_per_K = -4e-3;
-  double mobility_temperature_exponent = -1.5;
-  double nominal_temperature_C = 25.0;
+  double threshold_voltage_V = 2.0;  // magnitude; [class]
+  double transconductance_parameter_A_per_V2 = 1.0;  // K; [class]
+  double channel_length_modulation_per_V = 0.0;      // λ; [ideal]
+  double gate_source_capacitance_F = 0.0;            // [ideal]
+  double gate_drain_capacitance_F = 0.0;             // [ideal]
+  double threshold_temperature_coefficient_V_per_K = -4e-3;  // [class]
+  double mobility_temperature_exponent = -1.5;       // [class] (lattice scattering, from memory)
+  double nominal_temperature_C = 25.0;               // data-sheet reference temperature (common practice)
   double temperature_C = 25.0;
   DiodeParameters body_diode;  // its breakdown fields are not used: see drain avalanche below
-  double drain_source_breakdown_voltage_V = std::numeric_limits<double>::infinity();
-  double breakdown_test_current_A = 250e-6;
-  double breakdown_dynamic_resistance_ohm = 1.0;
-  double breakdown_knee_emission_coefficient = 1.0;
+  double drain_source_breakdown_voltage_V = std::numeric_limits<double>::infinity();  // [ideal]
+  double breakdown_test_current_A = 250e-6;          // [class] data sheets rate it at 250 µA
+  double breakdown_dynamic_resistance_ohm = 1.0;     // [class]
+  double breakdown_knee_emission_coefficient = 1.0;  // [ideal]
   // Piecewise-linear level (NaN: derive at pwl_gate_drive_V)
   double on_resistance_ohm = std::numeric_limits<double>::quiet_NaN();
   double pwl_transconductance_S = std::numeric_limits<double>::quiet_NaN();

@@ -109,6 +109,8 @@ const std::vector<TextKey>& text_table() {
       {"clamp.zener_part", [](Scenario& s, const std::string& v) { s.driver.clamp.zener_part = v; }},
       {"clamp.tvs_part", [](Scenario& s, const std::string& v) { s.driver.clamp.tvs_part = v; }},
       {"clamp.active_clamp_zener_part", [](Scenario& s, const std::string& v) { s.driver.clamp.active_clamp_zener_part = v; }},
+      {"analysis.device_models", [](Scenario& s, const std::string& v) { s.driver.analysis.model_level = devices::parse_model_level(v); }},
+      // The older spelling of analysis.device_models, still read so that existing files run.
       {"analysis.model_level", [](Scenario& s, const std::string& v) { s.driver.analysis.model_level = devices::parse_model_level(v); }},
   };
   return t;
@@ -220,6 +222,10 @@ class Reader {
     }
     for (const auto& [prefix, node] : pending_overrides_) read_overrides(prefix, *node);
     resolve_thresholds();
+    if (seen_.count("analysis.device_models") && seen_.count("analysis.model_level")) {
+      fail(at("analysis.model_level"), "analysis.model_level",
+           "give analysis.device_models (or its older spelling analysis.model_level), not both");
+    }
     require_keys(doc);
     check_ranges();
     if (s_.driver.relay.armature_model) drivers::freeze_relay_datasheet(s_.driver);
