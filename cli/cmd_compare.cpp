@@ -18,7 +18,7 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
   if (!csv_path.empty()) {
     std::ofstream f(csv_path);
     if (!f) throw std::invalid_argument("--csv: cannot write '" + csv_path + "'");
-    f << "clamp_kind,parts,overall,error";
+    f << csv_caution_comment() << "clamp_kind,parts,overall,error";
     for (const auto& n : drivers::metric_names()) f << "," << n;
     f << "\n";
     for (const auto& r : rows) {

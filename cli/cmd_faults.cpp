@@ -39,7 +39,7 @@ int cmd_faults(const CommonOptions& o, const std::string& csv_path, std::ostream
   if (!csv_path.empty()) {
     std::ofstream f(csv_path);
     if (!f) throw std::invalid_argument("--csv: cannot write '" + csv_path + "'");
-    f << "part,fault,symptoms,node,healthy_on_V,faulty_on_V,healthy_off_V,faulty_off_V\n";
+    f << csv_caution_comment() << "part,fault,symptoms,node,healthy_on_V,faulty_on_V,healthy_off_V,faulty_off_V\n";
     for (const auto& c : rep.faults) {
       std::string sym;
       for (const auto& s : c.symptoms) sym += (sym.empty() ? "" : "; ") + s;

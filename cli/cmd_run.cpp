@@ -42,7 +42,7 @@ void write_waveforms(const drivers::SwitchOffResult& r, const std::string& path)
   if (!f) throw std::invalid_argument("--waveforms: cannot write '" + path + "'");
   const auto& t = *r.transient;
   const auto& c = t.circuit();
-  f << "time_s,switch_voltage_V,coil_current_A,clamp_current_A";
+  f << csv_caution_comment() << "time_s,switch_voltage_V,coil_current_A,clamp_current_A";
   std::vector<std::string> nodes = c.node_names();
   for (const auto& n : nodes) f << ",node_" << n << "_V";
   f << "\n";

@@ -13,6 +13,12 @@ const char* const kCaution =
     "mains loads, wiring and checks belong to qualified people; local codes and licensed practice\n"
     "take precedence over this report.";
 
+const char* const kCautionLine =
+    "Caution: a simulation is not a qualification - build and measure the real driver; mains wiring by qualified "
+    "people; local codes and licensed practice take precedence.";
+
+std::string csv_caution_comment() { return std::string("# ") + kCautionLine + "\n"; }
+
 std::string metric_unit(const std::string& m) {
   static const std::pair<const char*, const char*> suffixes[] = {{"_Hz", "Hz"}, {"_V", "V"}, {"_A", "A"}, {"_J", "J"},
                                                                  {"_W", "W"},   {"_m_per_s", "m/s"}, {"_s", "s"}, {"_ohm", "ohm"}, {"_H", "H"}};

@@ -10,6 +10,11 @@
 namespace coilkick::cli {
 
 extern const char* const kCaution;
+// The caution in one line, for files the commands write: the first line of every CSV (as a
+// comment, "# " + it) and the footer of every SVG chart.
+extern const char* const kCautionLine;
+// "# <caution>\n": the first line of every CSV file a command writes.
+std::string csv_caution_comment();
 
 // The unit of a metric from its name suffix ("_V" -> "V", "_s" -> "s" ...), "" if none.
 std::string metric_unit(const std::string& metric);

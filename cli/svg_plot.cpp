@@ -4,6 +4,8 @@
 #include <cmath>
 #include <sstream>
 
+#include "report_format.hpp"
+
 namespace coilkick::cli {
 namespace {
 
@@ -71,8 +73,8 @@ std::string comparison_svg(const std::vector<drivers::ComparisonRow>& rows, cons
   const Panel top{80, 50, 640, 260, t_end, 0.0, vmax * 1.08};
   const Panel bottom{80, 350, 640, 200, t_end, std::min(0.0, -0.05 * imax), imax * 1.08};
   std::ostringstream o;
-  o << "<svg xmlns='http://www.w3.org/2000/svg' width='940' height='620' font-family='sans-serif'>\n"
-    << "<rect width='940' height='620' fill='white'/>\n"
+  o << "<svg xmlns='http://www.w3.org/2000/svg' width='940' height='640' font-family='sans-serif'>\n"
+    << "<rect width='940' height='640' fill='white'/>\n"
     << "<text x='80' y='30' font-size='16' font-weight='bold'>" << title << "</text>\n";
   axes(o, top, "switch voltage (V)", false);
   axes(o, bottom, "coil current (A)", true);
@@ -102,6 +104,7 @@ std::string comparison_svg(const std::vector<drivers::ComparisonRow>& rows, cons
       << "' font-size='12'>" << drivers::to_string(r.kind) << "</text>\n";
     ++k;
   }
+  o << "<text x='20' y='628' font-size='11' fill='#555'>" << kCautionLine << "</text>\n";
   o << "</svg>\n";
   return o.str();
 }

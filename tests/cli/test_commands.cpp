@@ -12,6 +12,7 @@
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/drivers/metrics.hpp"
 #include "commands.hpp"
+#include "report_format.hpp"
 
 using namespace coilkick;
 using namespace coilkick::cli;
@@ -90,8 +91,10 @@ TEST_CASE("run: readable report with checks and the caution, JSON with every met
     CHECK(j.contains(k));
   }
   std::ifstream w(csv);
-  std::string header;
+  std::string caution, header;
+  std::getline(w, caution);
   std::getline(w, header);
+  CHECK(caution.rfind("# Caution: a simulation is not a qualification", 0) == 0);  // every CSV starts with it
   CHECK(header.rfind("time_s,switch_voltage_V,coil_current_A,clamp_current_A", 0) == 0);
 }
 
@@ -106,12 +109,17 @@ TEST_CASE("compare: every applicable clamp of the scenario, CSV and SVG written"
   }
   std::ifstream c(csv);
   int lines = 0;
-  for (std::string l; std::getline(c, l);) ++lines;
-  CHECK(lines == 9);  // header + 8 clamp kinds
+  std::string first_csv;
+  for (std::string l; std::getline(c, l);) {
+    if (lines++ == 0) first_csv = l;
+  }
+  CHECK(lines == 10);  // caution + header + 8 clamp kinds
+  CHECK(first_csv.rfind("# Caution:", 0) == 0);
   std::ifstream s(svg);
-  std::string first;
-  std::getline(s, first);
-  CHECK(first.rfind("<svg", 0) == 0);
+  std::stringstream chart;
+  chart << s.rdbuf();
+  CHECK(chart.str().rfind("<svg", 0) == 0);
+  CHECK(chart.str().find(kCautionLine) != std::string::npos);  // the chart's footer
 }
 
 TEST_CASE("sweep: CSV with one row per grid point") {
@@ -121,12 +129,30 @@ TEST_CASE("sweep: CSV with one row per grid point") {
   std::ostringstream out;
   CHECK(cmd_sweep(o, {"coil.inductance=0.3:0.6:4", "supply.voltage=11V:13V:2"}, "", out) == 0);
   std::istringstream in(out.str());
-  std::string header;
+  std::string caution, header;
+  std::getline(in, caution);
   std::getline(in, header);
+  CHECK(caution == "# " + std::string(kCautionLine));
   CHECK(header.rfind("coil.inductance,supply.voltage,overall,error,", 0) == 0);
   int rows = 0;
   for (std::string l; std::getline(in, l);) ++rows;
   CHECK(rows == 8);
+  // --json: the same points, with the caution.
+  o.json = true;
+  std::ostringstream js;
+  CHECK(cmd_sweep(o, {"coil.inductance=0.3:0.6:4", "supply.voltage=11V:13V:2"}, "", js) == 0);
+  const auto j = nlohmann::json::parse(js.str());
+  CHECK(j.at("points").size() == 8);
+  CHECK(j.at("caution") == kCaution);
+  CHECK(j.at("points")[0].at("values").contains("coil.inductance"));
+  CHECK(j.at("points")[0].at("metrics").contains("release_time_s"));
+  // --output: the table in the file, a summary and the caution on the screen.
+  o.json = false;
+  const std::string file = scratch("sweep_out.csv", "");
+  std::ostringstream summary;
+  CHECK(cmd_sweep(o, {"coil.inductance=0.3:0.6:4"}, file, summary) == 0);
+  CHECK(summary.str().find("4 points written to") != std::string::npos);
+  CHECK(summary.str().find(kCaution) != std::string::npos);
 }
 
 TEST_CASE("tolerance: summary, worst cases, and the same JSON on 1 and 2 threads") {
@@ -230,7 +256,9 @@ TEST_CASE("faults: readings grouped by symptom, JSON and CSV") {
   CHECK(j.at("healthy").at("readings").contains("switch"));
   CHECK(j.at("by_symptom").contains("relay never operates"));
   std::ifstream f(csv);
-  std::string header;
+  std::string caution, header;
+  std::getline(f, caution);
   std::getline(f, header);
+  CHECK(caution == "# " + std::string(kCautionLine));
   CHECK(header == "part,fault,symptoms,node,healthy_on_V,faulty_on_V,healthy_off_V,faulty_off_V");
 }
