@@ -1,0 +1,32 @@
+#pragma once
+// Error norm and step-size control of the transient: a per-state scale (absolute tolerance of
+// the state's unit + relative tolerance × its size) in a max norm, and the predictive controller
+// of Gustafsson (as in Hairer & Wanner, Solving ODEs II, 2nd ed., §IV.8) for the fourth-order step.
+#include <vector>
+
+#include <Eigen/Dense>
+
+namespace coilkick::engine {
+
+struct StepError {
+  double norm = 0.0;     // max over states of |error| / scale; a step is accepted at <= 1
+  bool finite = true;    // false: a state or its error became NaN or infinite
+  int worst_state = 0;   // where the norm is largest (or the first non-finite one)
+};
+
+StepError scaled_step_error(const Eigen::VectorXd& x, const Eigen::VectorXd& x_new, const Eigen::VectorXd& x_err,
+                            const std::vector<double>& absolute_tolerance, double relative_tolerance);
+
+class StepController {
+ public:
+  // The step to try after a rejection of `dt`.
+  double after_rejection(double dt, const StepError& e);
+  // The step to propose after accepting `dt` with error norm `err`.
+  double after_acceptance(double dt, double err);
+
+ private:
+  double err_old_ = 1.0, dt_old_ = 0.0;
+  bool last_rejected_ = false, first_accepted_ = true;
+};
+
+}  // namespace coilkick::engine
