@@ -42,7 +42,9 @@ const drivers::SwitchOffResult& run(drivers::ClampKind kind) {
 }  // namespace
 
 TEST_CASE("armature driver: energy balance includes the mechanical terms") {
-  // Physics notes §4.4 and §5: ½·L·I0² plus the supply's input equals the heat of clamp, coil,
+  // Energy conservation of the coupled circuit and armature (Tellegen's theorem, Desoer & Kuh,
+  // Basic Circuit Theory, for the circuit; the lumped electromechanical account of Woodson &
+  // Melcher, Electromechanical Dynamics, Part I, §3.1): ½·L·I0² plus the supply's input equals the heat of clamp, coil,
   // switch, armature damping and stops plus what stays stored (field, kinetic, springs).
   // The issue asks for a residual below 0.1 %; at tolerance 1e-7 it is ~3e-8. The mechanical heat
   // is ~1 % of ½·L·I0² here, so leaving it out of the account would fail the check.
@@ -69,8 +71,8 @@ TEST_CASE("armature driver: a plain diode opens the contact later and slower tha
   CHECK(diode.get("contact_open_time_s") > 1.5 * zener.get("contact_open_time_s"));
   CHECK(zener.get("contact_open_time_s") > none.get("contact_open_time_s"));
   CHECK(diode.get("armature_speed_at_contact_open_m_per_s") < 0.99 * zener.get("armature_speed_at_contact_open_m_per_s"));
-  // Release-time extension by the diode over the unclamped coil: commonly quoted 2×–10× (physics
-  // notes §3.6, common practice).
+  // Release-time extension by the diode over the unclamped coil: commonly quoted 2×–10× (common
+  // practice).
   const double extension = diode.get("contact_open_time_s") / none.get("contact_open_time_s");
   CHECK(extension > 1.8);
   CHECK(extension < 10.0);
