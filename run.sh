@@ -6,6 +6,7 @@
 #   ./run.sh bench   build with the benchmarks and run them (never part of the tests)
 #   ./run.sh sanitize  C++ tests under ASan+UBSan, threaded analyses under TSan
 #   ./run.sh fuzz      libFuzzer targets (scenario reader, random networks) for a set time
+#   ./run.sh package   the Debian package (build/coilkick_<version>_<arch>.deb)
 set -euo pipefail
 cd "$(dirname "$0")"
 
@@ -17,6 +18,7 @@ JOBS=${COILKICK_JOBS:-$(nproc)}
 PACKAGES=(cmake g++ make libboost-dev libeigen3-dev libtomlplusplus-dev libcli11-dev nlohmann-json3-dev doctest-dev libbenchmark-dev
           python3 python3-dev pybind11-dev python3-pybind11 python3-numpy python3-scipy python3-pandas
           python3-matplotlib python3-pytest python3-nbclient python3-nbformat python3-ipykernel python3-distributed
+          python3-setuptools python3-wheel python3-pip python3-build python3-venv
           clang-14 libclang-rt-14-dev)
 
 install_missing_packages() {
@@ -93,6 +95,13 @@ case "$cmd" in
     cmake --build build-tsan -j "$JOBS" --target scenario_tests
     (cd build-tsan && TSAN_OPTIONS=halt_on_error=1 ctest --output-on-failure -j 1 -R "sweep|tolerance|suggest")
     ;;
+  package)
+    # Its own build tree: installed under /usr, naming no path of this checkout.
+    install_missing_packages
+    BUILD_DIR=build-package configure_and_build -DCMAKE_INSTALL_PREFIX=/usr -DCOILKICK_EMBED_SOURCE_MODELS=OFF -DCOILKICK_BUILD_TESTS=OFF
+    (cd build-package && cpack -G DEB)
+    ls build-package/coilkick_*.deb
+    ;;
   bench)
     install_missing_packages
     configure_and_build -DCOILKICK_BUILD_BENCH=ON
@@ -102,7 +111,7 @@ case "$cmd" in
     PYTHONPATH="$BUILD_DIR/python" "$PYTHON" bench/reference_transient.py
     ;;
   *)
-    echo "usage: ./run.sh demo|test|build|bench|sanitize|fuzz" >&2
+    echo "usage: ./run.sh demo|test|build|bench|sanitize|fuzz|package" >&2
     exit 2
     ;;
 esac

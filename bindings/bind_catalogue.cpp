@@ -26,6 +26,8 @@ std::shared_ptr<const catalogue::Catalogue> catalogue_for(const std::string& mod
 }
 
 void DefineCatalogue(py::module_& m) {
+  m.def("set_installed_models_directory", &catalogue::set_installed_models_directory, py::arg("path"),
+        "Used by the package when it finds its bundled models beside itself.");
   m.def("default_models_directory", &catalogue::default_models_directory,
         "The models directory used when none is given ($COILKICK_MODELS, else the bundled models/).");
   m.def("part_names", [](const std::string& models_dir, const std::string& family) { return catalogue_for(models_dir)->names(family); },

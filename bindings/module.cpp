@@ -3,6 +3,7 @@
 
 PYBIND11_MODULE(_core, m) {
   m.doc() = "coilkick compiled core: switch-off transients of inductive loads and clamp choice";
+  m.attr("__version__") = COILKICK_VERSION;  // the CMake project version
   coilkick::python::DefineErrors(m);
   coilkick::python::DefineInterrupt(m);
   coilkick::python::DefineCatalogue(m);

@@ -30,8 +30,27 @@ void common(CLI::App* app, CommonOptions& o, bool with_file = true) {
 }
 }  // namespace
 
+// An installed command finds the models it was installed with, wherever the install went:
+// <prefix>/bin/coilkick next to <prefix>/share/coilkick/models (cmake --install, the Debian
+// package), or coilkick/bin/coilkick next to coilkick/models (the Python package).
+void find_installed_models() {
+  namespace fs = std::filesystem;
+  std::error_code ec;
+  const fs::path exe = fs::read_symlink("/proc/self/exe", ec);
+  if (ec) return;
+  for (const fs::path& candidate : {exe.parent_path().parent_path() / "share" / "coilkick" / "models",
+                                    exe.parent_path().parent_path() / "models"}) {
+    if (fs::is_directory(candidate / "parts", ec)) {
+      coilkick::catalogue::set_installed_models_directory(candidate.string());
+      return;
+    }
+  }
+}
+
 int main(int argc, char** argv) {
+  find_installed_models();
   CLI::App app{"coilkick — switch-off transients of relay, solenoid and contactor drivers, and clamp choice"};
+  app.set_version_flag("--version", std::string("coilkick ") + COILKICK_VERSION);
   app.require_subcommand(1);
   CommonOptions o;
   std::string waveforms, csv, plot, output, max_release, max_voltage, time_metric = "release_time_s";
@@ -85,6 +104,8 @@ int main(int argc, char** argv) {
   } catch (const CLI::CallForHelp& e) {
     return app.exit(e);
   } catch (const CLI::CallForAllHelp& e) {
+    return app.exit(e);
+  } catch (const CLI::CallForVersion& e) {
     return app.exit(e);
   } catch (const CLI::RequiredError& e) {
     if (app.get_subcommands().empty() && argc > 1 && argv[1][0] != '-') {

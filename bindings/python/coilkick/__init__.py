@@ -13,9 +13,28 @@ Load a scenario (file or dict in the scenario schema, see README "Scenario files
 `sweep` and `tolerance` take any concurrent.futures-style executor (a dask.distributed Client
 works as one). Plots: coilkick.plot.
 """
+import os as _os
+
+from . import _core
 from ._core import CatalogueError, ScenarioError, SimulationError, default_models_directory, numeric_keys
 from .api import (ComparisonRow, FaultReport, RunResult, Span, ToleranceResult, compare, faults, load_scenario, part_info,
                   part_names, relay_calibration, run, scenario_from_dict, span, suggest, sweep, tolerance)
+
+__version__ = _core.__version__  # the CMake project version, as `coilkick --version` says
+
+
+def _find_installed_models():
+    # An installed package finds the models it was installed with: coilkick/models (pip, wheel)
+    # or <prefix>/share/coilkick/models next to <prefix>/lib/python3/dist-packages/coilkick
+    # (cmake --install, the Debian package). $COILKICK_MODELS still wins.
+    here = _os.path.dirname(_os.path.abspath(__file__))
+    for candidate in (_os.path.join(here, "models"), _os.path.join(here, "..", "..", "..", "..", "share", "coilkick", "models")):
+        if _os.path.isdir(_os.path.join(candidate, "parts")):
+            _core.set_installed_models_directory(_os.path.normpath(candidate))
+            return
+
+
+_find_installed_models()
 
 CAUTION = ("A simulation is not a qualification. Build and measure the real driver at its worst-case supply and "
            "temperature before relying on it. Where relays or contactors switch mains loads, wiring and checks "

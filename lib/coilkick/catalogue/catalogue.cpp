@@ -260,8 +260,18 @@ std::vector<std::string> Catalogue::names(const std::string& family) const {
   return out;
 }
 
+namespace {
+std::string& found_models_directory() {
+  static std::string dir;
+  return dir;
+}
+}  // namespace
+
+void set_installed_models_directory(const std::string& path) { found_models_directory() = path; }
+
 std::string default_models_directory() {
   if (const char* env = std::getenv("COILKICK_MODELS")) return env;
+  if (!found_models_directory().empty()) return found_models_directory();
   namespace fs = std::filesystem;
   if (std::string(COILKICK_SOURCE_MODELS_DIR).size() && fs::is_directory(COILKICK_SOURCE_MODELS_DIR)) {
     return COILKICK_SOURCE_MODELS_DIR;

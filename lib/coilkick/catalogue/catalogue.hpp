@@ -67,9 +67,13 @@ class Catalogue {
   std::map<std::string, PartRecord> parts_;
 };
 
-// The models directory: $COILKICK_MODELS if set, else the source tree's models/ when run from a
-// build tree, else the installed share/coilkick/models.
+// The models directory: $COILKICK_MODELS if set; else the one the program found beside itself
+// (set_installed_models_directory: an installed command or Python package, wherever it was put);
+// else the source tree's models/ when run from a build tree; else share/coilkick/models of the
+// configured install prefix.
 std::string default_models_directory();
+// Called by a host (the command, the Python package) that found its bundled models next to itself.
+void set_installed_models_directory(const std::string& path);
 Catalogue load_default_catalogue();
 
 }  // namespace coilkick::catalogue
