@@ -73,6 +73,40 @@ struct Builder {
     if (clamp) out.clamp_elements.push_back(element);
   }
 
+  // The supply (driver_spec.hpp, SupplySpec): the ideal source is always the first source, named
+  // "supply". Behind a source impedance it sits at "supply_source", behind the reverse-polarity
+  // diode (only) at "supply_in"; the board's rail is always the node "supply".
+  void supply() {
+    const auto& sp = s.supply;
+    auto& net = out.network;
+    const bool impedance = sp.source_resistance_ohm > 0.0 || sp.source_inductance_H > 0.0;
+    const bool diode_in_series = !sp.reverse_polarity_diode_part.empty();
+    const std::string after_impedance = diode_in_series ? "supply_in" : "supply";
+    net.add_voltage_source("supply", impedance ? "supply_source" : after_impedance, engine::Waveform::constant(sp.voltage_V));
+    if (sp.source_inductance_H > 0.0) {
+      net.add_coil("supply_inductance", "supply_source", after_impedance, {sp.source_inductance_H, sp.source_resistance_ohm});
+    } else if (impedance) {
+      net.add_resistor("supply_resistance", "supply_source", after_impedance, sp.source_resistance_ohm);
+    }
+    if (diode_in_series) {
+      const auto& rec = part(sp.reverse_polarity_diode_part, "supply.reverse_polarity_diode_part");
+      if (rec.family != "diode") {
+        throw std::invalid_argument("supply.reverse_polarity_diode_part: part '" + rec.name + "' is a " + rec.family +
+                                    "; a diode is needed here");
+      }
+      net.add(devices::make_diode("reverse_polarity_diode", "supply_in", "supply",
+                                  catalogue::diode_parameters(rec, with_temperature(sp.reverse_polarity_diode_overrides)), level()));
+    }
+    if (sp.bulk_capacitance_F > 0.0) {
+      if (sp.bulk_capacitor_esr_ohm > 0.0) {
+        net.add_resistor("bulk_capacitor_esr", "supply", "bulk_mid", sp.bulk_capacitor_esr_ohm);
+        net.add_capacitor("bulk_capacitor", "bulk_mid", Network::ground, sp.bulk_capacitance_F);
+      } else {
+        net.add_capacitor("bulk_capacitor", "supply", Network::ground, sp.bulk_capacitance_F);
+      }
+    }
+  }
+
   void switch_stage() {
     const auto& sw = s.switch_;
     const auto& rec = part(sw.part, "switch.part");
@@ -238,7 +272,7 @@ BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalo
   check_driver_spec(spec);
   Builder b{spec, parts, {}};
   auto& net = b.out.network;
-  net.add_voltage_source("supply", "supply", engine::Waveform::constant(spec.supply.voltage_V));
+  b.supply();
   const auto& d = spec.drive;
   net.add_voltage_source("logic", "logic", engine::Waveform::edge(d.high_level_V, 0.0, d.switch_off_at_s, d.fall_time_s));
   net.add_resistor("logic_output", "logic", "logic_out", d.output_resistance_ohm);

@@ -78,6 +78,14 @@ void check_driver_spec(const DriverSpec& s) {
   using engine::require_positive;
   require_positive("supply", "voltage_V", s.supply.voltage_V);
   engine::require_closed_range("supply", "tolerance", s.supply.tolerance, 0.0, 0.5);
+  require_non_negative("supply", "source_resistance_ohm", s.supply.source_resistance_ohm);
+  require_non_negative("supply", "source_inductance_H", s.supply.source_inductance_H);
+  require_non_negative("supply", "bulk_capacitance_F", s.supply.bulk_capacitance_F);
+  require_non_negative("supply", "bulk_capacitor_esr_ohm", s.supply.bulk_capacitor_esr_ohm);
+  if (s.supply.source_inductance_H > 0.0 && s.supply.source_resistance_ohm == 0.0 && s.supply.bulk_capacitance_F == 0.0) {
+    // An inductance alone in series with the rail: nothing limits or damps it against the node strays.
+    throw std::invalid_argument("supply: source_inductance_H needs source_resistance_ohm or bulk_capacitance_F too");
+  }
   require_positive("drive", "high_level_V", s.drive.high_level_V);
   require_positive("drive", "output_resistance_ohm", s.drive.output_resistance_ohm);
   require_positive("drive", "rise_time_s", s.drive.rise_time_s);
@@ -109,6 +117,10 @@ void check_driver_spec(const DriverSpec& s) {
     }
   };
   at_most("supply", "voltage_V", s.supply.voltage_V, 1500.0);  // IEC 61810-1 scope ends at 1500 V DC
+  at_most("supply", "source_resistance_ohm", s.supply.source_resistance_ohm, 1e6);
+  at_most("supply", "source_inductance_H", s.supply.source_inductance_H, 1.0);
+  at_most("supply", "bulk_capacitance_F", s.supply.bulk_capacitance_F, 10.0);
+  at_most("supply", "bulk_capacitor_esr_ohm", s.supply.bulk_capacitor_esr_ohm, 1e3);
   at_most("drive", "high_level_V", s.drive.high_level_V, 30.0);
   at_most("coil", "inductance_H", s.coil.inductance_H, 1000.0);
   at_most("coil", "resistance_at_20C_ohm", s.coil.resistance_at_20C_ohm, 1e7);

@@ -15,9 +15,22 @@ namespace coilkick::drivers {
 
 using catalogue::Overrides;
 
+// The supply: an ideal source of voltage_V, optionally behind a source resistance and
+// inductance and a reverse-polarity diode, feeding the board's rail ("supply" node), which may
+// carry a bulk capacitor with its ESR. All zero / empty: the rail is the ideal source itself.
 struct SupplySpec {
   double voltage_V = 24.0;
   double tolerance = 0.0;  // relative, e.g. 0.1 for ±10 % (used by tolerance analysis)
+  double source_resistance_ohm = 0.0;
+  double source_inductance_H = 0.0;
+  double bulk_capacitance_F = 0.0;
+  double bulk_capacitor_esr_ohm = 0.0;
+  std::string reverse_polarity_diode_part;  // catalogue diode in series with the rail; empty: none
+  Overrides reverse_polarity_diode_overrides;
+  // The rail is the ideal source itself (a bulk capacitor across it changes nothing).
+  bool rail_is_ideal() const {
+    return source_resistance_ohm == 0.0 && source_inductance_H == 0.0 && reverse_polarity_diode_part.empty();
+  }
 };
 
 struct DriveSpec {

@@ -42,6 +42,8 @@ const std::vector<std::string>& metric_names() {
       "clamp_current_peak_A", "clamp_energy_J", "coil_resistance_energy_J", "switch_energy_J", "switch_breakdown_energy_J",
       "energy_balance_error", "release_time_s", "current_decay_time_10pct_s", "switch_off_delay_s",
       "ringing_frequency_Hz", "clamp_average_power_W",
+      // the supply rail (0 for an ideal supply)
+      "supply_rail_peak_rise_V", "supply_rail_dip_V", "supply_energy_returned_J",
       // armature model (NaN without it)
       "contact_open_time_s", "armature_speed_at_contact_open_m_per_s", "operate_time_s"};
   return n;

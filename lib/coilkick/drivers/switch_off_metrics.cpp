@@ -121,6 +121,20 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
   m.set("energy_balance_error", off.blocks ? energy_balance_error(r, t_off, x_off, x_end) : kNaN);
   for (const auto& element : b.clamp_part_elements) out.clamp_part_energy_J.push_back(energy({element}));
 
+  {
+    // The board's rail: its highest and lowest voltage after the edge against the on-state rail,
+    // and the net energy that flowed back into the ideal source (negative: it delivered energy).
+    double rise = 0.0, dip = 0.0;
+    if (!spec.supply.rail_is_ideal()) {
+      const double rail_on = c.node_voltage_V("supply", 0.0, on.state.values.data());
+      rise = std::max(0.0, r.event("rail_max").value - rail_on);
+      dip = std::max(0.0, rail_on - r.event("rail_min").value);
+    }
+    m.set("supply_rail_peak_rise_V", rise);
+    m.set("supply_rail_dip_V", dip);
+    const auto k = static_cast<Eigen::Index>(c.state_index("energy:supply.delivered"));
+    m.set("supply_energy_returned_J", off.blocks ? -(x_end[k] - x_off[k]) : kNaN);
+  }
   m.set("release_time_s", std::isnan(i_rel) ? kNaN : since_off(r.event("release")));
   m.set("current_decay_time_10pct_s", since_off(r.event("decay10")));
   m.set("switch_off_delay_s", since_off(r.event("off_delay")));

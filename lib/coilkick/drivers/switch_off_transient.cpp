@@ -32,6 +32,11 @@ std::vector<EventSpec> watched_events(const DriverSpec& spec, const BuiltDriver&
     ev.push_back(EventSpec::crossing("contact_open", Probe::state(c, "coil.gap"), b.armature->mechanics.make_gap_m,
                                      Direction::rising, t_off));
   }
+  if (!spec.supply.rail_is_ideal()) {
+    const Probe rail = Probe::node_voltage(c, "supply");
+    ev.push_back(EventSpec::maximum("rail_max", rail, t_off));
+    ev.push_back(EventSpec::minimum("rail_min", rail, t_off));
+  }
   if (!b.clamp_current_element.empty()) {
     const Probe current = Probe::element_current(c, b.clamp_current_element, 0);
     ev.push_back(EventSpec::maximum("clamp_peak", Probe::using_rates("clamp current", [current](double t, const double* x, const double* rates) {

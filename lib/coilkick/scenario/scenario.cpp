@@ -178,7 +178,8 @@ class Reader {
       }
       if (!done && v.is_table()) {
         // [clamp.zener] etc. hold only their overrides table.
-        const std::vector<std::string> holders{"clamp.diode", "clamp.zener", "clamp.tvs", "clamp.active_clamp_zener"};
+        const std::vector<std::string> holders{"clamp.diode", "clamp.zener", "clamp.tvs", "clamp.active_clamp_zener",
+                                               "supply.reverse_polarity_diode"};
         if (std::find(holders.begin(), holders.end(), key) != holders.end()) {
           s_.locations[key] = loc;
           read_table(key, *v.as_table());

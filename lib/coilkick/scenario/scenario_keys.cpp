@@ -16,6 +16,10 @@ const std::vector<NumericKey>& numeric_table() {
   static const std::vector<NumericKey> t{
       NK("supply.voltage", voltage, "V", driver.supply.voltage_V, "supply: voltage_V"),
       NK("supply.tolerance", ratio, "1", driver.supply.tolerance, "supply: tolerance"),
+      NK("supply.source_resistance", resistance, "ohm", driver.supply.source_resistance_ohm, "supply: source_resistance_ohm"),
+      NK("supply.source_inductance", inductance, "H", driver.supply.source_inductance_H, "supply: source_inductance_H"),
+      NK("supply.bulk_capacitance", capacitance, "F", driver.supply.bulk_capacitance_F, "supply: bulk_capacitance_F"),
+      NK("supply.bulk_capacitor_esr", resistance, "ohm", driver.supply.bulk_capacitor_esr_ohm, "supply: bulk_capacitor_esr_ohm"),
       NK("drive.high_level", voltage, "V", driver.drive.high_level_V, "drive: high_level_V"),
       NK("drive.output_resistance", resistance, "ohm", driver.drive.output_resistance_ohm, "drive: output_resistance_ohm"),
       NK("drive.rise_time", time, "s", driver.drive.rise_time_s, "drive: rise_time_s"),
@@ -78,6 +82,7 @@ const std::vector<TextKey>& text_table() {
       {"coil.part", [](Scenario&, const std::string&) {}},  // handled first, see read_coil_part
       {"switch.topology", [](Scenario& s, const std::string& v) { s.driver.switch_.topology = drivers::parse_topology(v); }},
       {"switch.part", [](Scenario& s, const std::string& v) { s.driver.switch_.part = v; }},
+      {"supply.reverse_polarity_diode_part", [](Scenario& s, const std::string& v) { s.driver.supply.reverse_polarity_diode_part = v; }},
       {"switch.level_shifter_part", [](Scenario& s, const std::string& v) { s.driver.switch_.level_shifter_part = v; }},
       {"clamp.kind", [](Scenario& s, const std::string& v) { s.driver.clamp.kind = drivers::parse_clamp_kind(v); }},
       {"clamp.diode_part", [](Scenario& s, const std::string& v) { s.driver.clamp.diode_part = v; }},
@@ -106,6 +111,9 @@ const std::vector<OverrideTable>& override_tables() {
        [](const Scenario& s) { return s.driver.switch_.part; }},
       {"switch.level_shifter_overrides", [](Scenario& s) -> drivers::Overrides& { return s.driver.switch_.level_shifter_overrides; },
        [](const Scenario& s) { return s.driver.switch_.level_shifter_part; }},
+      {"supply.reverse_polarity_diode.overrides",
+       [](Scenario& s) -> drivers::Overrides& { return s.driver.supply.reverse_polarity_diode_overrides; },
+       [](const Scenario& s) { return s.driver.supply.reverse_polarity_diode_part; }},
       {"clamp.diode.overrides", [](Scenario& s) -> drivers::Overrides& { return s.driver.clamp.diode_overrides; },
        [](const Scenario& s) { return s.driver.clamp.diode_part; }},
       {"clamp.zener.overrides", [](Scenario& s) -> drivers::Overrides& { return s.driver.clamp.zener_overrides; },
