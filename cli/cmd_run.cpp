@@ -99,10 +99,21 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
              {"switch voltage rating", "switch_voltage_rating_V"}, {"peak over rating", "switch_voltage_margin"},
              {"clamp peak current", "clamp_current_peak_A"}, {"energy into the clamp", "clamp_energy_J"},
              {"energy into the coil resistance", "coil_resistance_energy_J"}, {"energy into the switch", "switch_energy_J"},
+             {"  of it in breakdown", "switch_breakdown_energy_J"},
              {"release time", "release_time_s"}, {"current down to 10 %", "current_decay_time_10pct_s"},
              {"switch-off delay", "switch_off_delay_s"}, {"ringing frequency", "ringing_frequency_Hz"},
              {"clamp average power", "clamp_average_power_W"}, {"energy balance error", "energy_balance_error"}},
             r.metrics);
+    if (!d.supply.rail_is_ideal() || !d.extra_parts.empty()) {
+      out << "\n";
+      std::vector<Line> lines;
+      if (!d.supply.rail_is_ideal()) {
+        lines = {{"rail peak rise", "supply_rail_peak_rise_V"}, {"rail dip", "supply_rail_dip_V"},
+                 {"energy returned to the supply", "supply_energy_returned_J"}};
+      }
+      if (!d.extra_parts.empty()) lines.push_back({"energy into the extra parts", "extra_parts_energy_J"});
+      section(out, "Supply rail and extra parts (against the on-state)", lines, r.metrics);
+    }
     if (d.relay.armature_model) {
       out << "\n";
       section(out, "Contacts (armature model calibrated from the coil's data; IEC 61810-1 times, bounce excluded)",

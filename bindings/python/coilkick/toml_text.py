@@ -1,9 +1,10 @@
 """Turns a scenario dict into scenario TOML text, so that dicts and files go through one reader
-and give the same messages. Keys nest as in the file: {"coil": {"inductance": "550 mH"}}."""
+and give the same messages. Keys nest as in the file: {"coil": {"inductance": "550 mH"}}; a list
+of dicts is an array of tables ({"extra_part": [{"name": ..., "between": ["switch", "x"]}]})."""
 import math
 
 
-def _value(v, where):
+def _scalar(v, where):
     if isinstance(v, bool):
         return "true" if v else "false"
     if isinstance(v, (int, float)):
@@ -15,24 +16,41 @@ def _value(v, where):
         return repr(float(v)) if isinstance(v, float) else str(v)
     if isinstance(v, str):
         return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'
-    raise TypeError("scenario key %s: a value must be a number, a string or a boolean, not %s" % (where, type(v).__name__))
+    raise TypeError("scenario key %s: a value must be a number, a string, a boolean or a list of them, not %s"
+                    % (where, type(v).__name__))
+
+
+def _value(v, where):
+    if isinstance(v, (list, tuple)):
+        return "[" + ", ".join(_scalar(x, where) for x in v) + "]"
+    return _scalar(v, where)
+
+
+def _is_table_list(v):
+    return isinstance(v, list) and len(v) > 0 and all(isinstance(x, dict) for x in v)
 
 
 def to_toml(d, _prefix=""):
     """TOML text for a nested dict of scenario sections and keys."""
     if not isinstance(d, dict):
         raise TypeError("a scenario must be a dict of sections, got %s" % type(d).__name__)
-    lines, tables = [], []
+    lines, tables, arrays = [], [], []
     for k, v in d.items():
         if not isinstance(k, str):
             raise TypeError("scenario keys must be strings, got %r" % (k,))
         if isinstance(v, dict):
             tables.append((k, v))
+        elif _is_table_list(v):
+            arrays.append((k, v))
         else:
             lines.append("%s = %s" % (k, _value(v, _prefix + k)))
     for k, v in tables:
         name = _prefix + k
         lines.append("[%s]" % name)
-        body = to_toml(v, name + ".")
-        lines.append(body)
+        lines.append(to_toml(v, name + "."))
+    for k, items in arrays:
+        name = _prefix + k
+        for item in items:
+            lines.append("[[%s]]" % name)
+            lines.append(to_toml(item, name + "."))
     return "\n".join(line for line in lines if line != "") + "\n"

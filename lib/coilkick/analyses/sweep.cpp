@@ -24,6 +24,7 @@ scenario::Dimension key_dimension(const std::string& key, const scenario::Scenar
       return scenario::dimension_of_unit(unit);
     }
   }
+  if (key.rfind("extra_part.", 0) == 0) return scenario::extra_part_dimension(s, key);
   // Part override: validate through a scratch copy, then look the unit up.
   scenario::Scenario probe = s;
   scenario::set_numeric_key(probe, key, 1.0, parts);  // throws with a suggestion if unknown

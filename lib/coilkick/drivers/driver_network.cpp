@@ -2,6 +2,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <map>
+#include <set>
 #include <stdexcept>
 
 #include "coilkick/catalogue/part_parameters.hpp"
@@ -9,6 +11,7 @@
 #include "coilkick/devices/darlington.hpp"
 #include "coilkick/devices/diode.hpp"
 #include "coilkick/devices/mosfet.hpp"
+#include "coilkick/engine/closest_name.hpp"
 
 namespace coilkick::drivers {
 namespace {
@@ -258,6 +261,72 @@ struct Builder {
     if (!out.clamp_elements.empty()) out.clamp_current_element = out.clamp_elements.front();
   }
 
+  // Extra parts (DriverSpec::extra_parts) between the builder's nodes or new ones.
+  void extra_parts() {
+    auto& net = out.network;
+    std::set<std::string> known{Network::ground};
+    for (const auto& e : net.elements()) known.insert(e->terminals().begin(), e->terminals().end());
+    for (const auto& v : net.voltage_sources()) known.insert(v.node);
+    // A new node must join at least two terminals; a single use is a dangling wire or a typo.
+    std::map<std::string, int> uses;
+    for (const auto& x : s.extra_parts) {
+      for (const auto& n : x.nodes) ++uses[n];
+    }
+    const std::vector<std::string> names(known.begin(), known.end());
+    for (const auto& x : s.extra_parts) {
+      const std::string owner = "extra_part '" + x.name + "'";
+      for (const auto& n : x.nodes) {
+        if (!known.count(n) && uses[n] < 2) {
+          throw std::invalid_argument(owner + ": node '" + n + "' is neither a node of the driver nor used by another extra part" +
+                                      engine::did_you_mean(n, names));
+        }
+      }
+      const std::set<std::string> distinct(x.nodes.begin(), x.nodes.end());
+      if (distinct.size() != x.nodes.size()) throw std::invalid_argument(owner + ": joins a node to itself");
+      for (const auto& e : net.elements()) {
+        if (e->name() == x.name) throw std::invalid_argument(owner + ": the name is taken by a part of the driver");
+      }
+      auto need_nodes = [&](std::size_t n, const char* which) {
+        if (x.nodes.size() != n) {
+          throw std::invalid_argument(owner + ": joins " + std::to_string(x.nodes.size()) + " nodes; " + which);
+        }
+      };
+      switch (x.element) {
+        case ExtraElement::resistor:
+          need_nodes(2, "a resistor joins 2");
+          net.add_resistor(x.name, x.nodes[0], x.nodes[1], x.value);
+          break;
+        case ExtraElement::capacitor:
+          need_nodes(2, "a capacitor joins 2");
+          net.add_capacitor(x.name, x.nodes[0], x.nodes[1], x.value);
+          break;
+        case ExtraElement::inductor:
+          need_nodes(2, "an inductor joins 2");
+          net.add_coil(x.name, x.nodes[0], x.nodes[1], {x.value, x.series_resistance_ohm});
+          break;
+        case ExtraElement::part: {
+          const auto& rec = part(x.part, (owner + " part").c_str());
+          const auto o = with_temperature(x.overrides);
+          if (rec.family == "diode" || rec.family == "zener" || rec.family == "tvs") {
+            need_nodes(2, "a diode, Zener or TVS joins 2 (anode, cathode)");
+            net.add(devices::make_diode(x.name, x.nodes[0], x.nodes[1], catalogue::diode_parameters(rec, o), level()));
+          } else if (rec.family == "npn" || rec.family == "pnp") {
+            need_nodes(3, "a transistor joins 3 (collector, base, emitter)");
+            net.add(devices::make_bjt(x.name, x.nodes[0], x.nodes[1], x.nodes[2], catalogue::bjt_parameters(rec, o), level()));
+          } else if (rec.family == "nmos" || rec.family == "pmos") {
+            need_nodes(3, "a MOSFET joins 3 (drain, gate, source)");
+            net.add(devices::make_mosfet(x.name, x.nodes[0], x.nodes[1], x.nodes[2], catalogue::mosfet_parameters(rec, o), level()));
+          } else {
+            throw std::invalid_argument(owner + ": part '" + rec.name + "' is a " + rec.family +
+                                        "; an extra part is a diode, Zener, TVS, NPN, PNP or MOSFET");
+          }
+          break;
+        }
+      }
+      out.extra_elements.push_back(x.name);
+    }
+  }
+
   void snubber(const std::string& near, const std::string& far, const std::string& prefix) {
     const std::string mid = prefix + "_mid";
     resistor(prefix + "_resistor", near, mid, s.clamp.snubber_resistance_ohm, true);
@@ -279,7 +348,18 @@ BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalo
   b.switch_stage();
   b.coil();
   b.clamp();
+  b.extra_parts();
   return std::move(b.out);
+}
+
+std::vector<std::string> driver_node_names(const DriverSpec& spec, const catalogue::Catalogue& parts) {
+  DriverSpec bare = spec;
+  bare.extra_parts.clear();
+  const BuiltDriver b = build_driver_network(bare, parts);
+  std::set<std::string> nodes{Network::ground};
+  for (const auto& e : b.network.elements()) nodes.insert(e->terminals().begin(), e->terminals().end());
+  for (const auto& v : b.network.voltage_sources()) nodes.insert(v.node);
+  return {nodes.begin(), nodes.end()};
 }
 
 }  // namespace coilkick::drivers

@@ -32,6 +32,7 @@ struct BuiltDriver {
   const catalogue::PartRecord* switch_part = nullptr;
   std::vector<const catalogue::PartRecord*> clamp_parts;  // for the rating checks
   std::vector<std::string> clamp_part_elements;           // the element of each of clamp_parts
+  std::vector<std::string> extra_elements;                // the extra parts (DriverSpec::extra_parts), by name
   double coil_resistance_ohm = 0.0;
   // With the armature model: the calibration (the parameters at the data sheet's resistance)
   // and the element's parameters as built (hot winding resistance). Null/empty otherwise.
@@ -42,5 +43,9 @@ struct BuiltDriver {
 // Throws std::invalid_argument naming the field for an impossible combination (e.g. an NPN
 // part on a MOSFET topology), and the catalogue's errors for unknown parts.
 BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalogue& parts);
+
+// The node names of the driver as built for `spec` without its extra parts ("ground" included):
+// what an extra part may join besides new nodes of its own.
+std::vector<std::string> driver_node_names(const DriverSpec& spec, const catalogue::Catalogue& parts);
 
 }  // namespace coilkick::drivers

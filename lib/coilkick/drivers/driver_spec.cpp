@@ -16,6 +16,12 @@ const std::vector<std::pair<std::string, Topology>>& topologies() {
       {"high_side_pmos", Topology::high_side_pmos}};
   return t;
 }
+const std::vector<std::pair<std::string, ExtraElement>>& extra_elements() {
+  static const std::vector<std::pair<std::string, ExtraElement>> e{
+      {"resistor", ExtraElement::resistor}, {"capacitor", ExtraElement::capacitor}, {"inductor", ExtraElement::inductor},
+      {"part", ExtraElement::part}};
+  return e;
+}
 const std::vector<std::pair<std::string, ClampKind>>& clamp_kinds() {
   static const std::vector<std::pair<std::string, ClampKind>> k{
       {"none", ClampKind::none}, {"diode", ClampKind::diode}, {"diode_zener", ClampKind::diode_zener},
@@ -53,6 +59,8 @@ const std::vector<std::string>& topology_names() {
   return n;
 }
 ClampKind parse_clamp_kind(const std::string& word) { return parse(clamp_kinds(), word, "clamp kind"); }
+ExtraElement parse_extra_element(const std::string& word) { return parse(extra_elements(), word, "extra part element"); }
+std::string to_string(ExtraElement e) { return name_of(extra_elements(), e); }
 std::string to_string(ClampKind k) { return name_of(clamp_kinds(), k); }
 const std::vector<ClampKind>& all_clamp_kinds() {
   static const std::vector<ClampKind> k = [] {
@@ -156,6 +164,17 @@ void check_driver_spec(const DriverSpec& s) {
   require_positive("analysis", "logic_pin_current_limit_A", s.analysis.logic_pin_current_limit_A);
   require_positive("analysis", "energy_balance_limit", s.analysis.energy_balance_limit);
   require_positive("analysis", "maximum_wall_time_s", s.analysis.maximum_wall_time_s);
+  for (const auto& x : s.extra_parts) {
+    const std::string owner = "extra_part '" + x.name + "'";
+    if (x.name.empty()) throw std::invalid_argument("extra_part: every extra part needs a name");
+    if (x.element == ExtraElement::part) {
+      if (x.part.empty()) throw std::invalid_argument(owner + ": element \"part\" needs a catalogue part");
+    } else {
+      require_positive(owner, "value", x.value);
+      if (!x.part.empty()) throw std::invalid_argument(owner + ": a " + to_string(x.element) + " takes a value, not a part");
+    }
+    require_non_negative(owner, "series_resistance_ohm", x.series_resistance_ohm);
+  }
 }
 
 CoilSpec coil_spec_from_part(const catalogue::PartRecord& coil) {

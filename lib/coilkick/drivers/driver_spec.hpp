@@ -133,6 +133,25 @@ struct AnalysisSpec {
   double maximum_wall_time_s = 60.0;
 };
 
+// A part the topologies lack (a gate–source Zener, a speed-up capacitor, an emitter resistor, a
+// second coil ...) between named nodes: the builder's (driver_network.hpp lists them) or new ones,
+// which any other name creates (a new node must join at least two terminals).
+enum class ExtraElement { resistor, capacitor, inductor, part };
+ExtraElement parse_extra_element(const std::string& word);
+std::string to_string(ExtraElement e);
+
+struct ExtraPart {
+  std::string name;  // element name in the network, unique
+  ExtraElement element = ExtraElement::resistor;
+  // resistor, capacitor, inductor, diode/Zener/TVS (anode, cathode): 2 nodes; a transistor
+  // (collector or drain, base or gate, emitter or source): 3.
+  std::vector<std::string> nodes;
+  double value = std::numeric_limits<double>::quiet_NaN();  // ohm, F or H by element
+  double series_resistance_ohm = 0.0;                        // inductor: its winding resistance
+  std::string part;                                          // element "part": catalogue name
+  Overrides overrides;
+};
+
 struct DriverSpec {
   std::string name = "driver";
   SupplySpec supply;
@@ -142,6 +161,7 @@ struct DriverSpec {
   ClampSpec clamp;
   RelaySpec relay;
   AnalysisSpec analysis;
+  std::vector<ExtraPart> extra_parts;
 };
 
 // Throws std::invalid_argument naming the field (e.g. "coil.inductance_H must be > 0").

@@ -118,6 +118,7 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
   m.set("coil_resistance_energy_J", energy({"coil"}));
   m.set("switch_energy_J", energy(b.switch_elements));
   m.set("switch_breakdown_energy_J", energy(b.switch_elements, "breakdown_heat"));
+  m.set("extra_parts_energy_J", b.extra_elements.empty() ? 0.0 : energy(b.extra_elements));
   m.set("energy_balance_error", off.blocks ? energy_balance_error(r, t_off, x_off, x_end) : kNaN);
   for (const auto& element : b.clamp_part_elements) out.clamp_part_energy_J.push_back(energy({element}));
 

@@ -55,6 +55,13 @@ EventSpec decayed_event(const DriverSpec& spec, const BuiltDriver& b, const Circ
       spec.clamp.add_rc_snubber_across_coil) {
     c_node += spec.clamp.snubber_capacitance_F;
   }
+  // Extra parts hold energy too: their capacitors counted as if at the switch node (the run then
+  // lasts rather longer than shorter), their inductors by their own currents.
+  std::vector<std::pair<int, double>> extra_inductors;  // state index, H
+  for (const auto& x : spec.extra_parts) {
+    if (x.element == ExtraElement::capacitor) c_node += x.value;
+    if (x.element == ExtraElement::inductor) extra_inductors.emplace_back(c.state_index(x.name + ".current"), x.value);
+  }
   const double l = spec.coil.inductance_H, e0 = 0.5 * l * i0 * i0, vs = spec.supply.voltage_V;
   double frac = 1e-4;
   if (!std::isnan(i_rel)) frac = std::min(frac, 0.25 * (i_rel / i0) * (i_rel / i0));
@@ -64,7 +71,9 @@ EventSpec decayed_event(const DriverSpec& spec, const BuiltDriver& b, const Circ
   return EventSpec::crossing("decayed", Probe("remaining energy", [=, &b, &c](double t, const double* x) {
                                if (gap_i >= 0 && x[gap_i] < make_gap) return e0;
                                const double i = x[coil_i], dv = switch_voltage_V(b, c, t, x) - vs;
-                               return 0.5 * l * i * i + 0.5 * c_node * dv * dv;
+                               double e = 0.5 * l * i * i + 0.5 * c_node * dv * dv;
+                               for (const auto& [k, lx] : extra_inductors) e += 0.5 * lx * x[k] * x[k];
+                               return e;
                              }),
                              frac * e0, Direction::falling, spec.drive.switch_off_at_s + spec.drive.fall_time_s, true);
 }

@@ -75,10 +75,15 @@ class Reader {
         set_text("name", v);
         continue;
       }
+      if (key == "extra_part") {
+        read_extra_parts(v);
+        continue;
+      }
       static const std::vector<std::string> sections{"supply", "drive", "switch", "coil", "clamp", "relay", "analysis", "tolerances"};
       if (std::find(sections.begin(), sections.end(), key) == sections.end()) {
         std::vector<std::string> top = sections;
         top.push_back("name");
+        top.push_back("extra_part");
         fail(where(file_, v), key, "unknown section or key" + engine::did_you_mean(key, top));
       }
       if (!v.is_table()) fail(where(file_, v), key, std::string("must be a table [") + key + "], not " + type_name(v));
@@ -114,6 +119,87 @@ class Reader {
       if (sec != s_.locations.end()) return sec->second;
     }
     return {file_, 1, 1};
+  }
+
+  // [[extra_part]] tables: name, element, between, and value (resistor, capacitor, inductor),
+  // series_resistance (inductor) or part and overrides (element "part").
+  void read_extra_parts(const toml::node& v) {
+    const SourceLocation loc = where(file_, v);
+    if (!v.is_array_of_tables()) fail(loc, "extra_part", std::string("must be an array of tables [[extra_part]], not ") + type_name(v));
+    for (const auto& item : *v.as_array()) {
+      const auto& t = *item.as_table();
+      const SourceLocation at_table = where(file_, item);
+      drivers::ExtraPart x;
+      auto text = [&](const char* field, bool required) -> std::string {
+        const auto* n = t.get(field);
+        if (!n) {
+          if (required) fail(at_table, std::string("extra_part.") + field, "is required in every [[extra_part]]");
+          return "";
+        }
+        if (!n->is_string()) fail(where(file_, *n), std::string("extra_part.") + field, std::string("must be a string, not ") + type_name(*n));
+        return *n->value<std::string>();
+      };
+      x.name = text("name", true);
+      const std::string prefix = "extra_part." + x.name;
+      if (s_.locations.count(prefix)) fail(at_table, prefix, "is given twice (extra part names are unique)");
+      s_.locations[prefix] = at_table;
+      try {
+        x.element = drivers::parse_extra_element(text("element", true));
+      } catch (const std::invalid_argument& e) {
+        fail(where(file_, *t.get("element")), prefix + ".element", e.what());
+      }
+      for (const auto& [k, n] : t) {
+        const std::string field(k.str());
+        const std::string key = prefix + "." + field;
+        const SourceLocation at_field = where(file_, n);
+        s_.locations[key] = at_field;
+        if (field == "name" || field == "element") continue;
+        if (field == "between") {
+          if (!n.is_array()) fail(at_field, key, std::string("must be an array of node names, not ") + type_name(n));
+          for (const auto& node : *n.as_array()) {
+            if (!node.is_string()) fail(at_field, key, "must be an array of node names (strings)");
+            x.nodes.push_back(*node.value<std::string>());
+          }
+        } else if (field == "value") {
+          const Dimension dim = x.element == drivers::ExtraElement::capacitor  ? Dimension::capacitance
+                                : x.element == drivers::ExtraElement::inductor ? Dimension::inductance
+                                                                               : Dimension::resistance;
+          if (x.element == drivers::ExtraElement::part) fail(at_field, key, "a catalogue part takes no value (give overrides)");
+          x.value = quantity_of(n, dim, at_field, key);
+        } else if (field == "series_resistance") {
+          if (x.element != drivers::ExtraElement::inductor) fail(at_field, key, "only an inductor takes a series_resistance");
+          x.series_resistance_ohm = quantity_of(n, Dimension::resistance, at_field, key);
+        } else if (field == "part") {
+          x.part = text("part", false);
+          if (!parts_.has_part(x.part)) fail(at_field, key, "no part named '" + x.part + "' in the catalogue" + engine::did_you_mean(x.part, parts_.names()));
+        } else if (field == "overrides") {
+          if (!n.is_table()) fail(at_field, key, std::string("must be a table of part parameters, not ") + type_name(n));
+        } else {
+          fail(at_field, key, "unknown key" + engine::did_you_mean(field, {"name", "element", "between", "value", "series_resistance", "part", "overrides"}));
+        }
+      }
+      if (x.nodes.empty()) fail(at_table, prefix + ".between", "is required: the nodes the part joins");
+      if (x.element != drivers::ExtraElement::part && std::isnan(x.value)) fail(at_table, prefix + ".value", "is required for a " + drivers::to_string(x.element));
+      if (x.element == drivers::ExtraElement::part && x.part.empty()) fail(at_table, prefix + ".part", "is required for element \"part\"");
+      if (const auto* o = t.get("overrides")) {
+        if (x.part.empty()) fail(where(file_, *o), prefix + ".overrides", "only a catalogue part takes overrides");
+        const auto& rec = parts_.part(x.part);
+        const auto fields = catalogue::parameter_keys(rec.family);
+        std::vector<std::string> names;
+        for (const auto& f : fields) names.push_back(f.first);
+        for (const auto& [pk, pv] : *o->as_table()) {
+          const std::string param(pk.str());
+          const std::string key = prefix + ".overrides." + param;
+          auto it = std::find_if(fields.begin(), fields.end(), [&](const auto& f) { return f.first == param; });
+          if (it == fields.end()) {
+            fail(where(file_, pv), key, "'" + param + "' is not a parameter of " + rec.family + " part '" + x.part + "'" + engine::did_you_mean(param, names));
+          }
+          x.overrides[param] = quantity_of(pv, dimension_of_unit(it->second), where(file_, pv), key);
+          s_.locations[key] = where(file_, pv);
+        }
+      }
+      s_.driver.extra_parts.push_back(x);
+    }
   }
 
   void read_coil_part(const toml::node& n) {

@@ -10,6 +10,7 @@
 
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/drivers/driver_spec.hpp"
+#include "coilkick/scenario/quantity.hpp"
 
 namespace coilkick::scenario {
 
@@ -59,6 +60,10 @@ void set_numeric_key(Scenario& s, const std::string& key, double value, const ca
 std::string with_file_keys(const std::string& message);
 
 std::vector<drivers::ClampKind> applicable_clamp_kinds(const Scenario& s);
+
+// The dimension of an extra part's numeric key ("extra_part.<name>.value": ohm, F or H by its
+// element; ".series_resistance": ohm). Throws ScenarioError if there is no such field.
+Dimension extra_part_dimension(const Scenario& s, const std::string& key);
 
 // Every numeric key with its SI unit symbol, for --help and the README.
 std::vector<std::pair<std::string, std::string>> numeric_keys();

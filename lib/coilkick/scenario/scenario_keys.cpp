@@ -135,6 +135,30 @@ std::vector<std::string> all_key_names() {
   return k;
 }
 
+double* extra_part_field(Scenario& s, const std::string& key) {
+  const std::string prefix = "extra_part.";
+  if (key.rfind(prefix, 0) != 0) return nullptr;
+  const auto dot = key.rfind('.');
+  const std::string name = key.substr(prefix.size(), dot - prefix.size()), field = key.substr(dot + 1);
+  for (auto& x : s.driver.extra_parts) {
+    if (x.name != name) continue;
+    if (field == "value" && x.element != drivers::ExtraElement::part) return &x.value;
+    if (field == "series_resistance" && x.element == drivers::ExtraElement::inductor) return &x.series_resistance_ohm;
+  }
+  return nullptr;
+}
+
+Dimension extra_part_dimension(const Scenario& s, const std::string& key) {
+  for (const auto& x : s.driver.extra_parts) {
+    if (key == "extra_part." + x.name + ".series_resistance") return Dimension::resistance;
+    if (key != "extra_part." + x.name + ".value") continue;
+    if (x.element == drivers::ExtraElement::capacitor) return Dimension::capacitance;
+    if (x.element == drivers::ExtraElement::inductor) return Dimension::inductance;
+    return Dimension::resistance;
+  }
+  throw ScenarioError("key '" + key + "': no numeric field of an extra part of that name");
+}
+
 void set_numeric_key(Scenario& s, const std::string& key, double value, const catalogue::Catalogue& parts) {
   if (!std::isfinite(value)) throw ScenarioError("key '" + key + "': value must be finite");
   for (const auto& n : numeric_table()) {
@@ -160,8 +184,16 @@ void set_numeric_key(Scenario& s, const std::string& key, double value, const ca
     throw ScenarioError("key '" + key + "': '" + pkey + "' is not a parameter of " + rec.family + " part '" + rec.name + "'" +
                         engine::did_you_mean(pkey, names));
   }
+  if (double* field = extra_part_field(s, key)) {
+    *field = value;
+    return;
+  }
   std::vector<std::string> names;
   for (const auto& n : numeric_table()) names.emplace_back(n.key);
+  for (const auto& x : s.driver.extra_parts) {
+    names.push_back("extra_part." + x.name + ".value");
+    if (x.element == drivers::ExtraElement::inductor) names.push_back("extra_part." + x.name + ".series_resistance");
+  }
   throw ScenarioError("key '" + key + "' is not a numeric scenario key (or a part override such as "
                       "clamp.zener.overrides.breakdown_voltage)" + engine::did_you_mean(key, names));
 }

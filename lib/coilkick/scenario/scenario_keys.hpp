@@ -39,4 +39,7 @@ const std::vector<OverrideTable>& override_tables();
 
 std::vector<std::string> all_key_names();
 
+// An extra part's numeric field ("extra_part.<name>.value" or ".series_resistance"), or null.
+double* extra_part_field(Scenario& s, const std::string& key);
+
 }  // namespace coilkick::scenario

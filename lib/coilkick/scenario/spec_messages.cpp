@@ -16,6 +16,17 @@ int line_of(const Scenario& s, const std::string& key) {
 }  // namespace
 
 std::string key_of_message(const std::string& msg, const Scenario& s, const std::set<std::string>& seen) {
+  // An extra part's message names it: point at its field where the message says which.
+  const std::string extra = "extra_part '";
+  if (msg.rfind(extra, 0) == 0) {
+    const std::string name = msg.substr(extra.size(), msg.find('\'', extra.size()) - extra.size());
+    const std::string table = "extra_part." + name;
+    for (const auto& [word, field] : std::vector<std::pair<std::string, std::string>>{
+             {"node", ".between"}, {"joins", ".between"}, {"value", ".value"}, {"part '", ".part"}, {"series_resistance", ".series_resistance"}}) {
+      if (msg.find(word) != std::string::npos && s.locations.count(table + field)) return table + field;
+    }
+    if (s.locations.count(table)) return table;
+  }
   std::string key;
   std::size_t best = 0;
   for (const auto& n : numeric_table()) {
