@@ -189,3 +189,37 @@ TEST_CASE("every fault of both bundled scenarios has a reading with the armature
     }
   }
 }
+
+TEST_CASE("faults of the supply parts and of extra parts: a shorted bulk capacitor takes the rail down") {
+  DriverSpec s = test_support::relay_case(false);
+  s.clamp.kind = ClampKind::diode;
+  s.supply.source_resistance_ohm = 1.0;
+  s.supply.bulk_capacitance_F = 100e-6;
+  s.supply.reverse_polarity_diode_part = "rectifier_1a";
+  ExtraPart r;
+  r.name = "base_pulldown";
+  r.element = ExtraElement::resistor;
+  r.nodes = {"base", "ground"};
+  r.value = 10e3;
+  s.extra_parts = {r};
+  const auto rep = analyse_faults(s, test_support::catalogue());
+  bool bulk_short = false, bulk_open = false, diode_open = false, pulldown_open = false;
+  for (const auto& f : rep.faults) {
+    CAPTURE(f.label());
+    CHECK(f.error.empty());
+    if (f.part == "bulk_capacitor" && f.fault == "shorted") {
+      bulk_short = true;
+      // Nodal analysis: 0.01 ohm across the rail behind 1 ohm leaves it at ~0.1 V (12 V·0.01/1.01
+      // less a diode that barely conducts): no coil current.
+      CHECK(on(f, "supply") < 0.2);
+      CHECK(has(f, "relay never operates"));
+    }
+    bulk_open = bulk_open || (f.part == "bulk_capacitor" && f.fault == "open");
+    diode_open = diode_open || (f.part == "reverse_polarity_diode" && f.fault == "open");
+    pulldown_open = pulldown_open || (f.part == "base_pulldown" && f.fault == "open");
+  }
+  CHECK(bulk_short);
+  CHECK(bulk_open);
+  CHECK(diode_open);
+  CHECK(pulldown_open);
+}

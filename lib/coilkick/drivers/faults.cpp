@@ -1,6 +1,7 @@
 #include "coilkick/drivers/faults.hpp"
 
 #include <cmath>
+#include <set>
 #include <sstream>
 
 #include "coilkick/devices/bjt.hpp"
@@ -191,9 +192,12 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
     turns.out.network.replace(n, std::move(shorted));
     add_case(n, "30 % of turns shorted", turns);
   };
+  const std::set<std::string> extra(healthy.extra_elements.begin(), healthy.extra_elements.end());
   for (const auto& e : healthy.network.elements()) {
     const std::string n = e->name();
     const auto& t = e->terminals();
+    // Capacitors that are parts on the board (not the winding's or the layout's parasitics).
+    const bool board_capacitor = n.find("snubber_capacitor") != std::string::npos || n == "bulk_capacitor" || extra.count(n);
     if (dynamic_cast<const engine::Resistor*>(e.get())) {
       if (n == "logic_output" || n.rfind("switch.", 0) == 0) continue;  // inside the logic chip / the Darlington
       Injector i(healthy);
@@ -205,13 +209,13 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
       shorted.resistor_in_place(n, kShort_ohm);
       add_case(n, "open", open);
       add_case(n, "shorted", shorted);
-    } else if (dynamic_cast<const engine::Capacitor*>(e.get()) && n.find("snubber_capacitor") != std::string::npos) {
+    } else if (dynamic_cast<const engine::Capacitor*>(e.get()) && board_capacitor) {
       Injector open(healthy), shorted(healthy);
       open.resistor_in_place(n, kOpen_ohm);
       shorted.resistor_in_place(n, kShort_ohm);
       add_case(n, "open", open);
       add_case(n, "shorted", shorted);
-    } else if (is_transistor(*e) && (n == "switch" || n == "switch.output" || n == "level_shifter")) {
+    } else if (is_transistor(*e) && (n == "switch" || n == "switch.output" || n == "level_shifter" || extra.count(n))) {
       const bool mos = dynamic_cast<const devices::PhysicalMosfet*>(e.get()) || dynamic_cast<const devices::PwlMosfet*>(e.get());
       Injector ce(healthy), base(healthy), leak(healthy);
       ce.resistor_across(n + ".short", t[0], t[2], kShort_ohm);
@@ -220,6 +224,11 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
       add_case(n, mos ? "gate open" : "base open", base);
       leak.resistor_across(n + ".leak", t[0], t[1], kLeak_ohm);
       add_case(n, mos ? "drain-gate leaky" : "collector-base junction leaky", leak);
+    } else if (dynamic_cast<const engine::Coil*>(e.get()) && n != "coil") {
+      // An extra inductor or the supply's inductance: its winding opens.
+      Injector open(healthy);
+      open.resistor_in_place(n, kOpen_ohm);
+      add_case(n, "open", open);
     } else if (const auto* coil = dynamic_cast<const engine::Coil*>(e.get())) {
       engine::CoilParameters p = coil->parameters();
       p.inductance_H *= (1.0 - kShortedTurns) * (1.0 - kShortedTurns);  // L ∝ N²
