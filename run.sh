@@ -18,7 +18,8 @@ JOBS=${COILKICK_JOBS:-$(nproc)}
 PACKAGES=(cmake g++ make libboost-dev libeigen3-dev libtomlplusplus-dev libcli11-dev nlohmann-json3-dev doctest-dev libbenchmark-dev
           python3 python3-dev pybind11-dev python3-pybind11 python3-numpy python3-scipy python3-pandas
           python3-matplotlib python3-pytest python3-nbclient python3-nbformat python3-ipykernel python3-distributed
-          python3-setuptools python3-wheel python3-pip python3-build python3-venv
+          python3-setuptools python3-wheel python3-pip python3-build python3-venv python3-jinja2
+          chromium poppler-utils fonts-dejavu-core
           clang-14 libclang-rt-14-dev)
 
 install_missing_packages() {

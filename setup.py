@@ -47,6 +47,7 @@ setup(
     version=project_version(),
     packages=["coilkick"],
     package_dir={"coilkick": "bindings/python/coilkick"},
+    package_data={"coilkick": ["review_page.html"]},
     ext_modules=[Extension("coilkick._core", sources=[])],
     cmdclass={"build_ext": CMakeBuild},
     zip_safe=False,

@@ -4,6 +4,7 @@
 
 #include "bindings.hpp"
 #include "coilkick/drivers/compare.hpp"
+#include "coilkick/drivers/driver_network.hpp"
 #include "coilkick/drivers/driver_spec.hpp"
 
 namespace py = pybind11;
@@ -45,6 +46,46 @@ void DefineScenario(py::module_& m) {
             for (auto k : scenario::applicable_clamp_kinds(p.scenario)) out.push_back(drivers::to_string(k));
             return out;
           }, "clamp kinds whose parts the scenario gives (and none)")
+      .def(
+          "with_clamp_kind",
+          [](const PyScenario& p, const std::string& kind) {
+            PyScenario copy = p;
+            copy.scenario.driver.clamp.kind = drivers::parse_clamp_kind(kind);
+            return copy;
+          },
+          py::arg("kind"), "A copy with another clamp kind (the parts the file gives; for local runs).")
+      .def_property_readonly(
+          "switch_part", [](const PyScenario& p) { return p.scenario.driver.switch_.part; }, "The switch's catalogue part.")
+      .def_property_readonly(
+          "zener_part", [](const PyScenario& p) { return p.scenario.driver.clamp.zener_part; }, "The diode + Zener clamp's Zener part.")
+      .def(
+          "elements",
+          [](const PyScenario& p) {
+            const auto b = drivers::build_driver_network(p.scenario.driver, *p.parts);
+            py::list out;
+            for (const auto& e : b.network.elements()) {
+              py::dict d;
+              d["name"] = e->name();
+              d["kind"] = e->kind();
+              d["terminals"] = e->terminals();
+              out.append(d);
+            }
+            for (const auto& s : b.network.voltage_sources()) {
+              py::dict d;
+              d["name"] = s.name;
+              d["kind"] = "voltage source";
+              d["terminals"] = std::vector<std::string>{s.node, "ground"};
+              out.append(d);
+            }
+            py::list used;
+            if (b.switch_part) used.append(b.switch_part->name);
+            for (const auto* part : b.clamp_parts) used.append(part->name);
+            py::dict r;
+            r["elements"] = out;
+            r["parts"] = used;
+            return r;
+          },
+          "The driver's network as built: every element (name, kind, terminals) and the catalogue parts of switch and clamp.")
       .def(
           "with_value",
           [](const PyScenario& p, const std::string& key, double value) {

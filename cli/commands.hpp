@@ -30,6 +30,8 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
 int cmd_sweep(const CommonOptions& o, const std::vector<std::string>& vary, const std::string& output, std::ostream& out);
 int cmd_tolerance(const CommonOptions& o, int samples, unsigned long long seed, std::ostream& out);
 int cmd_faults(const CommonOptions& o, const std::string& csv_path, std::ostream& out);
+// Replaces the process with the Python package's report builder (coilkick/report.py).
+int cmd_report(const CommonOptions& o, const std::string& output, int samples, unsigned long long seed);
 // time_metric: "release_time_s" (coil current below release) or "contact_open_time_s" (armature model).
 int cmd_suggest(const CommonOptions& o, const std::string& max_release_time, const std::string& max_switch_voltage, int top,
                 std::ostream& out, const std::string& time_metric = "release_time_s", const std::vector<std::string>& kinds = {});

@@ -94,6 +94,12 @@ int main(int argc, char** argv) {
   common(faults, o);
   faults->add_option("--csv", csv, "write the readings as CSV to this file");
 
+  auto* rep = app.add_subcommand("report", "the design-review page of the scenario: one self-contained HTML file");
+  common(rep, o);
+  rep->add_option("--output", output, "HTML file to write (default: the scenario's name + .html)");
+  rep->add_option("--samples", samples, "Monte Carlo runs of the tolerance section (default 200; 0: none)")->check(CLI::Range(0, 10000000));
+  rep->add_option("--seed", seed, "random seed of the tolerance section (default 1)");
+
   auto* demo = app.add_subcommand("demo", "compare every clamp on the bundled greenhouse-valve scenario");
   common(demo, o, false);
   demo->add_option("--csv", csv, "write the comparison as CSV to this file");
@@ -110,7 +116,7 @@ int main(int argc, char** argv) {
   } catch (const CLI::RequiredError& e) {
     if (app.get_subcommands().empty() && argc > 1 && argv[1][0] != '-') {
       std::cerr << "coilkick: unknown command '" << argv[1] << "'; the commands are run, compare, sweep, tolerance, suggest, "
-                   "faults, demo (coilkick --help)\n";
+                   "faults, report, demo (coilkick --help)\n";
       return 2;
     }
     app.exit(e);
@@ -127,6 +133,7 @@ int main(int argc, char** argv) {
     if (tol->parsed()) return cmd_tolerance(o, samples, seed, std::cout);
     if (suggest->parsed()) return cmd_suggest(o, max_release, max_voltage, top, std::cout, time_metric, suggest_kinds);
     if (faults->parsed()) return cmd_faults(o, csv, std::cout);
+    if (rep->parsed()) return cmd_report(o, output, rep->count("--samples") ? samples : 200, seed);
     if (demo->parsed()) {
       const std::string models = o.models_dir.empty() ? coilkick::catalogue::default_models_directory() : o.models_dir;
       o.file = (std::filesystem::path(models) / "scenarios" / "greenhouse_valve.toml").string();

@@ -59,6 +59,11 @@ def check_installed(python, command, where, cwd):
     report = json.loads(run([command, "run", os.path.join(got["models"], "scenarios", "greenhouse_valve.toml"), "--json"],
                             cwd=cwd, env=clean_env()))
     assert report["metrics"]["release_time_s"] == pytest.approx(got["release"], rel=1e-12)  # the same computation
+    # The design-review page: the installed command hands over to the installed Python package.
+    page = os.path.join(str(cwd), "review.html")
+    run([command, "report", os.path.join(got["models"], "scenarios", "fan_relay.toml"), "--output", page, "--samples", "0",
+         "--quiet"], cwd=cwd, env=clean_env())
+    assert "<section id=\"checks\">" in open(page, encoding="utf-8").read()
 
 
 def test_pip_install_into_a_virtual_environment(tmp_path, cmake_build_dir):

@@ -13,8 +13,11 @@ import coilkick
 from test_bad_input import valid
 
 
-def _interrupt_after(seconds):
-    timer = threading.Timer(seconds, lambda: os.kill(os.getpid(), signal.SIGINT))
+def _interrupt_after(seconds, sent):
+    def send():
+        sent.append(time.perf_counter())
+        os.kill(os.getpid(), signal.SIGINT)
+    timer = threading.Timer(seconds, send)
     timer.start()
     return timer
 
@@ -25,14 +28,14 @@ def _interrupt_after(seconds):
 ], ids=["tolerance", "sweep"])
 def test_ctrl_c_stops_a_long_python_call_within_a_second(call):
     s = valid()
-    timer = _interrupt_after(0.5)
-    start = time.perf_counter()
+    sent = []
+    timer = _interrupt_after(0.5, sent)
     with pytest.raises(KeyboardInterrupt):
         call(s)
-    elapsed = time.perf_counter() - start
+    stopped = time.perf_counter()
     timer.join()
-    # 200,000 runs take minutes; the interrupt arrives at 0.5 s and must end the call within a second.
-    assert elapsed < 1.5, elapsed
+    # 200,000 runs take minutes; from the signal to the KeyboardInterrupt at most a second.
+    assert stopped - sent[0] < 1.0, stopped - sent[0]
     # The interpreter (and the library) still work.
     assert coilkick.run(s).metrics["release_time_s"] > 0
 

@@ -17,6 +17,7 @@ import os as _os
 
 from . import _core
 from ._core import CatalogueError, ScenarioError, SimulationError, default_models_directory, numeric_keys
+from .review_page import report
 from .api import (ComparisonRow, FaultReport, RunResult, Span, ToleranceResult, compare, faults, load_scenario, part_info,
                   part_names, relay_calibration, run, scenario_from_dict, span, suggest, sweep, tolerance)
 
@@ -42,4 +43,4 @@ CAUTION = ("A simulation is not a qualification. Build and measure the real driv
 
 __all__ = ["CAUTION", "CatalogueError", "ComparisonRow", "RunResult", "ScenarioError", "SimulationError",
            "ToleranceResult", "FaultReport", "compare", "faults", "default_models_directory", "load_scenario", "numeric_keys", "part_info",
-           "part_names", "run", "scenario_from_dict", "Span", "span", "suggest", "sweep", "tolerance"]
+           "part_names", "report", "run", "scenario_from_dict", "Span", "span", "suggest", "sweep", "tolerance"]

@@ -9,6 +9,7 @@ def main():
     if not os.access(exe, os.X_OK):
         sys.stderr.write("coilkick: the bundled program %s is missing; reinstall the package\n" % exe)
         return 2
+    os.environ.setdefault("COILKICK_PYTHON", sys.executable)  # `coilkick report` runs this interpreter
     os.execv(exe, [exe] + sys.argv[1:])
     return 0  # not reached
 
