@@ -81,12 +81,14 @@ void DefineAnalyses(py::module_& m) {
       "tolerance_points",
       [](const PyScenario& s, int samples, unsigned long long seed, const std::vector<int>& indices, int threads) {
         const auto spreads = analyses::scenario_spreads(s.scenario, *s.parts);
-        const auto plan = analyses::tolerance_plan(spreads, samples, seed);
-        for (int i : indices) {
-          if (i < 0 || i >= static_cast<int>(plan.size())) throw std::invalid_argument("tolerance point index out of range");
-        }
+        std::vector<analyses::ToleranceRun> plan;
         std::vector<analyses::RunSummary> out(indices.size());
         run_interruptibly([&] {
+          // The plan too: drawing hundreds of thousands of samples takes a while (and Ctrl-C may come).
+          plan = analyses::tolerance_plan(spreads, samples, seed);
+          for (int i : indices) {
+            if (i < 0 || i >= static_cast<int>(plan.size())) throw std::invalid_argument("tolerance point index out of range");
+          }
           analyses::parallel_for(static_cast<int>(indices.size()), threads_or_default(threads), [&](int k) {
             const auto& run = plan[static_cast<std::size_t>(indices[static_cast<std::size_t>(k)])];
             out[static_cast<std::size_t>(k)] =

@@ -1,5 +1,7 @@
 #include "coilkick/analyses/tolerance.hpp"
 
+#include "coilkick/engine/interrupt.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <random>
@@ -130,6 +132,7 @@ std::vector<ToleranceRun> tolerance_plan(const std::vector<Spread>& spreads, int
     plan.push_back(std::move(run));
   }
   for (int i = 0; i < samples; ++i) {
+    if (i % 4096 == 0) engine::throw_if_interrupted();  // millions of samples take a while
     ToleranceRun run;
     run.label = "sample " + std::to_string(i + 1);
     std::seed_seq sq{static_cast<unsigned>(seed & 0xffffffffu), static_cast<unsigned>(seed >> 32), static_cast<unsigned>(i)};
