@@ -1,7 +1,5 @@
 #include "coilkick/analyses/tolerance.hpp"
 
-#include "coilkick/engine/interrupt.hpp"
-
 #include <algorithm>
 #include <cmath>
 #include <random>
@@ -9,6 +7,7 @@
 
 #include "coilkick/analyses/parallel.hpp"
 #include "coilkick/catalogue/part_parameters.hpp"
+#include "coilkick/engine/interrupt.hpp"
 
 namespace coilkick::analyses {
 namespace {
