@@ -2,6 +2,8 @@
 // TOML), so a bad key in a dict gives the same message as in a file.
 #include <pybind11/stl.h>
 
+#include <algorithm>
+
 #include "bindings.hpp"
 #include "coilkick/drivers/compare.hpp"
 #include "coilkick/drivers/driver_network.hpp"
@@ -77,9 +79,20 @@ void DefineScenario(py::module_& m) {
               d["terminals"] = std::vector<std::string>{s.node, "ground"};
               out.append(d);
             }
+            // Every catalogue part the driver uses, once each.
+            const auto& d = p.scenario.driver;
+            std::vector<std::string> names;
+            auto add = [&names](const std::string& n) {
+              if (!n.empty() && std::find(names.begin(), names.end(), n) == names.end()) names.push_back(n);
+            };
+            add(d.coil.part);
+            if (b.switch_part) add(b.switch_part->name);
+            if (b.high_side) add(d.switch_.level_shifter_part);
+            for (const auto* part : b.clamp_parts) add(part->name);
+            add(d.supply.reverse_polarity_diode_part);
+            for (const auto& x : d.extra_parts) add(x.part);
             py::list used;
-            if (b.switch_part) used.append(b.switch_part->name);
-            for (const auto* part : b.clamp_parts) used.append(part->name);
+            for (const auto& n : names) used.append(n);
             py::dict r;
             r["elements"] = out;
             r["parts"] = used;

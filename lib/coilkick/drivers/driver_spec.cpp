@@ -180,6 +180,7 @@ void check_driver_spec(const DriverSpec& s) {
 CoilSpec coil_spec_from_part(const catalogue::PartRecord& coil) {
   if (coil.family != "coil") throw std::invalid_argument("part '" + coil.name + "' is a " + coil.family + ", not a coil");
   CoilSpec c;
+  c.part = coil.name;
   c.resistance_at_20C_ohm = coil.parameter("resistance_at_20C");
   c.inductance_H = coil.parameter("inductance");
   if (coil.has_parameter("winding_capacitance")) c.winding_capacitance_F = coil.parameter("winding_capacitance");

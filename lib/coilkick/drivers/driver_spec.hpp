@@ -63,6 +63,7 @@ struct SwitchSpec {
 };
 
 struct CoilSpec {
+  std::string part;  // the catalogue coil the values came from ("" if given directly)
   double resistance_at_20C_ohm = 48.0;
   double temperature_C = 20.0;
   double copper_temperature_coefficient_per_K = 0.00393;  // IEC 60028
