@@ -239,7 +239,7 @@ TEST_CASE("numeric keys set by name, part overrides included") {
 }
 
 TEST_CASE("every bundled scenario reads") {
-  for (const char* f : {"greenhouse_valve.toml", "fan_relay.toml"}) {
+  for (const char* f : {"greenhouse_valve.toml", "fan_relay.toml", "greenhouse_valve_rail.toml"}) {
     CAPTURE(f);
     const auto s = read_scenario_file(catalogue::default_models_directory() + "/scenarios/" + f, test_support::catalogue());
     CHECK(!s.driver.name.empty());
