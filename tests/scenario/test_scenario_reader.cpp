@@ -128,6 +128,7 @@ TEST_CASE("bad scenario inputs: one clear message with file:line:column each") {
        "extra_part 'r': value must be finite and > 0"},
       {"extra part with an unknown key", 0, "[[extra_part]]\nname = \"r\"\nelement = \"resistor\"\nvalu = 10", 24,
        "unknown key (did you mean 'value'?)"},
+      {"extra part without its element", 0, "[[extra_part]]\nname = \"r\"\nvalue = 10", 21, "key 'extra_part.element': is required"},
       {"extra part as a table, not an array", 0, "[extra_part]\nname = \"r\"", 21, "must be an array of tables [[extra_part]]"},
       {"a rectifier as the Zener", 18, "zener_part = \"rectifier_1a\"", 18,
        "key 'clamp.zener_part': clamp.zener_part: part 'rectifier_1a' is a diode; a Zener or TVS is needed here"},

@@ -143,8 +143,9 @@ class Reader {
       const std::string prefix = "extra_part." + x.name;
       if (s_.locations.count(prefix)) fail(at_table, prefix, "is given twice (extra part names are unique)");
       s_.locations[prefix] = at_table;
+      const std::string element = text("element", true);  // (a missing one fails here, naming the table)
       try {
-        x.element = drivers::parse_extra_element(text("element", true));
+        x.element = drivers::parse_extra_element(element);
       } catch (const std::invalid_argument& e) {
         fail(where(file_, *t.get("element")), prefix + ".element", e.what());
       }
