@@ -352,14 +352,5 @@ BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalo
   return std::move(b.out);
 }
 
-std::vector<std::string> driver_node_names(const DriverSpec& spec, const catalogue::Catalogue& parts) {
-  DriverSpec bare = spec;
-  bare.extra_parts.clear();
-  const BuiltDriver b = build_driver_network(bare, parts);
-  std::set<std::string> nodes{Network::ground};
-  for (const auto& e : b.network.elements()) nodes.insert(e->terminals().begin(), e->terminals().end());
-  for (const auto& v : b.network.voltage_sources()) nodes.insert(v.node);
-  return {nodes.begin(), nodes.end()};
-}
 
 }  // namespace coilkick::drivers

@@ -44,8 +44,5 @@ struct BuiltDriver {
 // part on a MOSFET topology), and the catalogue's errors for unknown parts.
 BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalogue& parts);
 
-// The node names of the driver as built for `spec` without its extra parts ("ground" included):
-// what an extra part may join besides new nodes of its own.
-std::vector<std::string> driver_node_names(const DriverSpec& spec, const catalogue::Catalogue& parts);
 
 }  // namespace coilkick::drivers

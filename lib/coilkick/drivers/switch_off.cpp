@@ -13,9 +13,9 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Cat
 }
 
 SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b) {
-  const auto circuit = std::make_shared<engine::Circuit>(b.network);
-  const OnState on = solve_on_state(spec, b, *circuit);
-  const OffState off = solve_off_state(spec, b, *circuit, on.coil_current_A);
+  const engine::Circuit circuit(b.network);
+  const OnState on = solve_on_state(spec, b, circuit);
+  const OffState off = solve_off_state(spec, b, circuit, on.coil_current_A);
   const SwitchOffTransient run = run_switch_off_transient(spec, b, circuit, on, off);
   const SwitchOffMeasures measures = measure_switch_off(spec, b, on, off, *run.result);
 

@@ -94,7 +94,6 @@ struct Checker {
       out.push_back(graded("switch_saturated", m.get("switch_saturation_voltage_V"), 0.6 * sat_limit, sat_limit, "V",
                            "on-state switch voltage: a saturated switch drops about 0.1–0.3 V (a Darlington about 1 V); fails "
                            "above " + si(sat_limit, "V")));
-      return;
     }
   }
 

@@ -89,10 +89,8 @@ bool observed(const engine::TransientResult& r, const DriverSpec& spec, double i
 
 }  // namespace
 
-SwitchOffTransient run_switch_off_transient(const DriverSpec& spec, const BuiltDriver& b,
-                                            const std::shared_ptr<const Circuit>& circuit, const OnState& on,
-                                            const OffState& off) {
-  const Circuit& c = *circuit;
+SwitchOffTransient run_switch_off_transient(const DriverSpec& spec, const BuiltDriver& b, const Circuit& c,
+                                            const OnState& on, const OffState& off) {
   const double i0 = on.coil_current_A;
   const double i_rel = release_current_A(spec.coil);
   const double t_edge_end = spec.drive.switch_off_at_s + spec.drive.fall_time_s;

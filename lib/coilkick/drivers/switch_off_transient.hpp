@@ -30,8 +30,7 @@ struct SwitchOffTransient {
 };
 
 // Throws engine::SimulationError if the integration fails.
-SwitchOffTransient run_switch_off_transient(const DriverSpec& spec, const BuiltDriver& b,
-                                            const std::shared_ptr<const engine::Circuit>& circuit, const OnState& on,
-                                            const OffState& off);
+SwitchOffTransient run_switch_off_transient(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c,
+                                            const OnState& on, const OffState& off);
 
 }  // namespace coilkick::drivers
