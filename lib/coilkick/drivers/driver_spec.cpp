@@ -71,6 +71,68 @@ const std::vector<ClampKind>& all_clamp_kinds() {
   return k;
 }
 
+namespace {
+// The peak-and-hold drive (HoldSpec): one way to end the pull-in, one way to set the hold, a
+// period that leaves room for the drive's edges, a hold below the pull-in.
+void check_hold(const DriverSpec& s) {
+  const auto& h = s.hold;
+  const bool any = !std::isnan(h.pull_in_time_s) || !std::isnan(h.pull_in_current_A) || !std::isnan(h.pwm_duty) ||
+                   !std::isnan(h.average_current_A);
+  engine::require_non_negative("hold", "pwm_frequency_Hz", h.pwm_frequency_Hz);
+  if (!h.present()) {
+    if (any) throw std::invalid_argument("hold: pwm_frequency_Hz is needed for a hold (the other hold keys describe its PWM)");
+    return;
+  }
+  if (h.pwm_frequency_Hz > 10e6) {
+    throw std::invalid_argument("hold: pwm_frequency_Hz must be at most 10 MHz (far outside a coil driver), got " +
+                                std::to_string(h.pwm_frequency_Hz));
+  }
+  if (std::isnan(h.pull_in_time_s) == std::isnan(h.pull_in_current_A)) {
+    throw std::invalid_argument("hold: give pull_in_time_s or pull_in_current_A (one of them)");
+  }
+  if (!std::isnan(h.pull_in_time_s)) {
+    engine::require_non_negative("hold", "pull_in_time_s", h.pull_in_time_s);
+    if (h.pull_in_time_s > 100.0) throw std::invalid_argument("hold: pull_in_time_s must be at most 100 s");
+  }
+  const double i_full = s.supply.voltage_V / coil_resistance_ohm(s.coil);
+  if (!std::isnan(h.pull_in_current_A)) {
+    engine::require_positive("hold", "pull_in_current_A", h.pull_in_current_A);
+    if (!(h.pull_in_current_A < i_full)) {
+      throw std::invalid_argument("hold: pull_in_current_A must be below the full-drive current (supply over hot coil resistance, " +
+                                  std::to_string(i_full) + " A), got " + std::to_string(h.pull_in_current_A));
+    }
+  }
+  if (std::isnan(h.pwm_duty) == std::isnan(h.average_current_A)) {
+    throw std::invalid_argument("hold: give pwm_duty or average_current_A (one of them)");
+  }
+  const double T = 1.0 / h.pwm_frequency_Hz;
+  const double edges = s.drive.rise_time_s + s.drive.fall_time_s;
+  if (!std::isnan(h.pwm_duty)) {
+    if (!(h.pwm_duty > 0.0 && h.pwm_duty < 1.0)) {
+      throw std::invalid_argument("hold: pwm_duty must be between 0 and 1 (exclusive), got " + std::to_string(h.pwm_duty));
+    }
+    if (std::min(h.pwm_duty, 1.0 - h.pwm_duty) * T < 2.0 * edges) {
+      throw std::invalid_argument("hold: pwm_frequency_Hz is too high for the drive's edges: an on- or off-time of " +
+                                  std::to_string(std::min(h.pwm_duty, 1.0 - h.pwm_duty) * T) +
+                                  " s is shorter than twice the rise and fall time (" + std::to_string(2.0 * edges) + " s)");
+    }
+  } else {
+    engine::require_positive("hold", "average_current_A", h.average_current_A);
+    if (T < 8.0 * edges) {
+      throw std::invalid_argument("hold: pwm_frequency_Hz is too high for the drive's edges: a period of " + std::to_string(T) +
+                                  " s leaves no room for duties beside rise and fall times of " + std::to_string(edges) + " s");
+    }
+    const double ceiling = std::isnan(h.pull_in_current_A) ? i_full : h.pull_in_current_A;
+    if (!(h.average_current_A < ceiling)) {
+      throw std::invalid_argument(std::string("hold: average_current_A must be below the ") +
+                                  (std::isnan(h.pull_in_current_A) ? "full-drive current (supply over hot coil resistance, "
+                                                                   : "pull-in current (") +
+                                  std::to_string(ceiling) + " A), got " + std::to_string(h.average_current_A));
+    }
+  }
+}
+}  // namespace
+
 double coil_resistance_ohm(const CoilSpec& c) {
   return copper_resistance_ohm(c.resistance_at_20C_ohm, c.temperature_C, c.copper_temperature_coefficient_per_K);
 }
@@ -164,6 +226,7 @@ void check_driver_spec(const DriverSpec& s) {
   require_positive("analysis", "logic_pin_current_limit_A", s.analysis.logic_pin_current_limit_A);
   require_positive("analysis", "energy_balance_limit", s.analysis.energy_balance_limit);
   require_positive("analysis", "maximum_wall_time_s", s.analysis.maximum_wall_time_s);
+  check_hold(s);
   for (const auto& x : s.extra_parts) {
     const std::string owner = "extra_part '" + x.name + "'";
     if (x.name.empty()) throw std::invalid_argument("extra_part: every extra part needs a name");

@@ -43,6 +43,20 @@ struct DriveSpec {
   double period_s = 0.0;
 };
 
+// Peak-and-hold drive: full drive to pull the armature in (for pull_in_time_s, or until the
+// coil current reaches pull_in_current_A), then PWM of the same drive at pwm_frequency_Hz with
+// an on-fraction pwm_duty — or the duty that holds average_current_A — until the final
+// switch-off, which then starts from the hold's periodic steady state at the end of an on-time.
+// pwm_frequency_Hz = 0: no hold (full drive until the switch-off).
+struct HoldSpec {
+  double pull_in_time_s = std::numeric_limits<double>::quiet_NaN();
+  double pull_in_current_A = std::numeric_limits<double>::quiet_NaN();
+  double pwm_frequency_Hz = 0.0;
+  double pwm_duty = std::numeric_limits<double>::quiet_NaN();
+  double average_current_A = std::numeric_limits<double>::quiet_NaN();
+  bool present() const { return pwm_frequency_Hz > 0.0; }
+};
+
 enum class Topology { low_side_npn, low_side_nmos, low_side_darlington, high_side_pnp, high_side_pmos };
 Topology parse_topology(const std::string& word);
 std::string to_string(Topology t);
@@ -163,6 +177,7 @@ struct DriverSpec {
   RelaySpec relay;
   AnalysisSpec analysis;
   std::vector<ExtraPart> extra_parts;
+  HoldSpec hold;
 };
 
 // Throws std::invalid_argument naming the field (e.g. "coil.inductance_H must be > 0").

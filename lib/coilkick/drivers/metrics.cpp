@@ -44,6 +44,10 @@ const std::vector<std::string>& metric_names() {
       "ringing_frequency_Hz", "clamp_average_power_W",
       // the supply rail (0 for an ideal supply)
       "supply_rail_peak_rise_V", "supply_rail_dip_V", "supply_energy_returned_J",
+      // peak-and-hold drive (NaN without it)
+      "hold_pull_in_time_s", "hold_pull_in_current_A", "hold_duty", "hold_average_current_A", "hold_ripple_A",
+      "hold_minimum_current_A", "hold_current_margin", "hold_clamp_average_power_W", "hold_switch_average_power_W",
+      "hold_supply_energy_per_period_J", "hold_clamp_energy_per_period_J",
       // armature model (NaN without it)
       "contact_open_time_s", "armature_speed_at_contact_open_m_per_s", "operate_time_s"};
   return n;

@@ -1,7 +1,9 @@
 #pragma once
 // The main job: one driver from its on-state through one switch-off, in stages that read top
 // to bottom, each in the file that owns it:
-//  1. on-state: the DC operating point with the drive high (on_state.hpp);
+//  1. on-state: the DC operating point with the drive high (on_state.hpp); with a peak-and-hold
+//     drive, the pull-in and the PWM's periodic steady state (hold.hpp), which the switch-off
+//     then starts from;
 //  2. off-state: the DC point the switch-off heads for, and whether it blocks the supply (off_state.hpp);
 //  3. transient: the drive's falling edge at drive.switch_off_at_s, events, stop rule (switch_off_transient.hpp);
 //  4. metrics and waveforms (switch_off_metrics.hpp);
@@ -13,6 +15,7 @@
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/drivers/driver_network.hpp"
 #include "coilkick/drivers/driver_spec.hpp"
+#include "coilkick/drivers/hold.hpp"
 #include "coilkick/drivers/metrics.hpp"
 #include "coilkick/drivers/rating_checks.hpp"
 #include "coilkick/drivers/switch_off_metrics.hpp"
@@ -26,6 +29,7 @@ struct SwitchOffResult {
   std::vector<RatingCheck> checks;
   SwitchOffWaveforms waveforms;
   std::shared_ptr<const engine::TransientResult> transient;  // everything else (all nodes, energies)
+  std::shared_ptr<const HoldResult> hold;                    // with a hold drive (null otherwise)
 };
 
 // Throws std::invalid_argument for a bad description (naming the field) and

@@ -9,6 +9,7 @@ namespace coilkick::drivers {
 namespace {
 
 const double kNaN = std::numeric_limits<double>::quiet_NaN();
+constexpr double kHoldMargin = 1.2;  // lowest hold current over the release current (our choice)
 
 // pass up to `pass_limit`, warn up to `fail_limit`, fail beyond (a NaN value fails).
 RatingCheck graded(const std::string& name, double value, double pass_limit, double fail_limit, const std::string& unit,
@@ -137,11 +138,13 @@ struct Checker {
                    "0.1 % of the coil's stored energy"});
   }
 
-  void coil_checks(double i_rel, double r_coil) {
+  void coil_checks(double i_rel, double r_coil, const HoldResult* hold) {
     if (std::isnan(i_rel)) return;
-    const double i0 = m.get("coil_current_at_switch_off_A");
+    // With a hold the coil must operate on the pull-in; the hold itself has hold_current_margin.
+    const double i0 = hold ? hold->pull_in_end_current_A : m.get("coil_current_at_switch_off_A");
     RatingCheck g{"coil_operates", i0 > i_rel ? CheckStatus::pass : CheckStatus::fail, i0, i_rel, "A",
-                  "on-state coil current against the release current"};
+                  hold ? "coil current at the end of the pull-in against the release current"
+                       : "on-state coil current against the release current"};
     double i_op = spec.coil.operate_current_A;
     if (std::isnan(i_op) && !std::isnan(spec.coil.operate_voltage_V)) i_op = spec.coil.operate_voltage_V / r_coil;
     if (!(i0 > i_rel)) {
@@ -149,21 +152,65 @@ struct Checker {
                  "): the relay would not even hold";
     } else if (!std::isnan(i_op)) {
       g.limit = i_op;
-      g.detail = "on-state coil current against the operate current";
+      g.detail = hold ? "coil current at the end of the pull-in against the operate current"
+                      : "on-state coil current against the operate current";
       g.status = i0 >= i_op ? CheckStatus::pass : CheckStatus::fail;
     }
     out.push_back(g);
   }
 
-  void relay_checks() {
+  void relay_checks(const HoldResult* hold) {
     if (!b.relay_calibration) return;
     const double worst = b.relay_calibration->worst_relative_error();
     out.push_back({"relay_calibration", worst <= 0.02 ? CheckStatus::pass : CheckStatus::warn, worst, 0.02, "1",
                    "largest relative miss of the armature model's calibration targets (operate and release voltage and "
                    "time, closed inductance); above 2 % the contact times are less trustworthy"});
     if (b.armature && std::isnan(m.get("contact_open_time_s"))) {
-      out.push_back({"contact_opens", CheckStatus::fail, kNaN, kNaN, "s", "the make contact did not open within the simulated time"});
+      out.push_back({"contact_opens", CheckStatus::fail, kNaN, kNaN, "s",
+                     hold && !hold->armature_held ? "the make contact opened already in the PWM hold, before the switch-off"
+                                                  : "the make contact did not open within the simulated time"});
     }
+  }
+
+  void hold_checks(const HoldResult& h) {
+    const double i_rel = release_current_A(spec.coil);
+    if (!std::isnan(i_rel)) {
+      const double margin = h.minimum_current_A / i_rel;
+      RatingCheck c{"hold_current_margin", margin >= kHoldMargin ? CheckStatus::pass : margin >= 1.0 ? CheckStatus::warn : CheckStatus::fail,
+                    margin, kHoldMargin, "1",
+                    "lowest coil current of the hold's ripple over the release current " + si(i_rel, "A") +
+                        ": at least 1.2 (our choice: room for supply and temperature spread), fails below 1 (the relay "
+                        "drops out in hold)",
+                    1.0};
+      out.push_back(c);
+    }
+    if (b.armature) {
+      out.push_back({"hold_pull_in", h.armature_pulled_in ? CheckStatus::pass : CheckStatus::fail, h.pull_in_time_s, kNaN, "s",
+                     h.armature_pulled_in ? "the armature closed the make contact during the pull-in"
+                                          : "the armature did not close the make contact during the pull-in: lengthen "
+                                            "hold.pull_in_time or raise hold.pull_in_current"});
+    }
+    const double T = h.period_s;
+    for (std::size_t k = 0; k < b.clamp_parts.size(); ++k) {
+      const auto* part = b.clamp_parts[k];
+      if (!part->has_rating("power") || k >= h.clamp_part_energy_per_period_J.size()) continue;
+      const double lim = part->rating("power");
+      out.push_back(graded("hold_clamp_power:" + part->name, h.clamp_part_energy_per_period_J[k] / T, 0.8 * lim, lim, "W",
+                           "this part's average power in the PWM hold against 80 % of its continuous power rating " +
+                               si(lim, "W") + " (derating: common practice)"));
+    }
+    const double sw_lim = rating("power");
+    if (!std::isnan(sw_lim)) {
+      out.push_back(graded("hold_switch_power", h.switch_energy_per_period_J / T, 0.8 * sw_lim, sw_lim, "W",
+                           "the switch's average power in the PWM hold (conduction and switching) against 80 % of its "
+                           "power rating " + si(sw_lim, "W") + " (derating: common practice)"));
+    }
+    const bool shot = h.steady.method == engine::PeriodicMethod::shooting;
+    out.push_back({"hold_steady_state", shot ? CheckStatus::pass : CheckStatus::warn, h.steady.distance_in_error_scales,
+                   10.0, "1",
+                   shot ? "the hold's periodic steady state by shooting (" + std::to_string(h.steady.newton_iterations) +
+                              " Newton steps, " + std::to_string(h.steady.period_runs) + " periods simulated)"
+                        : h.steady.note + " (" + std::to_string(h.steady.period_runs) + " periods)"});
   }
 
   void run_checks(const OffState& off, bool decay_observed) {
@@ -193,15 +240,17 @@ struct Checker {
 }  // namespace
 
 std::vector<RatingCheck> switch_off_checks(const DriverSpec& spec, const BuiltDriver& b, const SwitchOffMeasures& measures,
-                                           const OffState& off, bool decay_observed, double gate_source_on_V) {
+                                           const OffState& off, bool decay_observed, double gate_source_on_V,
+                                           const HoldResult* hold) {
   Checker k{spec, b, measures.metrics, {}};
   k.switch_ratings();
   k.clamp_ratings(measures.clamp_part_energy_J);
   k.drive_checks();
   k.gate_checks(gate_source_on_V);
   k.breakdown_checks();
-  k.coil_checks(release_current_A(spec.coil), b.coil_resistance_ohm);
-  k.relay_checks();
+  k.coil_checks(release_current_A(spec.coil), b.coil_resistance_ohm, hold);
+  if (hold) k.hold_checks(*hold);
+  k.relay_checks(hold);
   k.run_checks(off, decay_observed);
   return k.out;
 }

@@ -4,32 +4,13 @@
 #include <functional>
 #include <limits>
 
+#include "coilkick/drivers/energy_account.hpp"
 #include "coilkick/drivers/switch_on.hpp"
 
 namespace coilkick::drivers {
 namespace {
 
 const double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-// Heat of the given elements' dissipated channels (all of them, or only the named channel)
-// between two states of the run.
-double heat_between(const engine::TransientResult& r, const Eigen::VectorXd& x0, const Eigen::VectorXd& x1,
-                    const std::vector<std::string>& elements, const std::string& only_channel = "") {
-  const auto& c = r.circuit();
-  double e = 0.0;
-  for (std::size_t k = 0; k < c.power_channels().size(); ++k) {
-    const auto& ch = c.power_channels()[k];
-    if (ch.kind != engine::PowerChannelSpec::Kind::dissipated) continue;
-    if (!only_channel.empty() && ch.name != ch.element + "." + only_channel) continue;
-    for (const auto& el : elements) {
-      if (ch.element == el) {
-        const auto i = static_cast<Eigen::Index>(c.circuit_state_count()) + static_cast<Eigen::Index>(k);
-        e += x1[i] - x0[i];
-      }
-    }
-  }
-  return e;
-}
 
 // Relative error of the energy account over the switch-off window:
 // supplied + stored(t_off) = dissipated + stored(end).
@@ -111,7 +92,7 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
   const Eigen::VectorXd x_off = r.sample(t_off);
   const Eigen::VectorXd x_end = r.states().row(r.states().rows() - 1).transpose();
   auto energy = [&](const std::vector<std::string>& elements, const std::string& channel = "") {
-    return off.blocks ? heat_between(r, x_off, x_end, elements, channel) : kNaN;
+    return off.blocks ? heat_between(c, x_off, x_end, elements, channel) : kNaN;
   };
   const double e_clamp = b.clamp_elements.empty() ? 0.0 : energy(b.clamp_elements);
   m.set("clamp_energy_J", e_clamp);
@@ -133,8 +114,7 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
     }
     m.set("supply_rail_peak_rise_V", rise);
     m.set("supply_rail_dip_V", dip);
-    const auto k = static_cast<Eigen::Index>(c.state_index("energy:supply.delivered"));
-    m.set("supply_energy_returned_J", off.blocks ? -(x_end[k] - x_off[k]) : kNaN);
+    m.set("supply_energy_returned_J", off.blocks ? -supply_energy_between(c, x_off, x_end) : kNaN);
   }
   m.set("release_time_s", std::isnan(i_rel) ? kNaN : since_off(r.event("release")));
   m.set("current_decay_time_10pct_s", since_off(r.event("decay10")));

@@ -80,10 +80,12 @@ EventSpec decayed_event(const DriverSpec& spec, const BuiltDriver& b, const Circ
 
 bool happened(const engine::TransientResult& r, const char* name) { return r.event(name).time_s.has_value(); }
 
-bool observed(const engine::TransientResult& r, const DriverSpec& spec, double i_rel) {
+bool observed(const engine::TransientResult& r, const DriverSpec& spec, double i_rel, double i0) {
   if (!(r.end_time_s() > spec.drive.switch_off_at_s + spec.drive.fall_time_s)) return false;
   if (!happened(r, "decay10")) return false;
-  if (!std::isnan(i_rel) && !happened(r, "release")) return false;
+  // (A switch-off that starts below the release current — a hold that has dropped out — has no
+  // release to see.)
+  if (!std::isnan(i_rel) && i0 > i_rel && !happened(r, "release")) return false;
   return true;  // the contact's opening has its own check (contact_opens)
 }
 
@@ -108,7 +110,7 @@ SwitchOffTransient run_switch_off_transient(const DriverSpec& spec, const BuiltD
     // instead of following it (relay_calibration.cpp); a tenth of the release time bounds it.
     if (b.armature) o.maximum_step_s = 0.1 * release_s;
     out.result = std::make_shared<const engine::TransientResult>(engine::simulate(c, on.state, o, ev));
-    out.decay_observed = off.blocks && observed(*out.result, spec, i_rel);
+    out.decay_observed = off.blocks && observed(*out.result, spec, i_rel, i0);
     // Only an automatic horizon grows, and only while the coil can still de-energise.
     if (out.decay_observed || !automatic || !off.blocks || attempt == kHorizonRetries || span >= kLongestAutomaticSpan_s) {
       return out;

@@ -42,17 +42,6 @@ void check_options(const TransientOptions& o, double t0) {
   if (!(o.event_time_tolerance_s > 0.0)) bad("event_time_tolerance_s", "> 0", o.event_time_tolerance_s);
 }
 
-std::vector<double> absolute_tolerances(const Circuit& c, const TransientOptions& o) {
-  std::vector<double> a;
-  for (const auto& s : c.states()) {
-    if (s.is_energy) a.push_back(o.energy_tolerance_J);
-    else if (s.kind == StateKind::node_voltage) a.push_back(o.voltage_tolerance_V);
-    else if (s.kind == StateKind::branch_current) a.push_back(o.current_tolerance_A);
-    else a.push_back(s.absolute_tolerance);
-  }
-  return a;
-}
-
 std::string describe_state(const Circuit& c, int i, const Eigen::VectorXd& x, const Workspace& w) {
   const auto& s = c.states()[static_cast<std::size_t>(i)];
   std::ostringstream m;
@@ -269,6 +258,17 @@ class TransientRun {
 };
 
 }  // namespace
+
+std::vector<double> absolute_tolerances(const Circuit& c, const TransientOptions& o) {
+  std::vector<double> a;
+  for (const auto& s : c.states()) {
+    if (s.is_energy) a.push_back(o.energy_tolerance_J);
+    else if (s.kind == StateKind::node_voltage) a.push_back(o.voltage_tolerance_V);
+    else if (s.kind == StateKind::branch_current) a.push_back(o.current_tolerance_A);
+    else a.push_back(s.absolute_tolerance);
+  }
+  return a;
+}
 
 TransientResult simulate(const Circuit& circuit, const CircuitState& initial, const TransientOptions& options,
                          const std::vector<EventSpec>& events) {

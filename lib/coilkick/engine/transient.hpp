@@ -38,6 +38,9 @@ struct TransientOptions {
   std::function<void(double)> progress;
 };
 
+// The absolute error allowed on each state (Circuit::states() order) under these options.
+std::vector<double> absolute_tolerances(const Circuit& c, const TransientOptions& o);
+
 // Throws std::invalid_argument for bad options or state, SimulationError for solver failures.
 TransientResult simulate(const Circuit& circuit, const CircuitState& initial,
                          const TransientOptions& options,

@@ -1,0 +1,208 @@
+#include "coilkick/drivers/hold.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <sstream>
+#include <stdexcept>
+
+#include "coilkick/drivers/energy_account.hpp"
+#include "coilkick/drivers/run_options.hpp"
+#include "coilkick/drivers/si_format.hpp"
+#include "coilkick/engine/errors.hpp"
+#include "coilkick/engine/transient.hpp"
+#include "coilkick/relay/armature_operating_point.hpp"
+
+namespace coilkick::drivers {
+namespace {
+
+const double kNaN = std::numeric_limits<double>::quiet_NaN();
+constexpr int kMostDutySteps = 12;
+constexpr double kDutyCurrentTolerance = 1e-5;  // relative, on the average current
+
+// The drive network with the logic source's waveform replaced.
+engine::Network with_logic(const BuiltDriver& b, engine::Waveform w) {
+  engine::Network n = b.network;
+  n.set_source_waveform("logic", std::move(w));
+  return n;
+}
+
+struct HoldSolver {
+  const DriverSpec& spec;
+  const BuiltDriver& b;
+  HoldResult out;
+  double i_full = 0.0;  // supply over hot resistance: scales the tolerances
+
+  engine::TransientOptions options(double stop_s) const {
+    auto o = driver_transient_options(spec, stop_s, i_full);
+    // Armature: see switch_off_transient.cpp (an L-stable step must not damp the snap-over).
+    if (b.armature) o.maximum_step_s = 0.1 * relay_datasheet(spec).release_time_s;
+    return o;
+  }
+
+  // Stage 1: full drive from the off-state until the time or the current of the pull-in.
+  engine::CircuitState pull_in() {
+    const auto& d = spec.drive;
+    const auto& h = spec.hold;
+    const engine::Network net = with_logic(b, engine::Waveform::edge(0.0, d.high_level_V, 0.0, d.rise_time_s));
+    const engine::Circuit c(net);
+    const engine::CircuitState start = relay::operating_point_with_armatures_open(net, c, 0.0);
+    const bool by_current = !std::isnan(h.pull_in_current_A);
+    double stop = by_current ? 0.0 : h.pull_in_time_s;
+    if (by_current) {
+      // Long enough for any coil to approach its full current (20 time constants), and for an
+      // armature to pull in (20 data-sheet operate times).
+      stop = 20.0 * spec.coil.inductance_H / b.coil_resistance_ohm;
+      if (b.armature) stop += 20.0 * relay_datasheet(spec).operate_time_s;
+    }
+    if (!(stop > 0.0)) {  // no pull-in: the hold starts from the off-state
+      out.pull_in_time_s = 0.0;
+      out.pull_in_end_current_A = start.values[c.state_index("coil.current")];
+      out.armature_pulled_in = !b.armature;
+      return start;
+    }
+    const engine::Probe coil = engine::Probe::state(c, "coil.current");
+    std::vector<engine::EventSpec> ev;
+    if (by_current) ev.push_back(engine::EventSpec::crossing("pulled_in", coil, h.pull_in_current_A, engine::Direction::rising, 0.0, true));
+    if (b.armature) {
+      ev.push_back(engine::EventSpec::crossing("contact_made", engine::Probe::state(c, "coil.gap"), b.armature->mechanics.make_gap_m,
+                                               engine::Direction::falling, 0.0));
+    }
+    out.pull_in = std::make_shared<const engine::TransientResult>(engine::simulate(c, start, options(stop), ev));
+    const auto& r = *out.pull_in;
+    if (by_current && !r.event("pulled_in").time_s) {
+      std::ostringstream m;
+      m << "hold: the coil current does not reach hold.pull_in_current (" << format_si(h.pull_in_current_A, "A") << ") within "
+        << format_si(stop, "s") << " of full drive (it reaches " << format_si(r.states().bottomRows(1)(0, c.state_index("coil.current")), "A")
+        << ")";
+      throw engine::SimulationError(m.str());
+    }
+    out.pull_in_time_s = r.end_time_s();
+    const Eigen::VectorXd x = r.states().row(r.states().rows() - 1).transpose();
+    out.pull_in_end_current_A = x[c.state_index("coil.current")];
+    if (b.armature) out.armature_pulled_in = r.event("contact_made").time_s.has_value() || x[c.state_index("coil.gap")] < b.armature->mechanics.make_gap_m;
+    return {r.end_time_s(), x};
+  }
+
+  // The PWM drive: the period starts at the falling edge (phase 0 at t = T), the on-time D·T
+  // runs from the start of the rise to the start of the fall.
+  engine::Network pwm_network(double duty) const {
+    const auto& d = spec.drive;
+    const double T = 1.0 / spec.hold.pwm_frequency_Hz;
+    return with_logic(b, engine::Waveform::pulse_train(0.0, d.high_level_V, T - duty * T, d.rise_time_s, duty * T - d.rise_time_s,
+                                                       d.fall_time_s, T, 0));
+  }
+
+  // Stage 2 for one duty: the steady state, warm-started from `guess` (any time; moved to T).
+  engine::PeriodicSteadyState steady_state(const engine::Circuit& c, const engine::CircuitState& guess) const {
+    const double T = 1.0 / spec.hold.pwm_frequency_Hz;
+    engine::CircuitState g{T, guess.values};
+    engine::PeriodicOptions p;
+    p.period_s = T;
+    return engine::periodic_steady_state(c, g, options(2.0 * T), p);
+  }
+
+  // Stage 3: one steady period, recorded, measured.
+  void measure_period(const engine::Circuit& c, const engine::CircuitState& x_star) {
+    const double T = 1.0 / spec.hold.pwm_frequency_Hz;
+    const engine::Probe coil = engine::Probe::state(c, "coil.current");
+    std::vector<engine::EventSpec> ev{engine::EventSpec::minimum("hold_min", coil, T), engine::EventSpec::maximum("hold_max", coil, T)};
+    out.period = std::make_shared<const engine::TransientResult>(engine::simulate(c, x_star, options(2.0 * T), ev));
+    const auto& r = *out.period;
+    const int k = c.state_index("coil.current");
+    // ∫ i dt over the period, exact for the cubic Hermite interpolant of the accepted points.
+    double integral = 0.0;
+    const auto& t = r.times_s();
+    for (std::size_t j = 1; j < t.size(); ++j) {
+      const double h = t[j] - t[j - 1];
+      const auto a = static_cast<Eigen::Index>(j - 1), z = static_cast<Eigen::Index>(j);
+      integral += 0.5 * h * (r.states()(a, k) + r.states()(z, k)) + h * h / 12.0 * (r.rates()(a, k) - r.rates()(z, k));
+    }
+    out.average_current_A = integral / T;
+    out.minimum_current_A = r.event("hold_min").value;
+    out.maximum_current_A = r.event("hold_max").value;
+    const Eigen::VectorXd x0 = r.states().row(0).transpose(), x1 = r.states().row(r.states().rows() - 1).transpose();
+    out.supply_energy_per_period_J = supply_energy_between(c, x0, x1);
+    out.clamp_energy_per_period_J = b.clamp_elements.empty() ? 0.0 : heat_between(c, x0, x1, b.clamp_elements);
+    out.switch_energy_per_period_J = heat_between(c, x0, x1, b.switch_elements);
+    out.clamp_part_energy_per_period_J.clear();
+    for (const auto& e : b.clamp_part_elements) out.clamp_part_energy_per_period_J.push_back(heat_between(c, x0, x1, {e}));
+  }
+
+  // Stages 2 and 3 at one duty; returns the circuit's steady state.
+  engine::CircuitState hold_at(double duty, const engine::CircuitState& guess) {
+    const engine::Network net = pwm_network(duty);
+    const engine::Circuit c(net);
+    out.steady = steady_state(c, guess);
+    out.duty = duty;
+    measure_period(c, out.steady.state);
+    return out.steady.state;
+  }
+
+  // The duty whose steady state averages hold.average_current: secant on avg(D) − target from
+  // the resistive estimate D = target / full current, kept inside the duties the edges allow.
+  engine::CircuitState hold_for_current(const engine::CircuitState& guess) {
+    const double target = spec.hold.average_current_A;
+    const double T = 1.0 / spec.hold.pwm_frequency_Hz;
+    const double edges = spec.drive.rise_time_s + spec.drive.fall_time_s;
+    const double lo = 2.0 * edges / T, hi = 1.0 - 2.0 * edges / T;
+    auto clamp = [&](double d) { return std::min(hi, std::max(lo, d)); };
+    double d0 = clamp(target / i_full);
+    engine::CircuitState x = hold_at(d0, guess);
+    double f0 = out.average_current_A - target;
+    double d1 = clamp(d0 * target / std::max(out.average_current_A, 1e-12));
+    for (int it = 0; it < kMostDutySteps; ++it) {
+      x = hold_at(d1, x);
+      const double f1 = out.average_current_A - target;
+      if (std::abs(f1) <= kDutyCurrentTolerance * target) return x;
+      const double slope = (f1 - f0) / (d1 - d0);
+      if (!(std::abs(slope) > 0.0) || !std::isfinite(slope)) break;
+      d0 = d1;
+      f0 = f1;
+      const double next = clamp(d1 - f1 / slope);
+      if (next == d1) break;  // pinned at a limit of the duty
+      d1 = next;
+    }
+    std::ostringstream m;
+    m << "hold: no PWM duty between " << lo << " and " << hi << " holds hold.average_current (" << format_si(target, "A")
+      << "); the last duty " << out.duty << " holds " << format_si(out.average_current_A, "A");
+    throw engine::SimulationError(m.str());
+  }
+};
+
+}  // namespace
+
+HoldResult solve_hold(const DriverSpec& spec, const BuiltDriver& b) {
+  if (!spec.hold.present()) throw std::invalid_argument("hold: the description has no hold (hold.pwm_frequency)");
+  HoldSolver s{spec, b, {}};
+  s.i_full = spec.supply.voltage_V / b.coil_resistance_ohm;
+  s.out.period_s = 1.0 / spec.hold.pwm_frequency_Hz;
+  const engine::CircuitState pulled = s.pull_in();
+  const engine::CircuitState steady =
+      std::isnan(spec.hold.average_current_A) ? s.hold_at(spec.hold.pwm_duty, pulled) : s.hold_for_current(pulled);
+  s.out.final_start = {spec.drive.switch_off_at_s, steady.values};
+  if (b.armature) {
+    const engine::Circuit c(b.network);
+    s.out.armature_held = steady.values[c.state_index("coil.gap")] < b.armature->mechanics.make_gap_m;
+  }
+  return std::move(s.out);
+}
+
+void set_hold_metrics(const DriverSpec& spec, const HoldResult* h, Metrics& m) {
+  auto put = [&](const char* name, double v) { m.set(name, h ? v : kNaN); };
+  const double i_rel = release_current_A(spec.coil);
+  const double T = h ? h->period_s : kNaN;
+  put("hold_pull_in_time_s", h ? h->pull_in_time_s : kNaN);
+  put("hold_pull_in_current_A", h ? h->pull_in_end_current_A : kNaN);
+  put("hold_duty", h ? h->duty : kNaN);
+  put("hold_average_current_A", h ? h->average_current_A : kNaN);
+  put("hold_ripple_A", h ? h->maximum_current_A - h->minimum_current_A : kNaN);
+  put("hold_minimum_current_A", h ? h->minimum_current_A : kNaN);
+  put("hold_current_margin", h ? h->minimum_current_A / i_rel : kNaN);
+  put("hold_clamp_average_power_W", h ? h->clamp_energy_per_period_J / T : kNaN);
+  put("hold_switch_average_power_W", h ? h->switch_energy_per_period_J / T : kNaN);
+  put("hold_supply_energy_per_period_J", h ? h->supply_energy_per_period_J : kNaN);
+  put("hold_clamp_energy_per_period_J", h ? h->clamp_energy_per_period_J : kNaN);
+}
+
+}  // namespace coilkick::drivers

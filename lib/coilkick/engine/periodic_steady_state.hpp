@@ -1,0 +1,51 @@
+#pragma once
+// Periodic steady state of a circuit whose sources repeat with a period T (a PWM drive): the
+// state x* at the period's start that one period maps onto itself, Φ_T(x*) = x*.
+//
+// Shooting (Aprille and Trick's method, "Steady-state analysis of nonlinear circuits with
+// periodic inputs", Proc. IEEE 60(1), 1972): Newton on r(x) = Φ_T(x) − x, with the period's
+// sensitivity matrix ∂Φ_T/∂x taken by finite differences of whole periods of the same integrator
+// (one period per state), a halving line search on the scaled residual. A slowly decaying coil
+// (L/R of thousands of periods) needs two or three Newton steps instead of thousands of periods.
+// Where Newton does not converge, the periods are simulated one by one until the state stops
+// moving (the remaining distance estimated from the contraction between periods), and the result
+// says so. Energy accumulators are not part of the state here (they only grow).
+#include <functional>
+#include <string>
+
+#include "coilkick/engine/state.hpp"
+#include "coilkick/engine/transient.hpp"
+
+namespace coilkick::engine {
+
+struct PeriodicOptions {
+  double period_s = 0.0;
+  int maximum_newton_iterations = 12;
+  long maximum_direct_periods = 200'000;
+  // Converged when the last correction (shooting) or the estimated remaining distance (direct)
+  // is within this many error scales of every state (absolute + relative tolerance of the runs).
+  double tolerance_in_error_scales = 10.0;
+  bool allow_shooting = true;  // false: direct periods only (the reference the tests compare with)
+  std::function<void(double)> progress;  // fraction done (direct periods), optional
+};
+
+enum class PeriodicMethod { shooting, direct };
+
+struct PeriodicSteadyState {
+  CircuitState state;             // at the period's start (the guess's time)
+  PeriodicMethod method = PeriodicMethod::shooting;
+  int newton_iterations = 0;
+  long period_runs = 0;           // one-period simulations, sensitivity columns included
+  double distance_in_error_scales = 0.0;  // the convergence measure at the end
+  std::string note;               // why shooting gave way to direct periods (empty otherwise)
+};
+
+// One period from `start` (energies reset to zero): the state at start.time_s + period_s.
+CircuitState period_map(const Circuit& c, const CircuitState& start, const TransientOptions& step_options, double period_s);
+
+// Throws SimulationError if neither shooting nor the direct periods converge, and
+// std::invalid_argument for a non-positive period.
+PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& guess, const TransientOptions& step_options,
+                                          const PeriodicOptions& options);
+
+}  // namespace coilkick::engine
