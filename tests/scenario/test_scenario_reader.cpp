@@ -152,11 +152,29 @@ TEST_CASE("bad scenario inputs: one clear message with file:line:column each") {
       {"time for a length", 0, "[relay]\ncontact_gap = \"0.4 ms\"", 22, "is a time, but a length (m) is expected"},
       {"negative over-travel", 0, "[relay]\nover_travel = \"-0.1 mm\"", 22, "key 'relay.over_travel': relay.over_travel must be inside"},
       {"misspelt relay key", 0, "[relay]\narmature = true", 22, "unknown key (did you mean 'relay.armature_model'?)"},
+      // [hold] appended at line 21, its keys from line 22.
+      {"PWM duty above 1", 0, "[hold]\npull_in_time = \"20 ms\"\npwm_frequency = \"20 kHz\"\npwm_duty = 1.5", 24,
+       "key 'hold.pwm_duty': hold.pwm_duty must be between 0 and 1 (exclusive), got 1.5"},
+      {"PWM duty of 0 %", 0, "[hold]\npull_in_time = \"20 ms\"\npwm_frequency = \"20 kHz\"\npwm_duty = \"0 %\"", 24,
+       "hold.pwm_duty must be between 0 and 1"},
+      {"PWM too fast for the edges", 0, "[hold]\npull_in_time = \"20 ms\"\npwm_frequency = \"5 MHz\"\npwm_duty = 0.1", 23,
+       "key 'hold.pwm_frequency': hold.pwm_frequency is too high for the drive's edges"},
+      {"hold current above the pull-in current", 0,
+       "[hold]\npull_in_current = \"20 mA\"\npwm_frequency = \"20 kHz\"\naverage_current = \"25 mA\"", 24,
+       "key 'hold.average_current': hold.average_current must be below the pull-in current"},
+      {"pull-in current the coil never reaches", 0, "[hold]\npull_in_current = \"1 A\"\npwm_frequency = \"20 kHz\"\npwm_duty = 0.5", 22,
+       "hold.pull_in_current must be below the full-drive current"},
+      {"hold without its PWM frequency", 0, "[hold]\npwm_duty = 0.5", 21, "key 'hold': hold.pwm_frequency is needed for a hold"},
+      {"hold with both duty and average current", 0,
+       "[hold]\npull_in_time = \"20 ms\"\npwm_frequency = \"20 kHz\"\npwm_duty = 0.5\naverage_current = \"10 mA\"", 25,
+       "give hold.pwm_duty or hold.average_current (one of them)"},
+      {"hold with a frequency for the duty", 0, "[hold]\npull_in_time = \"20 ms\"\npwm_frequency = \"20 kHz\"\npwm_duty = \"5 Hz\"", 24,
+       "is a frequency, but a ratio"},
   };
   CHECK(rows.size() >= 30);
   int k = 0;
   for (const auto& r : rows) {
-    CAPTURE(r.what);
+    CAPTURE(std::string(r.what));
     auto lines = base_lines();
     if (r.replace_line > 0) lines[static_cast<std::size_t>(r.replace_line - 1)] = r.text;
     else lines.push_back(r.text);

@@ -30,6 +30,7 @@ engine::Network with_logic(const BuiltDriver& b, engine::Waveform w) {
 struct HoldSolver {
   const DriverSpec& spec;
   const BuiltDriver& b;
+  bool allow_shooting = true;
   HoldResult out;
   double i_full = 0.0;  // supply over hot resistance: scales the tolerances
 
@@ -99,6 +100,7 @@ struct HoldSolver {
     engine::CircuitState g{T, guess.values};
     engine::PeriodicOptions p;
     p.period_s = T;
+    p.allow_shooting = allow_shooting;
     return engine::periodic_steady_state(c, g, options(2.0 * T), p);
   }
 
@@ -172,9 +174,9 @@ struct HoldSolver {
 
 }  // namespace
 
-HoldResult solve_hold(const DriverSpec& spec, const BuiltDriver& b) {
+HoldResult solve_hold(const DriverSpec& spec, const BuiltDriver& b, bool allow_shooting) {
   if (!spec.hold.present()) throw std::invalid_argument("hold: the description has no hold (hold.pwm_frequency)");
-  HoldSolver s{spec, b, {}};
+  HoldSolver s{spec, b, allow_shooting, {}};
   s.i_full = spec.supply.voltage_V / b.coil_resistance_ohm;
   s.out.period_s = 1.0 / spec.hold.pwm_frequency_Hz;
   const engine::CircuitState pulled = s.pull_in();

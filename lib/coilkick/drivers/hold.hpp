@@ -39,7 +39,9 @@ struct HoldResult {
 // Throws std::invalid_argument for a description without a hold, engine::SimulationError when a
 // stage cannot be solved (the pull-in current never reached, no steady state, no duty that holds
 // the average current).
-HoldResult solve_hold(const DriverSpec& spec, const BuiltDriver& b);
+// allow_shooting = false: the steady state by simulating the periods one by one (the reference
+// the tests and the benchmark compare shooting with).
+HoldResult solve_hold(const DriverSpec& spec, const BuiltDriver& b, bool allow_shooting = true);
 
 // The hold metrics (metrics.hpp: hold_*), NaN without a hold.
 void set_hold_metrics(const DriverSpec& spec, const HoldResult* hold, Metrics& m);

@@ -31,15 +31,16 @@ struct Shooter {
     ++out.period_runs;
     return period_map(c, s, o, p.period_s).values.head(x.size());
   }
-  // Size of each state for the whole solve: the largest state of its kind in the guess (volts
-  // against volts, amperes against amperes), at least a thousand absolute tolerances. Fixed, so
-  // that a step towards a small current is not judged on a shrinking scale.
+  // Size of each state: the largest state of its kind seen so far (volts against volts, amperes
+  // against amperes), at least a thousand absolute tolerances. It never shrinks, so that a step
+  // towards a small current is not judged on a shrinking scale.
+  // Grows with every state seen (a guess of zero has no size yet; its first period has).
   Eigen::VectorXd typical;
   void set_typical(const Eigen::VectorXd& x) {
     const auto& info = c.states();
-    typical.resize(x.size());
+    if (typical.size() != x.size()) typical = Eigen::VectorXd::Zero(x.size());
     for (Eigen::Index i = 0; i < x.size(); ++i) {
-      double t = 1e3 * atol[static_cast<std::size_t>(i)];
+      double t = std::max(typical[i], 1e3 * atol[static_cast<std::size_t>(i)]);
       for (Eigen::Index j = 0; j < x.size(); ++j) {
         if (info[static_cast<std::size_t>(j)].unit == info[static_cast<std::size_t>(i)].unit) t = std::max(t, std::abs(x[j]));
       }
@@ -64,6 +65,8 @@ struct Shooter {
     Eigen::VectorXd r = fx - x;
     for (int it = 0; it < p.maximum_newton_iterations; ++it) {
       throw_if_interrupted();
+      set_typical(x);
+      set_typical(fx);
       out.newton_iterations = it + 1;
       Eigen::MatrixXd jac(n, n);  // ∂Φ/∂x − I
       for (Eigen::Index j = 0; j < n; ++j) {

@@ -94,7 +94,7 @@ class TransientRun {
     record();
     locator_.start(t_, x_.data(), sys_.full_rate.data());
     dt_ = std::min(options.initial_step_s, options.stop_time_s - t_);
-    next_corner_ = circuit.next_corner_after_s(t_);
+    next_corner_ = corner_ahead();
   }
 
   TransientResult run() {
@@ -157,6 +157,14 @@ class TransientRun {
       m << "the wall-time budget of " << options_.maximum_wall_time_s << " s is used up";
       fail(m.str());
     }
+  }
+
+  // The next corner a step must land on. One that rounding put a few ulp after t (a pulse's
+  // fall computed as start + rise + high time against a period's multiple) is the corner at t.
+  double corner_ahead() const {
+    double c = circuit_.next_corner_after_s(t_);
+    while (c - t_ <= 64.0 * std::numeric_limits<double>::epsilon() * std::abs(t_)) c = circuit_.next_corner_after_s(c);
+    return c;
   }
 
   // Steps never cross a waveform corner or the stop time; true when this one ends on it.
@@ -223,7 +231,7 @@ class TransientRun {
     x_.swap(x_new_);
     t_ = t_new;
     if (options_.record_waveforms || t_ >= options_.stop_time_s) record();
-    if (t_ >= next_corner_) next_corner_ = circuit_.next_corner_after_s(t_);
+    if (t_ >= next_corner_) next_corner_ = corner_ahead();
     dt_ = dt_next;
     report_progress();
     return false;

@@ -75,6 +75,11 @@ std::string key_of_message(const std::string& msg, const Scenario& s, const std:
     key = seen.count("coil.release_current") ? "coil.release_current" : "coil.release_voltage";
   }
   if (key.empty() && msg.find("override") != std::string::npos) key = "switch.overrides";
+  if (key.empty()) {
+    // About a key the file lacks: point at its section ("hold: pwm_frequency_Hz is needed ...").
+    const auto colon = msg.find(':');
+    if (colon != std::string::npos && s.locations.count(msg.substr(0, colon))) key = msg.substr(0, colon);
+  }
   return key;
 }
 

@@ -1,0 +1,118 @@
+// The peak-and-hold drive (drivers/hold.hpp) on the greenhouse valve's coil values (demo data)
+// without its armature: shooting against the periods one by one, the energy per period
+// (docs/derivations.md, "Coil under a square-wave drive": in the steady state the supply's energy
+// per period is the heat of all parts in it), the duty found for a target average current, a
+// current-controlled pull-in, and a fast-decay clamp that cannot hold.
+#include <doctest/doctest.h>
+
+#include "../approx.hpp"
+
+#include <cmath>
+#include <set>
+
+#include "coilkick/drivers/energy_account.hpp"
+#include "coilkick/drivers/hold.hpp"
+#include "coilkick/drivers/switch_off.hpp"
+#include "driver_fixture.hpp"
+
+using namespace coilkick::drivers;
+
+namespace {
+// 24 V, 48 Ω at 20 °C (55.5 Ω at 60 °C), 0.35 H: τ = 6.3 ms = 126 periods of the 20 kHz PWM.
+DriverSpec held_valve(ClampKind clamp) {
+  DriverSpec s;
+  s.supply.voltage_V = 24.0;
+  s.drive.high_level_V = 5.0;
+  s.drive.fall_time_s = 20e-9;
+  s.switch_.topology = Topology::low_side_nmos;
+  s.switch_.part = "nmos_logic_level_60v";
+  s.switch_.base_resistor_ohm = 100.0;
+  s.coil.resistance_at_20C_ohm = 48.0;
+  s.coil.temperature_C = 60.0;
+  s.coil.inductance_H = 0.35;
+  s.coil.release_voltage_V = 3.6;
+  s.clamp.kind = clamp;
+  s.clamp.diode_part = "rectifier_1a";
+  s.clamp.zener_part = "zener_500mw_18v";
+  s.hold.pull_in_time_s = 30e-3;
+  s.hold.pwm_frequency_Hz = 20e3;
+  s.hold.pwm_duty = 0.4;
+  return s;
+}
+}  // namespace
+
+TEST_CASE("hold: shooting and the periods one by one reach the same steady state (1e-4)") {
+  const DriverSpec s = held_valve(ClampKind::diode);
+  const auto b = build_driver_network(s, test_support::catalogue());
+  const HoldResult shot = solve_hold(s, b, true);
+  const HoldResult direct = solve_hold(s, b, false);
+  CHECK(shot.steady.method == coilkick::engine::PeriodicMethod::shooting);
+  CHECK(direct.steady.method == coilkick::engine::PeriodicMethod::direct);
+  // The pull-in ends at 4.8 τ: the hold still has to settle over a few hundred periods.
+  CHECK(direct.steady.period_runs > 200);
+  CHECK(shot.steady.period_runs < direct.steady.period_runs / 5);
+  CHECK(shot.average_current_A == rel(direct.average_current_A).epsilon(1e-4));
+  CHECK(shot.minimum_current_A == rel(direct.minimum_current_A).epsilon(1e-4));
+  CHECK(shot.maximum_current_A == rel(direct.maximum_current_A).epsilon(1e-4));
+  CHECK(shot.clamp_energy_per_period_J == rel(direct.clamp_energy_per_period_J).epsilon(1e-4));
+  // Sanity against the resistive estimate D·V/R: the switch's and diode's drops and the diode's
+  // recovery take a few per cent off (docs/derivations.md gives D·V/R for ideal parts).
+  const double r_hot = 48.0 * (1 + 0.00393 * 40.0);
+  CHECK(shot.average_current_A < 0.4 * 24.0 / r_hot);
+  CHECK(shot.average_current_A > 0.9 * 0.4 * 24.0 / r_hot);
+}
+
+TEST_CASE("hold: in the steady state the supply's energy per period is the heat of all parts") {
+  DriverSpec s = held_valve(ClampKind::diode);
+  s.analysis.relative_tolerance = 1e-9;
+  const auto b = build_driver_network(s, test_support::catalogue());
+  const HoldResult h = solve_hold(s, b);
+  const auto& r = *h.period;
+  const auto& c = r.circuit();
+  const Eigen::VectorXd x0 = r.states().row(0).transpose(), x1 = r.states().row(r.states().rows() - 1).transpose();
+  std::set<std::string> elements;
+  for (const auto& e : c.power_channels()) elements.insert(e.element);
+  const double heat = heat_between(c, x0, x1, {elements.begin(), elements.end()});
+  // Energy in: the supply and (a little) the logic output charging the gate.
+  const auto logic = static_cast<Eigen::Index>(c.state_index("energy:logic.delivered"));
+  const double in = h.supply_energy_per_period_J + (x1[logic] - x0[logic]);
+  // The stored energy returns to its start to the steady state's convergence (10 error scales of
+  // rtol 1e-9 on ½·L·I², a few 1e-8 relative); the energy accumulators carry their own
+  // tolerance. 1e-6 leaves margin over both.
+  CHECK(in == rel(heat).epsilon(1e-6));
+  CHECK(h.supply_energy_per_period_J > 0.0);
+}
+
+TEST_CASE("hold: the duty for a target average current, and a current-controlled pull-in") {
+  DriverSpec s = held_valve(ClampKind::diode);
+  s.hold.pwm_duty = std::nan("");
+  s.hold.average_current_A = 0.12;
+  s.hold.pull_in_time_s = std::nan("");
+  s.hold.pull_in_current_A = 0.35;
+  const auto r = simulate_switch_off(s, test_support::catalogue());
+  // The secant search stops within 1e-5 of the target (hold.cpp).
+  CHECK(r.metrics.get("hold_average_current_A") == rel(0.12).epsilon(2e-5));
+  CHECK(r.metrics.get("hold_duty") > 0.2);
+  CHECK(r.metrics.get("hold_duty") < 0.4);
+  // The pull-in stops at the current, located as an event.
+  CHECK(r.metrics.get("hold_pull_in_current_A") == rel(0.35).epsilon(1e-6));
+  // First-order rise of the coil current, i = (V/R)(1 − e^(−t/τ)) (Nilsson & Riedel, Electric
+  // Circuits, 10th ed., ch. 7): the time to 0.35 A, within the switch's drop (a few per cent).
+  const double r_hot = 48.0 * (1 + 0.00393 * 40.0), tau = 0.35 / r_hot;
+  CHECK(r.metrics.get("hold_pull_in_time_s") == rel(-tau * std::log(1 - 0.35 * r_hot / 24.0)).epsilon(0.05));
+  // The final switch-off starts from the hold, not from the full current.
+  CHECK(r.metrics.get("coil_current_at_switch_off_A") < 0.13);
+}
+
+TEST_CASE("hold: a fast-decay clamp cannot hold a coil on PWM (its off-time decay outruns the on-time rise)") {
+  // Volt-seconds: the on-time drives (V − i·R)·D·T, a diode + 18 V Zener takes back about
+  // (18.7 V + i·R)·(1 − D)·T; at D = 0.4 they balance only at i ≈ 0 (common practice: PWM hold
+  // needs a freewheeling diode; a fast-decay clamp is switched in only for the final switch-off).
+  const auto r = simulate_switch_off(held_valve(ClampKind::diode_zener), test_support::catalogue());
+  CHECK(r.metrics.get("hold_average_current_A") < 0.01);
+  bool margin_failed = false;
+  for (const auto& c : r.checks) {
+    if (c.name == "hold_current_margin") margin_failed = c.status == CheckStatus::fail;
+  }
+  CHECK(margin_failed);
+}

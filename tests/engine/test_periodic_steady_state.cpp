@@ -1,0 +1,97 @@
+// Periodic steady state (engine/periodic_steady_state.hpp) of a coil driven by a square wave:
+// the closed form of docs/derivations.md ("Coil under a square-wave drive") — the step-down
+// chopper with an RL load of M. H. Rashid, Power Electronics, 3rd ed., ch. "DC–DC Converters" —
+// and shooting against simulating every period one by one.
+#include <doctest/doctest.h>
+
+#include "../approx.hpp"
+
+#include <cmath>
+
+#include "coilkick/coilkick.hpp"
+#include "coilkick/engine/periodic_steady_state.hpp"
+
+using namespace coilkick::engine;
+
+namespace {
+// A 0.5 H, 50 Ω coil (τ = 10 ms = 200 periods) on a 24 V square wave at 20 kHz, duty 0.4, with
+// 1 ns edges; the period starts at the falling edge (t = T).
+struct SquareWaveCoil {
+  const double L = 0.5, R = 50.0, V = 24.0, T = 50e-6, D = 0.4, edge = 1e-9;
+  Network net;
+  SquareWaveCoil() {
+    net.add_voltage_source("drive", "in", Waveform::pulse_train(0.0, V, T - D * T, edge, D * T - edge, edge, T, 0));
+    net.add_coil("coil", "in", Network::ground, {L, R});
+  }
+  TransientOptions options() const {
+    TransientOptions o;
+    o.relative_tolerance = 1e-9;
+    o.current_tolerance_A = 1e-12;
+    o.energy_tolerance_J = 1e-15;
+    return o;
+  }
+};
+}  // namespace
+
+TEST_CASE("periodic steady state: a coil under a square wave matches the closed form") {
+  SquareWaveCoil s;
+  const Circuit c(s.net);
+  CircuitState guess = zero_state(c, s.T);
+  PeriodicOptions p;
+  p.period_s = s.T;
+  const auto pss = periodic_steady_state(c, guess, s.options(), p);
+  CHECK(pss.method == PeriodicMethod::shooting);
+  // A linear circuit: the map is affine and Newton lands in one step, or two when the first
+  // finite differences are sized from a guess of zero, plus the step that shows convergence.
+  CHECK(pss.newton_iterations <= 3);
+  const double tau = s.L / s.R, i_inf = s.V / s.R;
+  const double i_max = i_inf * (1 - std::exp(-s.D * s.T / tau)) / (1 - std::exp(-s.T / tau));
+  const double i_min = i_max * std::exp(-(1 - s.D) * s.T / tau);
+  // The state at the period's start is the current just before the fall: I_max. Tolerance: the
+  // 1 ns edges move the extremes by about (edge/τ)·I ≈ 1e-7 relative (docs/derivations.md); the
+  // runs' own error is 10 error scales of 1e-9.
+  CHECK(get_state(c, pss.state, "coil.current") == rel(i_max).epsilon(1e-6));
+  // One steady period: the lowest current (at the start of the rise) and the average D·V/R.
+  TransientOptions o = s.options();
+  o.stop_time_s = 2 * s.T;
+  const auto r = simulate(c, pss.state, o, {EventSpec::minimum("low", Probe::state(c, "coil.current"), s.T)});
+  CHECK(r.event("low").value == rel(i_min).epsilon(1e-6));
+  CHECK(*r.event("low").time_s == rel(s.T + (1 - s.D) * s.T).epsilon(1e-4));
+  // The period returns to where it started (the definition of the steady state).
+  CHECK(r.state("coil.current")[r.times_s().size() - 1] == rel(i_max).epsilon(1e-6));
+}
+
+TEST_CASE("periodic steady state: shooting and the periods one by one agree to 1e-4") {
+  SquareWaveCoil s;
+  const Circuit c(s.net);
+  CircuitState guess = zero_state(c, s.T);
+  PeriodicOptions shoot, direct;
+  shoot.period_s = direct.period_s = s.T;
+  direct.allow_shooting = false;
+  const auto a = periodic_steady_state(c, guess, s.options(), shoot);
+  const auto b = periodic_steady_state(c, guess, s.options(), direct);
+  CHECK(b.method == PeriodicMethod::direct);
+  CHECK(b.note.empty());
+  // From zero the coil needs many time constants (200 periods each) to settle.
+  CHECK(b.period_runs > 1000);
+  CHECK(a.period_runs < 20);
+  CHECK(get_state(c, a.state, "coil.current") == rel(get_state(c, b.state, "coil.current")).epsilon(1e-4));
+}
+
+TEST_CASE("periodic steady state: bad period and budgets are errors, not results") {
+  SquareWaveCoil s;
+  const Circuit c(s.net);
+  PeriodicOptions p;
+  p.period_s = 0.0;
+  CHECK_THROWS_AS(periodic_steady_state(c, zero_state(c, s.T), s.options(), p), std::invalid_argument);
+  // Direct periods only, with too small a budget: a SimulationError that says how far it got.
+  p.period_s = s.T;
+  p.allow_shooting = false;
+  p.maximum_direct_periods = 50;
+  try {
+    periodic_steady_state(c, zero_state(c, s.T), s.options(), p);
+    FAIL("expected SimulationError");
+  } catch (const SimulationError& e) {
+    CHECK(std::string(e.what()).find("50 periods") != std::string::npos);
+  }
+}
