@@ -79,7 +79,42 @@ void DefineResults(py::module_& m) {
       .def_property_readonly("node_names", [](const PyRun& p) { return p.r->transient->circuit().node_names(); })
       .def_property_readonly("switch_off_at_s", [](const PyRun& p) { return p.r->spec.drive.switch_off_at_s; },
                              "start of the switch-off edge (s)")
-      .def_property_readonly("accepted_steps", [](const PyRun& p) { return p.r->transient->statistics().accepted_steps; });
+      .def_property_readonly("accepted_steps", [](const PyRun& p) { return p.r->transient->statistics().accepted_steps; })
+      .def_property_readonly(
+          "hold",
+          [](const PyRun& p) -> py::object {
+            const auto* h = p.r->hold.get();
+            if (!h) return py::none();
+            // Copies: the hold's runs are small and belong to the result's hold stage.
+            auto series = [](const engine::TransientResult* r, double t0) {
+              py::dict d;
+              if (!r) {
+                d["time_s"] = py::array_t<double>(0);
+                d["coil_current_A"] = py::array_t<double>(0);
+                return d;
+              }
+              const Eigen::VectorXd i = r->state("coil.current");
+              Eigen::VectorXd t = Eigen::Map<const Eigen::VectorXd>(r->times_s().data(), static_cast<Eigen::Index>(r->times_s().size()));
+              t.array() -= t0;
+              d["time_s"] = py::array_t<double>(t.size(), t.data());
+              d["coil_current_A"] = py::array_t<double>(i.size(), i.data());
+              return d;
+            };
+            py::dict d;
+            d["pull_in"] = series(h->pull_in.get(), 0.0);
+            d["period"] = series(h->period.get(), h->period ? h->period->start_time_s() : 0.0);
+            d["period_s"] = h->period_s;
+            d["duty"] = h->duty;
+            d["steady_state_method"] = h->steady.method == engine::PeriodicMethod::shooting ? "shooting" : "direct periods";
+            d["newton_iterations"] = h->steady.newton_iterations;
+            d["periods_simulated"] = h->steady.period_runs;
+            d["note"] = h->steady.note;
+            return std::move(d);
+          },
+          "with a PWM hold (scenario [hold]): dict with 'pull_in' and 'period' (each 'time_s' — from the drive's "
+          "rising edge, and from the period's start at the falling edge — and 'coil_current_A'), 'period_s', 'duty', "
+          "how the steady state was found ('steady_state_method', 'newton_iterations', 'periods_simulated', 'note'); "
+          "None without a hold");
 
   m.def(
       "run",

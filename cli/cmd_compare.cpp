@@ -55,8 +55,9 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
   out << std::left << std::setw(18) << "clamp" << std::setw(34) << "parts" << std::right << std::setw(11) << "peak"
       << std::setw(8) << "margin" << std::setw(11) << "release" << std::setw(11) << "to 10 %" << std::setw(11) << "clamp E"
       << std::setw(11) << "switch E";
-  const bool contacts = d.relay.armature_model;
+  const bool contacts = d.relay.armature_model, hold = d.hold.present();
   if (contacts) out << std::setw(11) << "opens" << std::setw(11) << "speed";
+  if (hold) out << std::setw(11) << "hold I" << std::setw(9) << "I/I_rel" << std::setw(11) << "clamp P" << std::setw(11) << "switch P";
   out << "  checks\n";
   for (const auto& r : rows) {
     out << std::left << std::setw(18) << drivers::to_string(r.kind) << std::setw(34) << r.parts << std::right;
@@ -79,11 +80,22 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
       out << std::setw(11) << metric_text("x_s", m.get("contact_open_time_s")) << std::setw(11)
           << metric_text("x_m_per_s", m.get("armature_speed_at_contact_open_m_per_s"));
     }
+    if (hold) {
+      const double margin_hold = m.get("hold_current_margin");
+      out << std::setw(11) << metric_text("x_A", m.get("hold_average_current_A")) << std::setw(9)
+          << (std::isnan(margin_hold) ? std::string("-") : metric_text("x", margin_hold)) << std::setw(11)
+          << metric_text("x_W", m.get("hold_clamp_average_power_W")) << std::setw(11)
+          << metric_text("x_W", m.get("hold_switch_average_power_W"));
+    }
     out << "  " << (flags.empty() ? "all pass" : flags) << "\n";
   }
   if (contacts) {
     out << "\nopens: the make contact separates (armature model); speed: armature speed there. "
            "Slow, late opening means longer arcing and more contact wear.";
+  }
+  if (hold) {
+    out << "\nhold I: average coil current in the PWM hold; I/I_rel: its lowest value over the release current "
+           "(below 1 the relay drops out); clamp P, switch P: average power in hold. The switch-off starts from the hold.";
   }
   out << "\nmargin: peak switch voltage over the switch's rating; keep below "
       << static_cast<int>(100 * d.analysis.switch_voltage_derating) << " % (common practice).\n\n"

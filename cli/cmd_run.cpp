@@ -104,6 +104,17 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
              {"switch-off delay", "switch_off_delay_s"}, {"ringing frequency", "ringing_frequency_Hz"},
              {"clamp average power", "clamp_average_power_W"}, {"energy balance error", "energy_balance_error"}},
             r.metrics);
+    if (d.hold.present()) {
+      out << "\n";
+      section(out, "PWM hold (steady state; the switch-off above starts from it)",
+              {{"pull-in time", "hold_pull_in_time_s"}, {"  current at its end", "hold_pull_in_current_A"},
+               {"PWM duty", "hold_duty"}, {"average coil current", "hold_average_current_A"},
+               {"ripple (peak to peak)", "hold_ripple_A"}, {"lowest coil current", "hold_minimum_current_A"},
+               {"  over the release current", "hold_current_margin"}, {"clamp average power", "hold_clamp_average_power_W"},
+               {"switch average power", "hold_switch_average_power_W"}, {"supply energy per period", "hold_supply_energy_per_period_J"},
+               {"clamp energy per period", "hold_clamp_energy_per_period_J"}},
+              r.metrics);
+    }
     if (!d.supply.rail_is_ideal() || !d.extra_parts.empty()) {
       out << "\n";
       std::vector<Line> lines;

@@ -61,7 +61,10 @@ int cmd_suggest(const CommonOptions& o, const std::string& max_release_time, con
       << metric_text("x_s", lim.max_release_time_s) << ", switch voltage at most "
       << metric_text("x_V", lim.max_switch_voltage_V) << "; " << meeting << " of " << list.size() << " candidates meet both\n\n";
   out << std::left << std::setw(5) << "rank" << std::setw(18) << "clamp" << std::setw(34) << "parts" << std::right << std::setw(11)
-      << (lim.time_metric == "contact_open_time_s" ? "opens" : "release") << std::setw(9) << "margin" << std::setw(11) << "peak" << std::setw(9) << "margin" << "  checks\n";
+      << (lim.time_metric == "contact_open_time_s" ? "opens" : "release") << std::setw(9) << "margin" << std::setw(11) << "peak" << std::setw(9) << "margin";
+  const bool hold = l.scenario.driver.hold.present();
+  if (hold) out << std::setw(12) << "hold clamp" << std::setw(10) << "front";
+  out << "  checks\n";
   int shown = 0;
   for (const auto& g : list) {
     if (!g.meets || shown >= top) break;
@@ -70,9 +73,18 @@ int cmd_suggest(const CommonOptions& o, const std::string& max_release_time, con
         << std::setw(11) << metric_text("x_s", g.run.metrics.get(lim.time_metric)) << std::setw(8)
         << static_cast<int>(std::lround(100 * g.release_margin)) << "%" << std::setw(11)
         << metric_text("x_V", g.run.metrics.get("switch_voltage_peak_V")) << std::setw(8) << static_cast<int>(std::lround(100 * g.voltage_margin))
-        << "%  " << drivers::to_string(g.run.status) << "\n";
+        << "%";
+    if (hold) {
+      out << std::setw(12) << metric_text("x_W", g.run.metrics.get("hold_clamp_average_power_W")) << std::setw(10)
+          << (g.dominated_by == 0 ? "yes" : "-");
+    }
+    out << "  " << drivers::to_string(g.run.status) << "\n";
   }
   if (shown == 0) out << "  none of the candidates meets both limits; relax one, or choose another switch\n";
+  if (hold) {
+    out << "\nPWM hold: release times from the hold's steady state; hold clamp: the clamp's average power in\n"
+           "hold. Ranked front first: no other candidate is both cooler in hold and no slower to release.\n";
+  }
   out << "\nPreferred values: Zener and TVS voltages of the catalogue (E24, IEC 60063), resistors E12,\n"
          "RC pairs E3. Check the parts' ratings in the full report (coilkick run) before choosing.\n\n"
       << kCaution << "\n";

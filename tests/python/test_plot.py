@@ -32,3 +32,26 @@ def test_armature_plots_show_the_gap_and_the_contact_opening(valve):
     assert "contact opens" in f.axes[2].get_xlabel()
     f2 = coilkick.plot.comparison(rows)
     assert [t.get_text() for t in f2.axes[0].get_legend().get_texts()] == ["current below release", "contact opens"]
+
+
+def test_hold_plot_shows_the_ripple_and_the_release_from_the_hold(relay_dict):
+    held = dict(relay_dict)
+    held["hold"] = {"pull_in_time": "5 ms", "pwm_frequency": "20 kHz", "pwm_duty": "60 %"}
+    s = coilkick.scenario_from_dict(held)
+    rows = coilkick.compare(s, ["diode", "diode_zener"])
+    h = rows[0].result.hold
+    assert h["duty"] == 0.6 and h["period_s"] == 50e-6
+    # One steady period from its start at the falling edge, as its waveform says.
+    assert h["period"]["time_s"][0] == 0.0
+    assert abs(h["period"]["time_s"][-1] - 50e-6) < 1e-12
+    assert min(h["period"]["coil_current_A"]) > 0.0
+    f = coilkick.plot.hold(rows)
+    assert "µs" in f.axes[0].get_xlabel() and f.axes[1].get_ylabel() == "coil current (mA)"
+    # Without a hold there is nothing to draw: an error, not an empty chart.
+    plain = coilkick.compare(coilkick.scenario_from_dict(relay_dict), ["diode"])
+    assert plain[0].result.hold is None
+    try:
+        coilkick.plot.hold(plain)
+        raise AssertionError("expected ValueError")
+    except ValueError as e:
+        assert "[hold]" in str(e)

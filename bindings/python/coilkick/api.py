@@ -56,7 +56,7 @@ def scenario_from_dict(d: Dict[str, Any], models_dir: str = "", name: str = "<di
 class RunResult:
     """One switch-off. metrics: AttrDict (SI unit in each name); checks: list of AttrDict;
     time_s, switch_voltage_V, coil_current_A, clamp_current_A, armature_gap_m (armature model only,
-    else empty): numpy arrays sharing the result's memory."""
+    else empty): numpy arrays sharing the result's memory; hold: the PWM hold's waveforms (or None)."""
 
     def __init__(self, core):
         self._core = core
@@ -71,6 +71,10 @@ class RunResult:
     armature_gap_m = property(lambda self: self._core.armature_gap_m,
                               doc="armature gap (m) with the armature model; empty array otherwise")
     switch_off_at_s = property(lambda self: self._core.switch_off_at_s, doc="start of the switch-off edge (s)")
+    hold = property(lambda self: self._core.hold,
+                    doc="with a PWM hold (scenario [hold]): dict of the pull-in and one steady period ('pull_in', "
+                        "'period': each 'time_s' and 'coil_current_A'), 'period_s', 'duty' and how the steady state "
+                        "was found; None without a hold")
 
     def node_voltage_V(self, node: str) -> np.ndarray:
         """Voltage of a node (V) at time_s (nodes: supply, logic, base, switch ...)."""

@@ -1,5 +1,5 @@
 """Plots of coilkick results (matplotlib), in a style of our own: switch-off waveforms with clamps
-overlaid, the clamp comparison chart, release time against peak switch voltage with the switch
+overlaid, a PWM hold's ripple and the release from it, the clamp comparison chart, release time against peak switch voltage with the switch
 rating and its derated limit, and Monte Carlo histograms. Every axis is labelled with its unit."""
 import numpy as np
 
@@ -73,6 +73,45 @@ def switch_off(items, t_end_s=None, title=None):
     for ax in axes:
         _style(ax)
     av.legend(fontsize=8, frameon=False, loc="upper right")
+    if title:
+        fig.suptitle(title)
+    fig.tight_layout()
+    return fig
+
+
+def hold(items, title=None):
+    """A PWM-held coil, one line per result: the coil current over one steady hold period (left; its
+    ripple, with the release current dashed) and the final release from the hold (right: coil current
+    after the start of the switch-off). items as for switch_off; results without a hold are skipped.
+    Returns the figure."""
+    plt = _plt()
+    pairs = [(label, r) for label, r in _results(items) if r.hold is not None]
+    if not pairs:
+        raise ValueError("hold: none of the results has a PWM hold (scenario [hold])")
+    fig, (ar, af) = plt.subplots(1, 2, figsize=(11, 4))
+    release = []
+    for k, (label, r) in enumerate(pairs):
+        c = PALETTE[k % len(PALETTE)]
+        p = r.hold["period"]
+        ar.plot(p["time_s"] * 1e6, p["coil_current_A"] * 1e3, color=c, linewidth=1.5, label=label)
+        t = (r.time_s - r.switch_off_at_s) * 1e3
+        keep = t >= 0
+        af.plot(t[keep], r.coil_current_A[keep] * 1e3, color=c, linewidth=1.5, label=label)
+        t_rel = r.metrics.get("release_time_s", float("nan"))
+        if np.isfinite(t_rel):
+            af.plot([t_rel * 1e3], [np.interp(t_rel * 1e3, t, r.coil_current_A) * 1e3], marker="o", color=c, markersize=5)
+        i_rel = r.metrics["hold_minimum_current_A"] / r.metrics["hold_current_margin"]
+        if np.isfinite(i_rel):
+            release.append(i_rel)
+    for ax in (ar, af):
+        if release:
+            ax.axhline(release[0] * 1e3, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="release current")
+        _style(ax)
+    ar.set_xlabel("time in one steady PWM period, from the drive's falling edge (µs)")
+    ar.set_ylabel("coil current (mA)")
+    af.set_xlabel("time after the start of the final switch-off (ms); dot: release")
+    af.set_ylabel("coil current (mA)")
+    ar.legend(fontsize=8, frameon=False)
     if title:
         fig.suptitle(title)
     fig.tight_layout()

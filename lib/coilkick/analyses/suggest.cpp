@@ -109,8 +109,23 @@ std::vector<Suggestion> suggest_clamps(const scenario::Scenario& s, const catalo
     const double t = time_of(g.run.metrics);
     return std::isnan(t) ? std::numeric_limits<double>::infinity() : t;
   };
+  // A PWM-held coil: the clamp also heats in every period. Among those that meet the limits, the
+  // ones no other beats on both hold power and release time come first.
+  if (s.driver.hold.present()) {
+    auto power = [](const Suggestion& g) { return g.run.metrics.get("hold_clamp_average_power_W"); };
+    for (auto& g : out) {
+      if (!g.meets) continue;
+      for (const auto& other : out) {
+        if (&other == &g || !other.meets) continue;
+        const bool no_worse = power(other) <= power(g) && key(other) <= key(g);
+        const bool better = power(other) < power(g) || key(other) < key(g);
+        if (no_worse && better) ++g.dominated_by;
+      }
+    }
+  }
   std::stable_sort(out.begin(), out.end(), [&](const Suggestion& a, const Suggestion& b) {
     if (a.meets != b.meets) return a.meets;
+    if (a.dominated_by != b.dominated_by) return a.dominated_by < b.dominated_by;
     return key(a) < key(b);
   });
   return out;

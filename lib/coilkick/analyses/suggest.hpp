@@ -5,7 +5,8 @@
 // resistor × capacitor pairs (10 ohm … 1 kohm × 10 nF … 10 µF) for an RC across the coil —
 // and ranks those that meet both limits by release time (fastest first), with the margins. The
 // release time is the coil current falling below the release current, or, with the armature
-// model, the contact opening (time_metric = "contact_open_time_s").
+// model, the contact opening (time_metric = "contact_open_time_s"). With a PWM hold the ranking
+// puts first the candidates on the trade-off front of clamp power in hold against release time.
 #include <functional>
 #include <string>
 #include <vector>
@@ -32,6 +33,9 @@ struct Suggestion {
   bool meets = false;           // both limits met and no rating check failed
   double release_margin = 0.0;  // (limit − release time)/limit
   double voltage_margin = 0.0;  // (limit − peak)/limit
+  // With a PWM hold: how many other candidates that meet the limits have both a lower clamp power
+  // in hold and a release no slower (0: on the trade-off front). Ranked on this first.
+  int dominated_by = 0;
 };
 
 // All candidates, those that meet the limits first (fastest release first), then the others.

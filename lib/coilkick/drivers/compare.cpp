@@ -49,6 +49,8 @@ std::vector<ComparisonRow> compare_clamps(const DriverSpec& spec, const catalogu
   }
   auto key = [](const ComparisonRow& r) {
     if (!r.result) return std::numeric_limits<double>::infinity();
+    // A clamp that cannot hold the coil on PWM (it drops out in hold) goes last.
+    if (r.result->metrics.get("hold_current_margin") < 1.0) return std::numeric_limits<double>::infinity();
     double t = r.result->metrics.get("release_time_s");
     if (std::isnan(t)) t = r.result->metrics.get("current_decay_time_10pct_s");
     return std::isnan(t) ? std::numeric_limits<double>::infinity() : t;  // keeps the order strict
