@@ -108,6 +108,7 @@ case "$cmd" in
     configure_and_build -DCOILKICK_BUILD_BENCH=ON
     "$BUILD_DIR/bin/engine_bench" --benchmark_min_time=0.2
     "$BUILD_DIR/bin/device_bench" --benchmark_min_time=0.2
+    "$BUILD_DIR/bin/hold_bench"
     PYTHONPATH="$BUILD_DIR/python" "$PYTHON" bench/throughput.py
     PYTHONPATH="$BUILD_DIR/python" "$PYTHON" bench/reference_transient.py
     ;;

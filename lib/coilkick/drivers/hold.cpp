@@ -101,6 +101,7 @@ struct HoldSolver {
     engine::PeriodicOptions p;
     p.period_s = T;
     p.allow_shooting = allow_shooting;
+    p.maximum_wall_time_s = spec.analysis.maximum_wall_time_s;
     return engine::periodic_steady_state(c, g, options(2.0 * T), p);
   }
 

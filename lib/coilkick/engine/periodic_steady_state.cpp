@@ -1,6 +1,7 @@
 #include "coilkick/engine/periodic_steady_state.hpp"
 
 #include <algorithm>
+#include <chrono>
 #include <cmath>
 #include <sstream>
 #include <stdexcept>
@@ -103,10 +104,21 @@ struct Shooter {
     return false;
   }
 
+  const std::chrono::steady_clock::time_point started = std::chrono::steady_clock::now();
+  bool out_of_time() const {
+    return std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count() > p.maximum_wall_time_s;
+  }
+
   bool direct(Eigen::VectorXd& x) {
     double previous_change = 0.0;
     for (long k = 0; k < p.maximum_direct_periods; ++k) {
       throw_if_interrupted();
+      if (out_of_time()) {
+        std::ostringstream m;
+        m << "periodic steady state not reached within the wall-time budget of " << p.maximum_wall_time_s << " s (" << k
+          << " periods simulated one by one, still moving by " << out.distance_in_error_scales << " error scales per period)";
+        throw SimulationError(m.str());
+      }
       const Eigen::VectorXd next = map(x);
       const double change = scaled_norm(next - x);
       // Distance left from the contraction ρ between periods: change·ρ/(1 − ρ).

@@ -25,6 +25,7 @@ struct PeriodicOptions {
   // Converged when the last correction (shooting) or the estimated remaining distance (direct)
   // is within this many error scales of every state (absolute + relative tolerance of the runs).
   double tolerance_in_error_scales = 10.0;
+  double maximum_wall_time_s = 120.0;  // for the whole search (each period run has its own budget too)
   bool allow_shooting = true;  // false: direct periods only (the reference the tests compare with)
   std::function<void(double)> progress;  // fraction done (direct periods), optional
 };
