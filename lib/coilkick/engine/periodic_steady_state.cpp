@@ -26,11 +26,20 @@ struct Shooter {
   Shooter(const Circuit& circuit, const TransientOptions& options, const PeriodicOptions& periodic, double start_s)
       : c(circuit), o(options), p(periodic), atol(absolute_tolerances(circuit, options)), t0(start_s) {}
 
-  Eigen::VectorXd map(const Eigen::VectorXd& x) {
+  // One period from x; `steps` (if given) receives the run's step times, and `replay` (if
+  // non-empty) makes the run take exactly those steps.
+  Eigen::VectorXd map(const Eigen::VectorXd& x, std::vector<double>* steps = nullptr, const std::vector<double>& replay = {}) {
     CircuitState s{t0, Eigen::VectorXd::Zero(static_cast<Eigen::Index>(c.state_count()))};
     s.values.head(x.size()) = x;
     ++out.period_runs;
-    return period_map(c, s, o, p.period_s).values.head(x.size());
+    TransientOptions run = o;
+    run.stop_time_s = t0 + p.period_s;
+    run.record_waveforms = steps != nullptr;
+    run.progress = nullptr;
+    run.replay_step_times_s = replay;
+    const TransientResult r = simulate(c, s, run);
+    if (steps) *steps = r.times_s();
+    return r.states().row(r.states().rows() - 1).transpose().head(x.size());
   }
   // Size of each state: the largest state of its kind seen so far (volts against volts, amperes
   // against amperes), at least a thousand absolute tolerances. It never shrinks, so that a step
@@ -49,34 +58,62 @@ struct Shooter {
     }
   }
   // The error scale of the runs (absolute + relative tolerance of the typical size).
+  // Newton–Picard: a state the period forgets by more than a tenth (|∂Φ_i/∂x_i| below kFast: a
+  // node behind picoseconds of stray capacitance, an armature pressed on its stop and ringing
+  // there) is not one of the slow modes shooting exists for. It takes the value the period gives
+  // it (a Picard step) and stays out of the line search and the convergence test: its residual
+  // carries the adaptive runs' own error of a stiff oscillation (an armature's velocity on its
+  // stop differs by ~1e-4 m/s between two step sequences), which no Newton step removes. Once
+  // the slow states have converged, Picard periods bring the fast ones within 1e-3 of their
+  // distance (settle()). All states count until a sensitivity matrix has been taken.
+  static constexpr double kFast = 0.9;
+  double slowest_fast = 0.0;  // the largest |∂Φ_i/∂x_i| among the fast states
+  std::vector<bool> fast;
   double scaled_norm(const Eigen::VectorXd& v) const {
     double m = 0.0;
     for (Eigen::Index i = 0; i < v.size(); ++i) {
+      if (!fast.empty() && fast[static_cast<std::size_t>(i)]) continue;
       m = std::max(m, std::abs(v[i]) / (atol[static_cast<std::size_t>(i)] + o.relative_tolerance * typical[i]));
     }
     return m;
   }
-  // Finite-difference step of state i: a thousandth of its typical size, so that the runs' own
-  // error (relative tolerance × size) stays a small part of the difference.
-  double fd_step(Eigen::Index i) const { return 1e-3 * typical[i]; }
+  // Finite-difference step of state i: 1e-5 of its typical size. Along replayed steps the map
+  // is one smooth discrete map, so only rounding (~1e-16 of the size) and the map's curvature
+  // limit the difference quotient; 1e-5 balances the two.
+  double fd_step(Eigen::Index i) const { return 1e-5 * typical[i]; }
 
   bool shoot(Eigen::VectorXd& x) {
     const Eigen::Index n = x.size();
-    Eigen::VectorXd fx = map(x);
+    std::vector<double> steps;
+    Eigen::VectorXd fx = map(x, &steps);
     Eigen::VectorXd r = fx - x;
     for (int it = 0; it < p.maximum_newton_iterations; ++it) {
       throw_if_interrupted();
       set_typical(x);
       set_typical(fx);
       out.newton_iterations = it + 1;
+      // Sensitivities along the unperturbed run's own steps (internal numerical differentiation).
+      const Eigen::VectorXd f_replayed = map(x, nullptr, steps);
       Eigen::MatrixXd jac(n, n);  // ∂Φ/∂x − I
       for (Eigen::Index j = 0; j < n; ++j) {
         Eigen::VectorXd xp = x;
         const double h = fd_step(j);
         xp[j] += h;
-        jac.col(j) = (map(xp) - fx) / h;
+        jac.col(j) = (map(xp, nullptr, steps) - f_replayed) / h;
         jac(j, j) -= 1.0;
       }
+      fast.assign(static_cast<std::size_t>(n), false);
+      slowest_fast = 0.0;
+      bool any_slow = false;
+      for (Eigen::Index i = 0; i < n; ++i) {
+        const double memory = std::abs(jac(i, i) + 1.0);
+        fast[static_cast<std::size_t>(i)] = memory < kFast;
+        if (memory < kFast) slowest_fast = std::max(slowest_fast, memory);
+        any_slow = any_slow || memory >= kFast;
+      }
+      // Far from the steady state every state may look fast (a coil at zero current behind a
+      // diode's megohms of dynamic resistance): then every state counts, and Newton goes on.
+      if (!any_slow) fast.assign(static_cast<std::size_t>(n), false);
       const Eigen::VectorXd step = jac.fullPivLu().solve(-r);
       if (!step.allFinite()) return false;
       // Halving line search on the scaled residual.
@@ -86,7 +123,7 @@ struct Shooter {
       bool accepted = false;
       for (int ls = 0; ls < 8; ++ls, lambda *= 0.5) {
         x_new = x + lambda * step;
-        f_new = map(x_new);
+        f_new = map(x_new, &steps);
         r_new = f_new - x_new;
         if (scaled_norm(r_new) < r_norm || scaled_norm(lambda * step) <= p.tolerance_in_error_scales) {
           accepted = true;
@@ -95,13 +132,33 @@ struct Shooter {
       }
       if (!accepted) return false;
       const double moved = scaled_norm(lambda * step);
+      for (Eigen::Index i = 0; i < n; ++i) {
+        if (fast[static_cast<std::size_t>(i)]) x_new[i] = f_new[i];
+      }
       x = x_new;
       fx = f_new;
       r = r_new;
       out.distance_in_error_scales = moved;
-      if (lambda == 1.0 && moved <= p.tolerance_in_error_scales) return true;
+      if (lambda == 1.0 && moved <= p.tolerance_in_error_scales) {
+        settle(x);
+        return true;
+      }
     }
     return false;
+  }
+
+  // Picard periods for the fast states after Newton: enough that their slowest contraction has
+  // shrunk what is left of their distance to 1e-3 (at most 30 periods).
+  void settle(Eigen::VectorXd& x) {
+    int periods = 1;
+    if (slowest_fast > 1e-3) periods = std::min(30, static_cast<int>(std::ceil(std::log(1e-3) / std::log(slowest_fast))));
+    for (int k = 0; k < periods; ++k) {
+      throw_if_interrupted();
+      const Eigen::VectorXd next = map(x);
+      for (Eigen::Index i = 0; i < x.size(); ++i) {
+        if (fast[static_cast<std::size_t>(i)]) x[i] = next[i];
+      }
+    }
   }
 
   const std::chrono::steady_clock::time_point started = std::chrono::steady_clock::now();
@@ -110,6 +167,7 @@ struct Shooter {
   }
 
   bool direct(Eigen::VectorXd& x) {
+    fast.clear();  // every state counts here
     double previous_change = 0.0;
     for (long k = 0; k < p.maximum_direct_periods; ++k) {
       throw_if_interrupted();

@@ -105,9 +105,13 @@ class TransientRun {
       sys_.step_start = t_;
       sys_.full_evaluation(x_, t_);
       stepper_->attempt(x_, t_, dt_, {sys_.full_rate, sys_.full_jacobian, sys_.full_time_rate}, stage_rates_, x_new_, x_err_);
-      const StepError e = scaled_step_error(x_, x_new_, x_err_, atol_, options_.relative_tolerance);
+      StepError e = scaled_step_error(x_, x_new_, x_err_, atol_, options_.relative_tolerance);
       worst_state_ = e.worst_state;
       last_nonfinite_ = !e.finite;
+      if (replaying()) {
+        if (!e.finite) fail("the states became non-finite (NaN or infinite) on a replayed step");
+        e.norm = 1.0;  // (only the step controller reads it)
+      }
       if (!e.finite || e.norm > 1.0) {
         reject(e);
         continue;
@@ -136,6 +140,7 @@ class TransientRun {
   DenseStep dense_;
   std::vector<double> times_, rec_x_, rec_rate_;
   int rejections_in_a_row_ = 0, worst_state_ = 0;
+  std::size_t replay_next_ = 0;
   bool last_nonfinite_ = false;
   double next_progress_ = 0.01;
 
@@ -167,8 +172,18 @@ class TransientRun {
     return c;
   }
 
+  bool replaying() const { return !options_.replay_step_times_s.empty(); }
+
   // Steps never cross a waveform corner or the stop time; true when this one ends on it.
   bool size_step() {
+    if (replaying()) {
+      const auto& times = options_.replay_step_times_s;
+      while (replay_next_ < times.size() && times[replay_next_] <= t_) ++replay_next_;
+      if (replay_next_ == times.size()) fail("the replayed step times end before the stop time");
+      target_ = times[replay_next_];
+      dt_ = target_ - t_;
+      return true;
+    }
     target_ = std::min(next_corner_, options_.stop_time_s);
     const double remaining = target_ - t_;
     const double min_step = std::max(options_.minimum_step_s, 64.0 * std::numeric_limits<double>::epsilon() * std::abs(t_));

@@ -34,6 +34,12 @@ struct TransientOptions {
   bool record_waveforms = true;          // false: keep only the first and last point
   // The same method either way; blockwise is several times cheaper per step (rosenbrock_step.hpp).
   StepMethod step_method = StepMethod::rosenbrock4_blockwise;
+  // Non-empty: step exactly to each of these times after the initial one, the last being the
+  // stop time, with no error control (a non-finite state still fails). The finite-difference
+  // sensitivities of a periodic steady state replay the step sequence of the unperturbed run, so
+  // that they differentiate one discrete map rather than the noise between two step sequences
+  // ("internal numerical differentiation", Bock 1981).
+  std::vector<double> replay_step_times_s;
   // Called about every 1 % of simulated time with the fraction done (0..1). Optional.
   std::function<void(double)> progress;
 };
