@@ -55,7 +55,7 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
   out << std::left << std::setw(18) << "clamp" << std::setw(34) << "parts" << std::right << std::setw(11) << "peak"
       << std::setw(8) << "margin" << std::setw(11) << "release" << std::setw(11) << "to 10 %" << std::setw(11) << "clamp E"
       << std::setw(11) << "switch E";
-  const bool contacts = d.relay.armature_model, hold = d.hold.present();
+  const bool contacts = d.relay.armature_model, hold = d.has_periodic_drive();
   if (contacts) out << std::setw(11) << "opens" << std::setw(11) << "speed";
   if (hold) out << std::setw(11) << "hold I" << std::setw(9) << "I/I_rel" << std::setw(11) << "clamp P" << std::setw(11) << "switch P";
   out << "  checks\n";

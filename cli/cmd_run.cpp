@@ -104,9 +104,10 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
              {"switch-off delay", "switch_off_delay_s"}, {"ringing frequency", "ringing_frequency_Hz"},
              {"clamp average power", "clamp_average_power_W"}, {"energy balance error", "energy_balance_error"}},
             r.metrics);
-    if (d.hold.present()) {
+    if (d.has_periodic_drive()) {
       out << "\n";
-      section(out, "PWM hold (steady state; the switch-off above starts from it)",
+      section(out, d.repeat.present() ? "Repetition (its last cycle; the switch-off above ends it)"
+                                      : "PWM hold (steady state; the switch-off above starts from it)",
               {{"pull-in time", "hold_pull_in_time_s"}, {"  current at its end", "hold_pull_in_current_A"},
                {"PWM duty", "hold_duty"}, {"average coil current", "hold_average_current_A"},
                {"ripple (peak to peak)", "hold_ripple_A"}, {"lowest coil current", "hold_minimum_current_A"},

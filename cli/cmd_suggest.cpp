@@ -62,7 +62,7 @@ int cmd_suggest(const CommonOptions& o, const std::string& max_release_time, con
       << metric_text("x_V", lim.max_switch_voltage_V) << "; " << meeting << " of " << list.size() << " candidates meet both\n\n";
   out << std::left << std::setw(5) << "rank" << std::setw(18) << "clamp" << std::setw(34) << "parts" << std::right << std::setw(11)
       << (lim.time_metric == "contact_open_time_s" ? "opens" : "release") << std::setw(9) << "margin" << std::setw(11) << "peak" << std::setw(9) << "margin";
-  const bool hold = l.scenario.driver.hold.present();
+  const bool hold = l.scenario.driver.has_periodic_drive();
   if (hold) out << std::setw(12) << "hold clamp" << std::setw(10) << "front";
   out << "  checks\n";
   int shown = 0;

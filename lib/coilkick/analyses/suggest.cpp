@@ -111,7 +111,7 @@ std::vector<Suggestion> suggest_clamps(const scenario::Scenario& s, const catalo
   };
   // A PWM-held coil: the clamp also heats in every period. Among those that meet the limits, the
   // ones no other beats on both hold power and release time come first.
-  if (s.driver.hold.present()) {
+  if (s.driver.has_periodic_drive()) {
     auto power = [](const Suggestion& g) { return g.run.metrics.get("hold_clamp_average_power_W"); };
     for (auto& g : out) {
       if (!g.meets) continue;

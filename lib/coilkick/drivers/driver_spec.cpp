@@ -131,7 +131,38 @@ void check_hold(const DriverSpec& s) {
     }
   }
 }
+// Plain repetition (RepeatSpec): a period, an on-time inside it with room for the edges, a count.
+void check_repeat(const DriverSpec& s) {
+  const auto& r = s.repeat;
+  engine::require_non_negative("repeat", "period_s", r.period_s);
+  if (!r.present()) {
+    if (!std::isnan(r.on_time_s) || r.count != 0) throw std::invalid_argument("repeat: period_s is needed for a repetition");
+    return;
+  }
+  if (s.hold.present()) throw std::invalid_argument("repeat: a drive is a hold or a repetition, not both (remove [hold] or [repeat])");
+  if (r.period_s > 1e3) throw std::invalid_argument("repeat: period_s must be at most 1000 s");
+  if (std::isnan(r.on_time_s)) throw std::invalid_argument("repeat: on_time_s is needed with period_s");
+  engine::require_positive("repeat", "on_time_s", r.on_time_s);
+  const double edges = 2.0 * (s.drive.rise_time_s + s.drive.fall_time_s);
+  if (!(r.on_time_s >= edges) || !(r.period_s - r.on_time_s >= edges)) {
+    throw std::invalid_argument("repeat: on_time_s must leave the on- and off-times at least twice the drive's rise and fall time (" +
+                                std::to_string(edges) + " s) inside period_s");
+  }
+  if (r.count < 1 || r.count > kMostRepeatCount) {
+    throw std::invalid_argument("repeat: count must be 1 to " + std::to_string(kMostRepeatCount) + ", got " + std::to_string(r.count));
+  }
+}
 }  // namespace
+
+HoldSpec DriverSpec::periodic_drive() const {
+  if (!repeat.present()) return hold;
+  HoldSpec h;
+  h.pull_in_time_s = 0.0;
+  h.pwm_frequency_Hz = 1.0 / repeat.period_s;
+  h.pwm_duty = repeat.on_time_s / repeat.period_s;
+  h.cycles = repeat.count;
+  return h;
+}
 
 double coil_resistance_ohm(const CoilSpec& c) {
   return copper_resistance_ohm(c.resistance_at_20C_ohm, c.temperature_C, c.copper_temperature_coefficient_per_K);
@@ -227,6 +258,7 @@ void check_driver_spec(const DriverSpec& s) {
   require_positive("analysis", "energy_balance_limit", s.analysis.energy_balance_limit);
   require_positive("analysis", "maximum_wall_time_s", s.analysis.maximum_wall_time_s);
   check_hold(s);
+  check_repeat(s);
   for (const auto& x : s.extra_parts) {
     const std::string owner = "extra_part '" + x.name + "'";
     if (x.name.empty()) throw std::invalid_argument("extra_part: every extra part needs a name");

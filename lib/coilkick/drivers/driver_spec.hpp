@@ -54,7 +54,20 @@ struct HoldSpec {
   double pwm_frequency_Hz = 0.0;
   double pwm_duty = std::numeric_limits<double>::quiet_NaN();
   double average_current_A = std::numeric_limits<double>::quiet_NaN();
+  // 0: the PWM's periodic steady state; n > 0: n periods simulated one by one from the end of
+  // the pull-in, the final switch-off ending the last (a plain repetition, RepeatSpec).
+  int cycles = 0;
   bool present() const { return pwm_frequency_Hz > 0.0; }
+};
+
+// Plain repeated switching: on for on_time_s in every period_s, count times from the off-state;
+// the final switch-off ends the last on-time. Run as a hold without pull-in (HoldSpec::cycles).
+constexpr int kMostRepeatCount = 100000;
+struct RepeatSpec {
+  double period_s = 0.0;  // 0: no repetition
+  double on_time_s = std::numeric_limits<double>::quiet_NaN();
+  int count = 0;
+  bool present() const { return period_s > 0.0; }
 };
 
 enum class Topology { low_side_npn, low_side_nmos, low_side_darlington, high_side_pnp, high_side_pmos };
@@ -178,6 +191,11 @@ struct DriverSpec {
   AnalysisSpec analysis;
   std::vector<ExtraPart> extra_parts;
   HoldSpec hold;
+  RepeatSpec repeat;
+  // A hold or a repetition: the drive before the final switch-off is periodic (drivers/hold.hpp).
+  bool has_periodic_drive() const { return hold.present() || repeat.present(); }
+  // The hold, or the repetition as a hold without pull-in that runs `count` periods.
+  HoldSpec periodic_drive() const;
 };
 
 // Throws std::invalid_argument naming the field (e.g. "coil.inductance_H must be > 0").

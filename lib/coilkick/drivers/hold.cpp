@@ -30,6 +30,7 @@ engine::Network with_logic(const BuiltDriver& b, engine::Waveform w) {
 struct HoldSolver {
   const DriverSpec& spec;
   const BuiltDriver& b;
+  const HoldSpec hold;  // the hold, or the repetition as one (DriverSpec::periodic_drive)
   bool allow_shooting = true;
   HoldResult out;
   double i_full = 0.0;  // supply over hot resistance: scales the tolerances
@@ -44,7 +45,7 @@ struct HoldSolver {
   // Stage 1: full drive from the off-state until the time or the current of the pull-in.
   engine::CircuitState pull_in() {
     const auto& d = spec.drive;
-    const auto& h = spec.hold;
+    const auto& h = hold;
     const engine::Network net = with_logic(b, engine::Waveform::edge(0.0, d.high_level_V, 0.0, d.rise_time_s));
     const engine::Circuit c(net);
     const engine::CircuitState start = relay::operating_point_with_armatures_open(net, c, 0.0);
@@ -89,14 +90,14 @@ struct HoldSolver {
   // runs from the start of the rise to the start of the fall.
   engine::Network pwm_network(double duty) const {
     const auto& d = spec.drive;
-    const double T = 1.0 / spec.hold.pwm_frequency_Hz;
+    const double T = 1.0 / hold.pwm_frequency_Hz;
     return with_logic(b, engine::Waveform::pulse_train(0.0, d.high_level_V, T - duty * T, d.rise_time_s, duty * T - d.rise_time_s,
                                                        d.fall_time_s, T, 0));
   }
 
   // Stage 2 for one duty: the steady state, warm-started from `guess` (any time; moved to T).
   engine::PeriodicSteadyState steady_state(const engine::Circuit& c, const engine::CircuitState& guess) const {
-    const double T = 1.0 / spec.hold.pwm_frequency_Hz;
+    const double T = 1.0 / hold.pwm_frequency_Hz;
     engine::CircuitState g{T, guess.values};
     engine::PeriodicOptions p;
     p.period_s = T;
@@ -107,10 +108,11 @@ struct HoldSolver {
 
   // Stage 3: one steady period, recorded, measured.
   void measure_period(const engine::Circuit& c, const engine::CircuitState& x_star) {
-    const double T = 1.0 / spec.hold.pwm_frequency_Hz;
+    const double T = 1.0 / hold.pwm_frequency_Hz;
     const engine::Probe coil = engine::Probe::state(c, "coil.current");
-    std::vector<engine::EventSpec> ev{engine::EventSpec::minimum("hold_min", coil, T), engine::EventSpec::maximum("hold_max", coil, T)};
-    out.period = std::make_shared<const engine::TransientResult>(engine::simulate(c, x_star, options(2.0 * T), ev));
+    const double t0 = x_star.time_s;  // a multiple of T: the period's start
+    std::vector<engine::EventSpec> ev{engine::EventSpec::minimum("hold_min", coil, t0), engine::EventSpec::maximum("hold_max", coil, t0)};
+    out.period = std::make_shared<const engine::TransientResult>(engine::simulate(c, x_star, options(t0 + T), ev));
     const auto& r = *out.period;
     const int k = c.state_index("coil.current");
     // ∫ i dt over the period, exact for the cubic Hermite interpolant of the accepted points.
@@ -125,11 +127,31 @@ struct HoldSolver {
     out.minimum_current_A = r.event("hold_min").value;
     out.maximum_current_A = r.event("hold_max").value;
     const Eigen::VectorXd x0 = r.states().row(0).transpose(), x1 = r.states().row(r.states().rows() - 1).transpose();
+    out.period_end = {r.end_time_s(), x1};
     out.supply_energy_per_period_J = supply_energy_between(c, x0, x1);
     out.clamp_energy_per_period_J = b.clamp_elements.empty() ? 0.0 : heat_between(c, x0, x1, b.clamp_elements);
     out.switch_energy_per_period_J = heat_between(c, x0, x1, b.switch_elements);
     out.clamp_part_energy_per_period_J.clear();
     for (const auto& e : b.clamp_part_elements) out.clamp_part_energy_per_period_J.push_back(heat_between(c, x0, x1, {e}));
+  }
+
+  // A repetition: its periods one by one from the pull-in's end, the last one measured.
+  void cycles(const engine::CircuitState& start) {
+    const engine::Network net = pwm_network(hold.pwm_duty);
+    const engine::Circuit c(net);
+    const double T = 1.0 / hold.pwm_frequency_Hz;
+    engine::CircuitState x{T, start.values};
+    if (hold.cycles > 1) {
+      auto o = options(T + (hold.cycles - 1) * T);
+      o.record_waveforms = false;
+      const engine::TransientResult r = engine::simulate(c, x, o);
+      x = {r.end_time_s(), r.states().row(r.states().rows() - 1).transpose()};
+      x.values.tail(x.values.size() - c.circuit_state_count()).setZero();
+    }
+    out.duty = hold.pwm_duty;
+    out.steady.method = engine::PeriodicMethod::direct;
+    out.steady.period_runs = hold.cycles;
+    measure_period(c, x);
   }
 
   // Stages 2 and 3 at one duty; returns the circuit's steady state.
@@ -145,8 +167,8 @@ struct HoldSolver {
   // The duty whose steady state averages hold.average_current: secant on avg(D) − target from
   // the resistive estimate D = target / full current, kept inside the duties the edges allow.
   engine::CircuitState hold_for_current(const engine::CircuitState& guess) {
-    const double target = spec.hold.average_current_A;
-    const double T = 1.0 / spec.hold.pwm_frequency_Hz;
+    const double target = hold.average_current_A;
+    const double T = 1.0 / hold.pwm_frequency_Hz;
     const double edges = spec.drive.rise_time_s + spec.drive.fall_time_s;
     const double lo = 2.0 * edges / T, hi = 1.0 - 2.0 * edges / T;
     auto clamp = [&](double d) { return std::min(hi, std::max(lo, d)); };
@@ -176,17 +198,21 @@ struct HoldSolver {
 }  // namespace
 
 HoldResult solve_hold(const DriverSpec& spec, const BuiltDriver& b, bool allow_shooting) {
-  if (!spec.hold.present()) throw std::invalid_argument("hold: the description has no hold (hold.pwm_frequency)");
-  HoldSolver s{spec, b, allow_shooting, {}};
+  if (!spec.has_periodic_drive()) throw std::invalid_argument("hold: the description has no hold ([hold] or [repeat])");
+  HoldSolver s{spec, b, spec.periodic_drive(), allow_shooting, {}};
   s.i_full = spec.supply.voltage_V / b.coil_resistance_ohm;
-  s.out.period_s = 1.0 / spec.hold.pwm_frequency_Hz;
+  s.out.period_s = 1.0 / s.hold.pwm_frequency_Hz;
+  s.out.cycles = s.hold.cycles;
   const engine::CircuitState pulled = s.pull_in();
-  const engine::CircuitState steady =
-      std::isnan(spec.hold.average_current_A) ? s.hold_at(spec.hold.pwm_duty, pulled) : s.hold_for_current(pulled);
-  s.out.final_start = {spec.drive.switch_off_at_s, steady.values};
+  if (s.hold.cycles > 0) s.cycles(pulled);
+  else if (std::isnan(s.hold.average_current_A)) s.hold_at(s.hold.pwm_duty, pulled);
+  else s.hold_for_current(pulled);
+  // The final switch-off starts where the measured period ends: the end of an on-time.
+  const engine::CircuitState& end = s.out.period_end;
+  s.out.final_start = {spec.drive.switch_off_at_s, end.values};
   if (b.armature) {
     const engine::Circuit c(b.network);
-    s.out.armature_held = steady.values[c.state_index("coil.gap")] < b.armature->mechanics.make_gap_m;
+    s.out.armature_held = end.values[c.state_index("coil.gap")] < b.armature->mechanics.make_gap_m;
   }
   return std::move(s.out);
 }
@@ -195,13 +221,15 @@ void set_hold_metrics(const DriverSpec& spec, const HoldResult* h, Metrics& m) {
   auto put = [&](const char* name, double v) { m.set(name, h ? v : kNaN); };
   const double i_rel = release_current_A(spec.coil);
   const double T = h ? h->period_s : kNaN;
-  put("hold_pull_in_time_s", h ? h->pull_in_time_s : kNaN);
-  put("hold_pull_in_current_A", h ? h->pull_in_end_current_A : kNaN);
+  // A repetition has no pull-in and no hold to keep above the release current.
+  const bool held = h && h->cycles == 0;
+  put("hold_pull_in_time_s", held ? h->pull_in_time_s : kNaN);
+  put("hold_pull_in_current_A", held ? h->pull_in_end_current_A : kNaN);
   put("hold_duty", h ? h->duty : kNaN);
   put("hold_average_current_A", h ? h->average_current_A : kNaN);
   put("hold_ripple_A", h ? h->maximum_current_A - h->minimum_current_A : kNaN);
   put("hold_minimum_current_A", h ? h->minimum_current_A : kNaN);
-  put("hold_current_margin", h ? h->minimum_current_A / i_rel : kNaN);
+  put("hold_current_margin", held ? h->minimum_current_A / i_rel : kNaN);
   put("hold_clamp_average_power_W", h ? h->clamp_energy_per_period_J / T : kNaN);
   put("hold_switch_average_power_W", h ? h->switch_energy_per_period_J / T : kNaN);
   put("hold_supply_energy_per_period_J", h ? h->supply_energy_per_period_J : kNaN);

@@ -8,6 +8,9 @@
 //  3. one steady-state period is simulated and measured (average, ripple, minimum current;
 //     energy per period of the supply, the clamp, the switch);
 //  4. the final switch-off starts from the steady state at the end of an on-time.
+// A plain repetition (RepeatSpec) runs as a hold without pull-in whose `count` periods are
+// simulated one by one from the off-state; the last one is measured and the final switch-off
+// ends it.
 // The PWM period starts at the drive's falling edge: the periodic state is the state just before
 // the switch turns off, so the final switch-off is an ordinary falling edge from that state.
 #include <memory>
@@ -32,7 +35,9 @@ struct HoldResult {
   double supply_energy_per_period_J = 0.0, clamp_energy_per_period_J = 0.0, switch_energy_per_period_J = 0.0;
   std::vector<double> clamp_part_energy_per_period_J;  // per BuiltDriver::clamp_parts
   engine::PeriodicSteadyState steady;     // how the steady state was found
-  engine::CircuitState final_start;       // the steady state, at drive.switch_off_at_s
+  int cycles = 0;                         // a repetition's periods simulated one by one (0: steady state)
+  engine::CircuitState period_end;        // the state at the end of the measured period
+  engine::CircuitState final_start;       // that state, at drive.switch_off_at_s
   std::shared_ptr<const engine::TransientResult> pull_in, period;  // the simulated pull-in and one steady period
 };
 

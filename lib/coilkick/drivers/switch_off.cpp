@@ -19,7 +19,7 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   SwitchOffResult out;
   // With a hold the switch-off starts from the PWM's steady state instead of the DC on-state.
   OnState start = on;
-  if (spec.hold.present()) {
+  if (spec.has_periodic_drive()) {
     out.hold = std::make_shared<const HoldResult>(solve_hold(spec, b));
     start.state = out.hold->final_start;
     start.coil_current_A = start.state.values[circuit.state_index("coil.current")];

@@ -79,7 +79,7 @@ class Reader {
         read_extra_parts(v);
         continue;
       }
-      static const std::vector<std::string> sections{"supply", "drive", "hold", "switch", "coil", "clamp", "relay", "analysis", "tolerances"};
+      static const std::vector<std::string> sections{"supply", "drive", "hold", "repeat", "switch", "coil", "clamp", "relay", "analysis", "tolerances"};
       if (std::find(sections.begin(), sections.end(), key) == sections.end()) {
         std::vector<std::string> top = sections;
         top.push_back("name");
@@ -240,6 +240,16 @@ class Reader {
       if (key == "coil.part") continue;  // read first
       if (seen_.count(key)) fail(loc, key, "is given twice");
       bool done = false;
+      if (key == "repeat.count") {
+        // A whole number of on/off cycles.
+        if (!v.is_integer()) fail(loc, key, std::string("must be a whole number of cycles, not ") + type_name(v));
+        const auto n = *v.value<std::int64_t>();
+        if (n < 1 || n > drivers::kMostRepeatCount) {
+          fail(loc, key, "must be 1 to " + std::to_string(drivers::kMostRepeatCount) + ", got " + std::to_string(n));
+        }
+        s_.driver.repeat.count = static_cast<int>(n);
+        done = true;
+      }
       for (const auto& n : numeric_table()) {
         if (key != n.key) continue;
         n.ref(s_) = quantity_of(v, n.dim, loc, key);

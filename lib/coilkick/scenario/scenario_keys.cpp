@@ -31,6 +31,8 @@ const std::vector<NumericKey>& numeric_table() {
       NK("hold.pwm_frequency", frequency, "Hz", driver.hold.pwm_frequency_Hz, "hold: pwm_frequency_Hz"),
       NK("hold.pwm_duty", ratio, "1", driver.hold.pwm_duty, "hold: pwm_duty"),
       NK("hold.average_current", current, "A", driver.hold.average_current_A, "hold: average_current_A"),
+      NK("repeat.period", time, "s", driver.repeat.period_s, "repeat: period_s"),
+      NK("repeat.on_time", time, "s", driver.repeat.on_time_s, "repeat: on_time_s"),
       NK("switch.base_resistor", resistance, "ohm", driver.switch_.base_resistor_ohm, "switch: base_resistor_ohm"),
       NK("switch.gate_resistor", resistance, "ohm", driver.switch_.base_resistor_ohm, "switch: base_resistor_ohm"),
       NK("switch.pullup_resistor", resistance, "ohm", driver.switch_.pullup_resistor_ohm, "switch: pullup_resistor_ohm"),
@@ -137,6 +139,7 @@ std::vector<std::string> all_key_names() {
   for (const auto& n : text_table()) k.emplace_back(n.key);
   for (const auto& [n, f] : bool_table()) k.emplace_back(n);
   for (const auto& o : override_tables()) k.emplace_back(o.key);
+  k.emplace_back("repeat.count");
   return k;
 }
 
