@@ -20,20 +20,11 @@ using namespace coilkick::drivers;
 namespace {
 // 24 V, 48 Ω at 20 °C (55.5 Ω at 60 °C), 0.35 H: τ = 6.3 ms = 126 periods of the 20 kHz PWM.
 DriverSpec held_valve(ClampKind clamp) {
-  DriverSpec s;
-  s.supply.voltage_V = 24.0;
-  s.drive.high_level_V = 5.0;
-  s.drive.fall_time_s = 20e-9;
-  s.switch_.topology = Topology::low_side_nmos;
-  s.switch_.part = "nmos_logic_level_60v";
-  s.switch_.base_resistor_ohm = 100.0;
-  s.coil.resistance_at_20C_ohm = 48.0;
+  DriverSpec s = test_support::valve_case();
   s.coil.temperature_C = 60.0;
-  s.coil.inductance_H = 0.35;
+  s.coil.release_current_A = std::nan("");
   s.coil.release_voltage_V = 3.6;
   s.clamp.kind = clamp;
-  s.clamp.diode_part = "rectifier_1a";
-  s.clamp.zener_part = "zener_500mw_18v";
   s.hold.pull_in_time_s = 30e-3;
   s.hold.pwm_frequency_Hz = 20e3;
   s.hold.pwm_duty = 0.4;

@@ -18,23 +18,7 @@ using namespace coilkick::drivers;
 
 namespace {
 
-// A 24 V solenoid valve (invented demo values) on a logic-level N-MOSFET: 48 Ω, 0.35 H.
-DriverSpec valve_case() {
-  DriverSpec s;
-  s.supply.voltage_V = 24.0;
-  s.drive.high_level_V = 5.0;
-  s.drive.fall_time_s = 20e-9;
-  s.switch_.topology = Topology::low_side_nmos;
-  s.switch_.part = "nmos_logic_level_60v";
-  s.switch_.base_resistor_ohm = 100.0;
-  s.coil.resistance_at_20C_ohm = 48.0;
-  s.coil.inductance_H = 0.35;
-  s.coil.release_current_A = 60e-3;
-  s.clamp.kind = ClampKind::diode;
-  s.clamp.zener_part = "zener_500mw_18v";
-  s.clamp.tvs_part = "tvs_400w_33v";
-  return s;
-}
+using test_support::valve_case;
 
 const RatingCheck* find_check(const SwitchOffResult& r, const std::string& name) {
   for (const auto& c : r.checks) {
