@@ -133,6 +133,12 @@ def build(scenario, samples=200, seed=1, progress=None):
     on_names = ["coil_current_at_switch_off_A", "drive_current_A", "forced_beta", "switch_saturation_voltage_V",
                 "coil_voltage_on_V", "logic_pin_current_A"]
     data["on_state"] = [{"name": n, "value": run.metrics[n], "text": _si(run.metrics[n], _unit(n))} for n in on_names]
+    # A PWM hold or a repetition: its metrics, and its ripple and the release from it per clamp.
+    data["hold"] = None
+    if run.hold is not None:
+        hold_names = [n for n in run.metrics if n.startswith("hold_") and math.isfinite(run.metrics[n])]
+        data["hold"] = {"rows": [{"name": n, "value": run.metrics[n], "text": _si(run.metrics[n], _unit(n))} for n in hold_names],
+                        "svg": _svg(plot.hold(rows, title="the hold per clamp"))}
     compare_rows = []
     for r in rows:
         m = r.result.metrics if r.result else {}

@@ -48,7 +48,15 @@ struct HoldSolver {
     const auto& h = hold;
     const engine::Network net = with_logic(b, engine::Waveform::edge(0.0, d.high_level_V, 0.0, d.rise_time_s));
     const engine::Circuit c(net);
-    const engine::CircuitState start = relay::operating_point_with_armatures_open(net, c, 0.0);
+    // The off-state the pull-in starts from: relays released (operated where that does not solve,
+    // as in off_state.cpp).
+    engine::CircuitState start;
+    try {
+      start = relay::operating_point_with_armatures_open(net, c, 0.0);
+    } catch (const engine::SimulationError&) {
+      if (!b.armature) throw;
+      start = relay::operating_point_with_armatures_closed(net, c, 0.0);
+    }
     const bool by_current = !std::isnan(h.pull_in_current_A);
     double stop = by_current ? 0.0 : h.pull_in_time_s;
     if (by_current) {

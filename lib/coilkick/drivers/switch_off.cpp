@@ -17,9 +17,11 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   const OnState on = solve_on_state(spec, b, circuit);
   const OffState off = solve_off_state(spec, b, circuit, on.coil_current_A);
   SwitchOffResult out;
-  // With a hold the switch-off starts from the PWM's steady state instead of the DC on-state.
+  // With a hold the switch-off starts from the PWM's steady state instead of the DC on-state —
+  // where the driver blocks at all (otherwise off_state_blocks fails and says why; a hold of a
+  // coil that never de-energises has no steady period to speak of).
   OnState start = on;
-  if (spec.has_periodic_drive()) {
+  if (spec.has_periodic_drive() && off.blocks) {
     out.hold = std::make_shared<const HoldResult>(solve_hold(spec, b));
     start.state = out.hold->final_start;
     start.coil_current_A = start.state.values[circuit.state_index("coil.current")];
