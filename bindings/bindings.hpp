@@ -41,5 +41,6 @@ void DefineScenario(pybind11::module_& m);
 void DefineResults(pybind11::module_& m);
 void DefineAnalyses(pybind11::module_& m);
 void DefineRelay(pybind11::module_& m);
+void DefineLeastSquares(pybind11::module_& m);
 
 }  // namespace coilkick::python

@@ -11,4 +11,5 @@ PYBIND11_MODULE(_core, m) {
   coilkick::python::DefineResults(m);
   coilkick::python::DefineAnalyses(m);
   coilkick::python::DefineRelay(m);
+  coilkick::python::DefineLeastSquares(m);
 }
