@@ -54,6 +54,10 @@ Scenario read_scenario_text(const std::string& text, const std::string& name, co
 // Throws ScenarioError naming the key (with a suggestion) if it is not a numeric key.
 void set_numeric_key(Scenario& s, const std::string& key, double value, const catalogue::Catalogue& parts);
 
+// The value of a numeric key in the scenario (SI base units): the fits start from it. Throws
+// ScenarioError for a key that is not numeric, or a part override the scenario does not set.
+double numeric_key_value(const Scenario& s, const std::string& key);
+
 // The clamp kinds whose parts and values the scenario gives (and `none`), for comparisons.
 // A message of the driver checks in the file's words: "coil: inductance_H must be > 0" becomes
 // "coil.inductance must be > 0" (fields with a scenario key; others are left as they are).

@@ -206,6 +206,23 @@ void set_numeric_key(Scenario& s, const std::string& key, double value, const ca
                       "clamp.zener.overrides.breakdown_voltage)" + engine::did_you_mean(key, names));
 }
 
+double numeric_key_value(const Scenario& s, const std::string& key) {
+  Scenario c = s;  // the tables hand out references into a scenario they may write
+  for (const auto& n : numeric_table()) {
+    if (key == n.key) return n.ref(c);
+  }
+  for (const auto& o : override_tables()) {
+    const std::string prefix = std::string(o.key) + ".";
+    if (key.rfind(prefix, 0) != 0) continue;
+    const auto& m = o.map(c);
+    const auto it = m.find(key.substr(prefix.size()));
+    if (it != m.end()) return it->second;
+    throw ScenarioError("key '" + key + "': the scenario does not set this part parameter (give it as an override to start from)");
+  }
+  if (const double* field = extra_part_field(c, key)) return *field;
+  throw ScenarioError("key '" + key + "' is not a numeric scenario key");
+}
+
 std::vector<std::pair<std::string, std::string>> numeric_keys() {
   std::vector<std::pair<std::string, std::string>> out;
   for (const auto& n : numeric_table()) out.emplace_back(n.key, n.unit);
