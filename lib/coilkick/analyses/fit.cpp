@@ -11,15 +11,6 @@
 namespace coilkick::analyses {
 namespace {
 
-// Half way from the first value to the highest, first reached: linear between samples.
-double half_way_time(const std::vector<double>& t, const std::vector<double>& v) {
-  const double v0 = v.front(), level = v0 + 0.5 * (*std::max_element(v.begin(), v.end()) - v0);
-  for (std::size_t k = 1; k < v.size(); ++k) {
-    if (v[k] >= level && v[k] > v0) return t[k - 1] + (level - v[k - 1]) / (v[k] - v[k - 1]) * (t[k] - t[k - 1]);
-  }
-  throw std::invalid_argument("fit: the capture's switch voltage never rises: no switch-off edge to align with");
-}
-
 // The same point of the model's switch voltage, on its dense output (bisection in the
 // accepted step where the recorded points cross it).
 double model_half_way_time(const drivers::BuiltDriver& b, const drivers::SwitchOffResult& run) {
@@ -52,7 +43,8 @@ SwitchOffFit fit_switch_off(const scenario::Scenario& s, const catalogue::Catalo
     throw std::invalid_argument("fit: the capture needs a current and a switch-voltage channel");
   }
   if (!(current_noise_A > 0.0) || !std::isfinite(current_noise_A)) throw std::invalid_argument("fit: the current noise must be > 0");
-  const double t_edge_capture = half_way_time(capture.time_s, capture.voltage_V);
+  const double t_edge_capture = scenario::switch_voltage_edge_time_s(capture.time_s, capture.voltage_V);
+  if (std::isnan(t_edge_capture)) throw std::invalid_argument("fit: the capture's switch voltage never rises: no switch-off edge to align with");
   const auto n = static_cast<Eigen::Index>(keys.size());
   // The keys, and last the time shift between capture and model: the edges are found on samples
   // (a scope's few per microsecond against an edge of a fraction of one), and a shift of a

@@ -1,7 +1,7 @@
 #pragma once
-// Nonlinear least squares for fits to bench captures: Levenberg–Marquardt with Moré's scaling
-// (J. J. Moré, "The Levenberg–Marquardt algorithm: implementation and theory", Numerical
-// Analysis, Lecture Notes in Mathematics 630, Springer 1978), the Jacobian by forward differences
+// Nonlinear least squares for fits to bench captures: Levenberg–Marquardt with the damping
+// scaled by the diagonal of JᵀJ (J. J. Moré, Lecture Notes in Mathematics 630, Springer 1978,
+// pp. 105–116), the Jacobian by forward differences
 // on each parameter's own scale, and the parameters' standard errors from the Jacobian at the
 // optimum: covariance s²·(JᵀJ)⁻¹ with s² the residual sum of squares over (residuals −
 // parameters) — the usual linearised estimate (e.g. Press et al., Numerical Recipes, 3rd ed.,

@@ -249,29 +249,34 @@ class Reader {
     }
   }
 
-  // Time zero at the switch-off edge: where the switch voltage first rises through half the way
-  // from its first value to its highest (linear interpolation between the samples).
+  // Time zero at the switch-off edge (switch_voltage_edge_time_s).
   void shift_to_edge(Capture& c) const {
     if (c.voltage_V.empty()) throw std::invalid_argument(file_ + ": time zero at the switch-voltage edge needs a voltage channel");
-    const double v0 = c.voltage_V.front();
-    const double vmax = *std::max_element(c.voltage_V.begin(), c.voltage_V.end());
-    if (!(vmax - v0 > 1e-9 * std::max(1.0, std::abs(v0)))) {
+    const double t = switch_voltage_edge_time_s(c.time_s, c.voltage_V);
+    if (std::isnan(t)) {
       throw std::invalid_argument(file_ + ": the switch voltage never rises above its first value: no switch-off edge to take as time zero");
     }
-    const double level = v0 + 0.5 * (vmax - v0);
-    for (std::size_t k = 1; k < c.voltage_V.size(); ++k) {
-      if (c.voltage_V[k] >= level) {
-        const double a = c.voltage_V[k - 1], b = c.voltage_V[k];
-        const double t = c.time_s[k - 1] + (level - a) / (b - a) * (c.time_s[k] - c.time_s[k - 1]);
-        c.time_shift_s = t;
-        for (auto& x : c.time_s) x -= t;
-        return;
-      }
-    }
+    c.time_shift_s = t;
+    for (auto& x : c.time_s) x -= t;
   }
 };
 
 }  // namespace
+
+double switch_voltage_edge_time_s(const std::vector<double>& time_s, const std::vector<double>& voltage_V) {
+  if (voltage_V.empty()) return std::nan("");
+  const double v0 = voltage_V.front();
+  const double vmax = *std::max_element(voltage_V.begin(), voltage_V.end());
+  if (!(vmax - v0 > 1e-9 * std::max(1.0, std::abs(v0)))) return std::nan("");
+  const double level = v0 + 0.5 * (vmax - v0);
+  for (std::size_t k = 1; k < voltage_V.size(); ++k) {
+    if (voltage_V[k] >= level) {
+      const double a = voltage_V[k - 1], b = voltage_V[k];
+      return time_s[k - 1] + (level - a) / (b - a) * (time_s[k] - time_s[k - 1]);
+    }
+  }
+  return std::nan("");
+}
 
 Capture read_capture_text(const std::string& text, const std::string& file, const CaptureOptions& options) {
   return Reader(file, options).read(text);

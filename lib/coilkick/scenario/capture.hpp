@@ -40,6 +40,11 @@ struct Capture {
   int first_data_line = 0;
 };
 
+// Where a switch voltage first rises half way from its first value to its highest (linear
+// between samples): the switch-off edge a capture's time zero and a fit's alignment use. NaN
+// where it never rises.
+double switch_voltage_edge_time_s(const std::vector<double>& time_s, const std::vector<double>& voltage_V);
+
 // Throws std::invalid_argument "file:line: ..." for anything it cannot read as asked.
 Capture read_capture_text(const std::string& text, const std::string& file, const CaptureOptions& options);
 Capture read_capture_file(const std::string& path, const CaptureOptions& options);
