@@ -194,17 +194,6 @@ struct Shooter {
 
 }  // namespace
 
-CircuitState period_map(const Circuit& c, const CircuitState& start, const TransientOptions& step_options, double period_s) {
-  TransientOptions o = step_options;
-  o.stop_time_s = start.time_s + period_s;
-  o.record_waveforms = false;
-  o.progress = nullptr;
-  CircuitState s = start;
-  s.values.tail(s.values.size() - coupled_count(c)).setZero();
-  const TransientResult r = simulate(c, s, o);
-  return {r.end_time_s(), r.states().row(r.states().rows() - 1).transpose()};
-}
-
 PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& guess, const TransientOptions& step_options,
                                           const PeriodicOptions& options) {
   if (!(options.period_s > 0.0) || !std::isfinite(options.period_s)) {

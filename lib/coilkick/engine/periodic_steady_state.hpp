@@ -41,9 +41,6 @@ struct PeriodicSteadyState {
   std::string note;               // why shooting gave way to direct periods (empty otherwise)
 };
 
-// One period from `start` (energies reset to zero): the state at start.time_s + period_s.
-CircuitState period_map(const Circuit& c, const CircuitState& start, const TransientOptions& step_options, double period_s);
-
 // Throws SimulationError if neither shooting nor the direct periods converge, and
 // std::invalid_argument for a non-positive period.
 PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& guess, const TransientOptions& step_options,
