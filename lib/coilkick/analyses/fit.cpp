@@ -6,45 +6,164 @@
 
 #include "coilkick/drivers/on_state.hpp"
 #include "coilkick/drivers/switch_off.hpp"
+#include "coilkick/drivers/switch_on.hpp"
 #include "coilkick/engine/errors.hpp"
 
 namespace coilkick::analyses {
 namespace {
 
-// The same point of the model's switch voltage, on its dense output (bisection in the
-// accepted step where the recorded points cross it).
-double model_half_way_time(const drivers::BuiltDriver& b, const drivers::SwitchOffResult& run) {
-  const auto& w = run.waveforms;
-  const auto& tr = *run.transient;
-  const double v0 = w.switch_voltage_V[0];
-  const double level = v0 + 0.5 * (run.metrics.get("switch_voltage_peak_V") - v0);
-  auto v_at = [&](double t) {
-    const Eigen::VectorXd x = tr.sample(t);
-    return drivers::switch_voltage_V(b, tr.circuit(), t, x.data());
-  };
-  for (Eigen::Index k = 1; k < w.time_s.size(); ++k) {
-    if (w.switch_voltage_V[k] < level) continue;
-    double lo = w.time_s[k - 1], hi = w.time_s[k];
-    for (int it = 0; it < 200 && hi - lo > 1e-15 * std::max(1.0, hi); ++it) {
-      const double mid = 0.5 * (lo + hi);
-      (v_at(mid) < level ? lo : hi) = mid;
-    }
-    return 0.5 * (lo + hi);
+constexpr std::size_t kNoiseSamples = 16;
+
+// A run of the model: its transient, the switch voltage at any time, and the drive edge's start.
+struct ModelRun {
+  drivers::BuiltDriver built;
+  std::shared_ptr<const engine::TransientResult> transient;
+  double drive_edge_s = 0.0;
+  double make_time_s = std::nan("");
+  double switch_voltage(double t) const {
+    const Eigen::VectorXd x = transient->sample(t);
+    return drivers::switch_voltage_V(built, transient->circuit(), t, x.data());
   }
-  throw engine::SimulationError("fit: the model's switch voltage never rises half way to its peak");
+};
+
+ModelRun run_model(const scenario::Scenario& s, const catalogue::Catalogue& parts, CaptureEdge edge, double span_s) {
+  ModelRun m{drivers::build_driver_network(s.driver, parts), nullptr};  // bad values: invalid_argument
+  m.drive_edge_s = s.driver.drive.switch_off_at_s;
+  if (edge == CaptureEdge::switch_off) {
+    m.transient = drivers::simulate_switch_off(s.driver, m.built).transient;
+  } else {
+    auto on = drivers::simulate_switch_on(s.driver, m.built, span_s);
+    m.transient = on.transient;
+    m.make_time_s = on.make_time_s;
+  }
+  return m;
+}
+
+// The model's switch-voltage edge by the capture's rule (switch_voltage_edge_time_s), on the
+// recorded points and then by bisection on the dense output.
+double model_edge_time(const ModelRun& m) {
+  const auto& tr = *m.transient;
+  std::vector<double> t, v;
+  for (std::size_t k = 0; k < tr.times_s().size(); ++k) {
+    t.push_back(tr.times_s()[k]);
+    v.push_back(m.switch_voltage(t.back()));
+  }
+  const double rough = scenario::switch_voltage_edge_time_s(t, v);
+  if (std::isnan(rough)) throw engine::SimulationError("fit: the model's switch voltage never moves: no edge to align with");
+  double far = v[0];
+  for (double x : v) far = std::abs(x - v[0]) > std::abs(far - v[0]) ? x : far;
+  const double level = v[0] + 0.5 * (far - v[0]);
+  const double sign = far > v[0] ? 1.0 : -1.0;
+  const auto k = static_cast<std::size_t>(std::upper_bound(t.begin(), t.end(), rough) - t.begin());
+  double lo = t[std::max<std::size_t>(k, 1) - 1], hi = t[std::min(k, t.size() - 1)];
+  for (int it = 0; it < 200 && hi - lo > 1e-15 * std::max(1.0, hi); ++it) {
+    const double mid = 0.5 * (lo + hi);
+    (sign * (m.switch_voltage(mid) - level) < 0.0 ? lo : hi) = mid;
+  }
+  return 0.5 * (lo + hi) - m.drive_edge_s;
+}
+
+ModelTrace trace_of(const ModelRun& m, const std::vector<double>& times_after_edge_s) {
+  const auto& tr = *m.transient;
+  ModelTrace out;
+  out.edge_time_s = model_edge_time(m);
+  out.make_time_s = m.make_time_s;
+  const int coil = tr.circuit().state_index("coil.current");
+  out.current_A.reserve(times_after_edge_s.size());
+  out.voltage_V.reserve(times_after_edge_s.size());
+  for (double ta : times_after_edge_s) {
+    const double t = std::clamp(m.drive_edge_s + out.edge_time_s + ta, tr.start_time_s(), tr.end_time_s());
+    const Eigen::VectorXd x = tr.sample(t);
+    out.current_A.push_back(x[coil]);
+    out.voltage_V.push_back(drivers::switch_voltage_V(m.built, tr.circuit(), t, x.data()));
+  }
+  return out;
+}
+
+double span_after_edge(const std::vector<double>& times_after_edge_s) {
+  double last = 0.0;
+  for (double t : times_after_edge_s) last = std::max(last, t);
+  // The switch-voltage edge comes after the drive edge's start by the driver's turn-on delay:
+  // a switch-on run goes on a little past the last time (a later sample reads the run's end).
+  return 1.05 * last + 1e-4;
+}
+
+// The contact signal's change (half way from its first value to its last) and the measured
+// current there.
+void read_contact(const scenario::Capture& c, const std::vector<double>& t_after, CaptureFit& out) {
+  out.measured_release_current_A = std::nan("");
+  out.measured_contact_time_s = std::nan("");
+  if (c.contact.empty()) return;
+  const double a = c.contact.front(), b = c.contact.back();
+  if (!(std::abs(b - a) > 0.0)) return;
+  const double level = 0.5 * (a + b);
+  for (std::size_t k = 1; k < c.contact.size(); ++k) {
+    if ((c.contact[k] - level) * (b - a) < 0.0) continue;
+    const double f = (level - c.contact[k - 1]) / (c.contact[k] - c.contact[k - 1]);
+    out.measured_contact_time_s = t_after[k - 1] + f * (t_after[k] - t_after[k - 1]);
+    out.measured_release_current_A = c.current_A[k - 1] + f * (c.current_A[k] - c.current_A[k - 1]);
+    return;
+  }
 }
 
 }  // namespace
 
-SwitchOffFit fit_switch_off(const scenario::Scenario& s, const catalogue::Catalogue& parts, const scenario::Capture& capture,
-                            const std::vector<std::string>& keys, double current_noise_A) {
+const char* to_string(CaptureEdge e) { return e == CaptureEdge::switch_off ? "switch-off" : "switch-on"; }
+
+CaptureEdge capture_edge(const scenario::Capture& c) {
+  if (c.voltage_V.empty()) throw std::invalid_argument("capture: no switch-voltage channel to tell the edge from");
+  const double v0 = c.voltage_V.front();
+  double far = v0;
+  for (double v : c.voltage_V) far = std::abs(v - v0) > std::abs(far - v0) ? v : far;
+  if (far == v0) throw std::invalid_argument("capture: the switch voltage never moves: neither a switch-off nor a switch-on");
+  return far > v0 ? CaptureEdge::switch_off : CaptureEdge::switch_on;
+}
+
+ModelTrace model_trace(const scenario::Scenario& s, const catalogue::Catalogue& parts, CaptureEdge edge,
+                       const std::vector<double>& times_after_edge_s) {
+  return trace_of(run_model(s, parts, edge, span_after_edge(times_after_edge_s)), times_after_edge_s);
+}
+
+std::vector<std::string> default_fit_keys(const scenario::Scenario& s, CaptureEdge edge) {
+  std::vector<std::string> keys{"coil.inductance"};
+  if (edge == CaptureEdge::switch_off) {
+    if (std::isfinite(s.driver.coil.core_loss_resistance_ohm)) keys.emplace_back("coil.core_loss_resistance");
+    if (s.driver.relay.armature_model && std::isfinite(s.driver.relay.release_time_s)) keys.emplace_back("relay.release_time");
+  } else {
+    keys.emplace_back("coil.resistance");
+    if (s.driver.relay.armature_model && std::isfinite(s.driver.relay.operate_time_s)) keys.emplace_back("relay.operate_time");
+  }
+  return keys;
+}
+
+double current_noise_before_edge_A(const scenario::Capture& c) {
+  const double t_edge = scenario::switch_voltage_edge_time_s(c.time_s, c.voltage_V);
+  if (std::isnan(t_edge) || c.current_A.empty()) return std::nan("");
+  double sum = 0.0, sum2 = 0.0;
+  std::size_t n = 0;
+  for (std::size_t k = 0; k < c.time_s.size() && c.time_s[k] < t_edge; ++k, ++n) sum += c.current_A[k];
+  if (n < kNoiseSamples) return std::nan("");
+  const double mean = sum / static_cast<double>(n);
+  for (std::size_t k = 0; k < n; ++k) sum2 += (c.current_A[k] - mean) * (c.current_A[k] - mean);
+  return std::sqrt(sum2 / static_cast<double>(n - 1));
+}
+
+CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& parts, const scenario::Capture& capture,
+                       const std::vector<std::string>& keys, const FitOptions& options) {
   if (keys.empty()) throw std::invalid_argument("fit: no keys to fit");
   if (capture.current_A.empty() || capture.voltage_V.empty()) {
     throw std::invalid_argument("fit: the capture needs a current and a switch-voltage channel");
   }
-  if (!(current_noise_A > 0.0) || !std::isfinite(current_noise_A)) throw std::invalid_argument("fit: the current noise must be > 0");
+  CaptureFit out;
+  out.edge = capture_edge(capture);
+  out.keys = keys;
+  out.current_noise_A = options.current_noise_A > 0.0 ? options.current_noise_A : current_noise_before_edge_A(capture);
+  if (!(out.current_noise_A > 0.0) || !std::isfinite(out.current_noise_A)) {
+    throw std::invalid_argument("fit: the current's noise is not known: give it (the capture has fewer than 16 steady samples before its edge)");
+  }
   const double t_edge_capture = scenario::switch_voltage_edge_time_s(capture.time_s, capture.voltage_V);
-  if (std::isnan(t_edge_capture)) throw std::invalid_argument("fit: the capture's switch voltage never rises: no switch-off edge to align with");
+  if (std::isnan(t_edge_capture)) throw std::invalid_argument("fit: the capture's switch voltage has no edge to align with");
+  for (double t : capture.time_s) out.time_after_edge_s.push_back(t - t_edge_capture);
   const auto n = static_cast<Eigen::Index>(keys.size());
   // The keys, and last the time shift between capture and model: the edges are found on samples
   // (a scope's few per microsecond against an edge of a fraction of one), and a shift of a
@@ -55,40 +174,47 @@ SwitchOffFit fit_switch_off(const scenario::Scenario& s, const catalogue::Catalo
   p.scale.resize(n + 1);
   for (Eigen::Index k = 0; k < n; ++k) {
     p.initial[k] = scenario::numeric_key_value(s, keys[static_cast<std::size_t>(k)]);
+    if (!std::isfinite(p.initial[k])) {
+      throw std::invalid_argument("fit: key '" + keys[static_cast<std::size_t>(k)] + "' has no finite value in the scenario to start from");
+    }
     p.scale[k] = p.initial[k] != 0.0 ? std::abs(p.initial[k]) : 1.0;
+    out.start_values.push_back(p.initial[k]);
   }
   p.initial[n] = 0.0;
   p.scale[n] = dt;
-  SwitchOffFit out;
-  out.keys = keys;
-  auto model = [&](const Eigen::VectorXd& x) {
+  const double span = span_after_edge(out.time_after_edge_s);
+  auto at = [&](const Eigen::VectorXd& x) {
     scenario::Scenario c = s;
     for (Eigen::Index k = 0; k < n; ++k) scenario::set_numeric_key(c, keys[static_cast<std::size_t>(k)], x[k], parts);
-    const auto built = drivers::build_driver_network(c.driver, parts);  // bad values: invalid_argument
-    const auto run = drivers::simulate_switch_off(c.driver, built);
-    const auto& tr = *run.transient;
-    const double t_edge = model_half_way_time(built, run);
-    const int coil = tr.circuit().state_index("coil.current");
-    std::vector<double> i(capture.time_s.size());
-    for (std::size_t k = 0; k < i.size(); ++k) {
-      const double t = std::clamp(t_edge + capture.time_s[k] - t_edge_capture + x[n], tr.start_time_s(), tr.end_time_s());
-      i[k] = tr.sample(t)[coil];
-    }
-    return i;
+    std::vector<double> shifted(out.time_after_edge_s);
+    for (double& t : shifted) t += x[n];
+    return trace_of(run_model(c, parts, out.edge, span), shifted);
   };
   p.residuals = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
-    const auto i = model(x);
-    r.resize(static_cast<Eigen::Index>(i.size()));
-    for (std::size_t k = 0; k < i.size(); ++k) r[static_cast<Eigen::Index>(k)] = (i[k] - capture.current_A[k]) / current_noise_A;
+    const auto m = at(x);
+    r.resize(static_cast<Eigen::Index>(m.current_A.size()));
+    for (std::size_t k = 0; k < m.current_A.size(); ++k) {
+      r[static_cast<Eigen::Index>(k)] = (m.current_A[k] - capture.current_A[k]) / out.current_noise_A;
+    }
   };
-  out.result = levenberg_marquardt(p);
-  out.model_current_A = model(out.result.parameters);
+  LeastSquaresOptions lo;
+  lo.on_iteration = options.on_iteration;
+  out.result = levenberg_marquardt(p, lo);
+  if (!out.result.converged) throw engine::SimulationError("fit: " + out.result.message);
+  const auto best = at(out.result.parameters);
+  out.model_current_A = best.current_A;
+  out.model_make_time_s = best.make_time_s;
   out.time_shift_s = out.result.parameters[n];
   out.time_shift_error_s = out.result.standard_errors[n];
   for (Eigen::Index k = 0; k < n; ++k) {
     const double se = out.result.standard_errors[k];
     if (!(se < std::abs(out.result.parameters[k]))) out.undetermined.push_back(keys[static_cast<std::size_t>(k)]);
   }
+  if (out.edge == CaptureEdge::switch_on) {
+    out.measured_motion = find_armature_motion(out.time_after_edge_s, capture.current_A, out.current_noise_A);
+    out.model_motion = find_armature_motion(out.time_after_edge_s, out.model_current_A, 0.0);
+  }
+  read_contact(capture, out.time_after_edge_s, out);
   return out;
 }
 

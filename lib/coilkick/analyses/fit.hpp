@@ -1,15 +1,19 @@
 #pragma once
-// A switch-off fitted to a bench capture: the chosen numeric scenario keys (coil.inductance,
-// coil.resistance, coil.core_loss_resistance ...) adjusted by least squares (least_squares.hpp)
-// so that the normal engine's coil current matches the capture's, each residual a run of the
-// whole switch-off. Times: the capture's zero is its switch-voltage edge (capture.hpp), the
-// model's the same point of its own switch voltage (half way from its first value to its peak,
-// on the dense output), and the shift between the two is fitted with the keys (an edge found on
-// a scope's samples is only as sharp as their spacing). Keys whose standard error is not below
-// their value are reported as undetermined.
+// A driver fitted to a bench capture of its switch-off or switch-on: the chosen numeric scenario
+// keys (coil.inductance, coil.resistance, coil.core_loss_resistance ...) adjusted by least
+// squares (least_squares.hpp) so that the normal engine's coil current matches the capture's,
+// each residual a run of the whole switch-off (switch_off.hpp) or switch-on (switch_on.hpp).
+// Which edge: the capture's switch voltage rises from its first value (switch-off) or falls
+// (switch-on). Times: the capture's zero is its switch-voltage edge (capture.hpp), the model's
+// the same point of its own switch voltage (half way from its first value to the value farthest
+// from it), and the shift between the two is fitted with the keys (an edge found on a scope's
+// samples is only as sharp as their spacing). Keys whose standard error is not below their value
+// are reported as undetermined.
+#include <functional>
 #include <string>
 #include <vector>
 
+#include "coilkick/analyses/armature_motion.hpp"
 #include "coilkick/analyses/least_squares.hpp"
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/scenario/capture.hpp"
@@ -17,19 +21,62 @@
 
 namespace coilkick::analyses {
 
-struct SwitchOffFit {
+enum class CaptureEdge { switch_off, switch_on };
+const char* to_string(CaptureEdge e);
+
+// Throws std::invalid_argument when the capture has no switch voltage or it never moves.
+CaptureEdge capture_edge(const scenario::Capture& c);
+
+// What the model shows at times after its own switch-voltage edge (the capture's convention):
+// samples before its run's start read the start (the steady state before the edge), after its
+// end the end (the run stops once the coil's energy is spent; a switch-on runs to the last time).
+struct ModelTrace {
+  std::vector<double> current_A;
+  std::vector<double> voltage_V;
+  double edge_time_s = 0.0;  // the model's switch-voltage edge after the start of its drive edge
+  double make_time_s = 0.0;  // switch-on with the armature model: contact make after the drive edge (NaN otherwise)
+};
+ModelTrace model_trace(const scenario::Scenario& s, const catalogue::Catalogue& parts, CaptureEdge edge,
+                       const std::vector<double>& times_after_edge_s);
+
+// The keys fitted when none are named: coil.inductance with, at switch-off, the core loss (where
+// the scenario gives one) and, at switch-on, the coil resistance; with the armature model also
+// the data-sheet time of that edge (relay.release_time / relay.operate_time) where one is given.
+std::vector<std::string> default_fit_keys(const scenario::Scenario& s, CaptureEdge edge);
+
+// The capture's noise where none is given: the standard deviation of its current before the
+// edge (a steady current there), from at least 16 samples; NaN where there are fewer.
+double current_noise_before_edge_A(const scenario::Capture& c);
+
+struct CaptureFit {
+  CaptureEdge edge = CaptureEdge::switch_off;
   std::vector<std::string> keys;
+  std::vector<double> start_values;      // SI units of each key
   LeastSquaresResult result;              // parameters and standard errors in the keys' SI units, then the time shift
+  double current_noise_A = 0.0;           // the weights' σ
   double time_shift_s = 0.0;              // fitted shift of the capture's clock against the model's edge
   double time_shift_error_s = 0.0;
   std::vector<std::string> undetermined;  // keys whose standard error is not below their value (or NaN)
-  std::vector<double> model_current_A;    // at the capture's times, at the optimum
+  std::vector<double> time_after_edge_s;  // the capture's times after its own edge
+  std::vector<double> model_current_A;    // at those times, at the optimum
+  ArmatureMotion measured_motion;         // switch-on: the dip in the capture's current
+  ArmatureMotion model_motion;            // switch-on: the same reading of the fitted model's current
+  double model_make_time_s = 0.0;         // switch-on with the armature model: contact make (NaN otherwise)
+  // Switch-off with a contact channel: the coil current where the contact signal crosses half way
+  // from its first to its last value (the measured release current), and when; NaN otherwise.
+  double measured_release_current_A = 0.0;
+  double measured_contact_time_s = 0.0;
 };
 
-// current_noise_A: the capture's noise (weights 1/σ; the residual RMS is then about 1 for a
-// good fit). Throws ScenarioError for unknown keys, std::invalid_argument for a capture without
-// a current or a voltage channel or a time zero, engine::SimulationError for a run that fails.
-SwitchOffFit fit_switch_off(const scenario::Scenario& s, const catalogue::Catalogue& parts, const scenario::Capture& capture,
-                            const std::vector<std::string>& keys, double current_noise_A);
+struct FitOptions {
+  double current_noise_A = 0.0;  // 0: current_noise_before_edge_A
+  // Called after each accepted iteration with its number and the weighted sum of squares.
+  std::function<void(int, double)> on_iteration;
+};
+
+// Throws ScenarioError for unknown keys, std::invalid_argument for a capture without a current or
+// a voltage channel or an edge, or without a noise estimate, engine::SimulationError for a run that fails.
+CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& parts, const scenario::Capture& capture,
+                       const std::vector<std::string>& keys, const FitOptions& options = {});
 
 }  // namespace coilkick::analyses

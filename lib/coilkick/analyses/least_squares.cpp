@@ -97,6 +97,7 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& problem, const
       out.message = "no step lowers the sum of squares further";
     }
     j = jacobian(x, r);
+    if (o.on_iteration) o.on_iteration(out.iterations, ss);
     if (out.converged) break;
   }
   if (!out.converged) out.message = "not converged in " + std::to_string(o.maximum_iterations) + " iterations";

@@ -27,6 +27,8 @@ struct LeastSquaresOptions {
   double relative_step_tolerance = 1e-10;  // converged when a step moves every scaled parameter less
   double relative_reduction_tolerance = 1e-12;  // ... or the sum of squares falls by less than this
   double difference_step = 1e-6;           // forward-difference step, relative to each scale
+  // Called after each iteration with its number (from 1) and the sum of squares reached.
+  std::function<void(int iteration, double sum_of_squares)> on_iteration;
 };
 
 struct LeastSquaresResult {

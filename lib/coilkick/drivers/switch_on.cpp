@@ -9,26 +9,62 @@
 #include "coilkick/relay/armature_operating_point.hpp"
 
 namespace coilkick::drivers {
+namespace {
+
+struct SwitchOnSetup {
+  engine::Circuit circuit;
+  engine::CircuitState off;
+};
+
+// The driver's network with the drive rising at drive.switch_off_at_s, and its off state.
+SwitchOnSetup switch_on_setup(const DriverSpec& spec, const BuiltDriver& built) {
+  engine::Network net = built.network;
+  net.set_source_waveform("logic", engine::Waveform::edge(0.0, spec.drive.high_level_V, spec.drive.switch_off_at_s, spec.drive.rise_time_s));
+  engine::Circuit c(net);
+  engine::CircuitState off = relay::operating_point_with_armatures_open(net, c, 0.0);
+  return {std::move(c), std::move(off)};
+}
+
+engine::EventSpec make_event(const DriverSpec& spec, const BuiltDriver& built, const engine::Circuit& c, bool stop) {
+  return engine::EventSpec::crossing("make", engine::Probe::state(c, "coil.gap"), built.armature->mechanics.make_gap_m,
+                                     engine::Direction::falling, spec.drive.switch_off_at_s, stop);
+}
+
+}  // namespace
 
 double simulate_operate_time_s(const DriverSpec& spec, const BuiltDriver& built) {
   if (!built.armature) throw std::invalid_argument("operate time: the driver has no armature model (relay.armature_model)");
-  const auto& arm = *built.armature;
+  const SwitchOnSetup s = switch_on_setup(spec, built);
   const double t_on = spec.drive.switch_off_at_s;
-  engine::Network net = built.network;
-  net.set_source_waveform("logic", engine::Waveform::edge(0.0, spec.drive.high_level_V, t_on, spec.drive.rise_time_s));
-  const engine::Circuit c(net);
-  const engine::CircuitState off = relay::operating_point_with_armatures_open(net, c, 0.0);
-
   const double operate_s = relay_datasheet(spec).operate_time_s;
   auto o = driver_transient_options(spec, t_on + spec.drive.rise_time_s + 20.0 * operate_s,
                                     spec.supply.voltage_V / built.coil_resistance_ohm);
   o.record_waveforms = false;
   o.maximum_step_s = 0.05 * operate_s;  // see switch_off.cpp
-  const auto make = engine::EventSpec::crossing("make", engine::Probe::state(c, "coil.gap"), arm.mechanics.make_gap_m,
-                                                engine::Direction::falling, t_on, true);
-  const auto r = engine::simulate(c, off, o, {make});
+  const auto r = engine::simulate(s.circuit, s.off, o, {make_event(spec, built, s.circuit, true)});
   const auto& e = r.event("make");
   return e.time_s ? *e.time_s - t_on : std::nan("");
+}
+
+SwitchOnRun simulate_switch_on(const DriverSpec& spec, const BuiltDriver& built, double span_s) {
+  if (!(span_s > 0.0) || !std::isfinite(span_s)) throw std::invalid_argument("switch-on: the span must be > 0 s");
+  const SwitchOnSetup s = switch_on_setup(spec, built);
+  const double t_on = spec.drive.switch_off_at_s;
+  auto o = driver_transient_options(spec, t_on + span_s, spec.supply.voltage_V / built.coil_resistance_ohm);
+  // The armature's flight is a small part of the span: steps no longer than a fiftieth of it.
+  if (built.armature) o.maximum_step_s = 0.05 * std::min(span_s, relay_datasheet(spec).operate_time_s);
+  std::vector<engine::EventSpec> events;
+  if (built.armature) events.push_back(make_event(spec, built, s.circuit, false));
+  SwitchOnRun out;
+  out.edge_time_s = t_on;
+  auto r = std::make_shared<engine::TransientResult>(engine::simulate(s.circuit, s.off, o, events));
+  out.make_time_s = std::nan("");
+  if (built.armature) {
+    const auto& e = r->event("make");
+    if (e.time_s) out.make_time_s = *e.time_s - t_on;
+  }
+  out.transient = std::move(r);
+  return out;
 }
 
 }  // namespace coilkick::drivers

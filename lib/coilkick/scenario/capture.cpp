@@ -249,12 +249,12 @@ class Reader {
     }
   }
 
-  // Time zero at the switch-off edge (switch_voltage_edge_time_s).
+  // Time zero at the switch-voltage edge (switch_voltage_edge_time_s).
   void shift_to_edge(Capture& c) const {
     if (c.voltage_V.empty()) throw std::invalid_argument(file_ + ": time zero at the switch-voltage edge needs a voltage channel");
     const double t = switch_voltage_edge_time_s(c.time_s, c.voltage_V);
     if (std::isnan(t)) {
-      throw std::invalid_argument(file_ + ": the switch voltage never rises above its first value: no switch-off edge to take as time zero");
+      throw std::invalid_argument(file_ + ": the switch voltage never moves from its first value: no edge to take as time zero");
     }
     c.time_shift_s = t;
     for (auto& x : c.time_s) x -= t;
@@ -266,11 +266,13 @@ class Reader {
 double switch_voltage_edge_time_s(const std::vector<double>& time_s, const std::vector<double>& voltage_V) {
   if (voltage_V.empty()) return std::nan("");
   const double v0 = voltage_V.front();
-  const double vmax = *std::max_element(voltage_V.begin(), voltage_V.end());
-  if (!(vmax - v0 > 1e-9 * std::max(1.0, std::abs(v0)))) return std::nan("");
-  const double level = v0 + 0.5 * (vmax - v0);
+  double far = v0;  // the value farthest from the first: a switch-off's peak, a switch-on's low
+  for (double v : voltage_V) far = std::abs(v - v0) > std::abs(far - v0) ? v : far;
+  if (!(std::abs(far - v0) > 1e-9 * std::max(1.0, std::abs(v0)))) return std::nan("");
+  const double level = v0 + 0.5 * (far - v0);
+  const double sign = far > v0 ? 1.0 : -1.0;
   for (std::size_t k = 1; k < voltage_V.size(); ++k) {
-    if (voltage_V[k] >= level) {
+    if (sign * (voltage_V[k] - level) >= 0.0) {
       const double a = voltage_V[k - 1], b = voltage_V[k];
       return time_s[k - 1] + (level - a) / (b - a) * (time_s[k] - time_s[k - 1]);
     }

@@ -4,7 +4,7 @@
 // tab separated (with semicolons a decimal comma is read too), a time column and channels.
 // The caller maps columns to roles (time, current, voltage, contact) by name or 1-based number;
 // a current measured as a shunt's voltage is divided by the shunt resistance. Time zero can be
-// moved to the switch-voltage edge of a switch-off capture.
+// moved to the switch-voltage edge of a switch-off or switch-on capture.
 //
 // Errors name the file and line: a missing column (with the columns there are), a non-numeric
 // or empty value, time that does not increase, too few samples, a unit that does not fit its
@@ -40,9 +40,9 @@ struct Capture {
   int first_data_line = 0;
 };
 
-// Where a switch voltage first rises half way from its first value to its highest (linear
-// between samples): the switch-off edge a capture's time zero and a fit's alignment use. NaN
-// where it never rises.
+// Where a switch voltage first moves half way from its first value to the value farthest from
+// it (linear between samples): up to a switch-off's peak, down to a switch-on's low. The edge a
+// capture's time zero and a fit's alignment use; NaN where the voltage never moves.
 double switch_voltage_edge_time_s(const std::vector<double>& time_s, const std::vector<double>& voltage_V);
 
 // Throws std::invalid_argument "file:line: ..." for anything it cannot read as asked.
