@@ -42,5 +42,6 @@ void DefineResults(pybind11::module_& m);
 void DefineAnalyses(pybind11::module_& m);
 void DefineRelay(pybind11::module_& m);
 void DefineLeastSquares(pybind11::module_& m);
+void DefineFit(pybind11::module_& m);
 
 }  // namespace coilkick::python

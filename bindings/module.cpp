@@ -12,4 +12,5 @@ PYBIND11_MODULE(_core, m) {
   coilkick::python::DefineAnalyses(m);
   coilkick::python::DefineRelay(m);
   coilkick::python::DefineLeastSquares(m);
+  coilkick::python::DefineFit(m);
 }

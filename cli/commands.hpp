@@ -29,6 +29,15 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
 int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::string& plot_path, std::ostream& out);
 int cmd_sweep(const CommonOptions& o, const std::vector<std::string>& vary, const std::string& output, std::ostream& out);
 int cmd_tolerance(const CommonOptions& o, int samples, unsigned long long seed, std::ostream& out);
+struct FitCommand {
+  std::string capture;                  // CSV file
+  std::vector<std::string> parameters;  // keys; empty: analyses::default_fit_keys
+  std::vector<std::string> channels;    // "role=column" (time, current, voltage, contact); default time=1, current=2, voltage=3
+  std::vector<std::string> units;       // "column=unit"
+  std::string shunt, noise;             // quantities with units; empty: none / estimated
+  std::string plot, coil_record, record_name, csv;  // outputs; empty: not written
+};
+int cmd_fit(const CommonOptions& o, const FitCommand& f, std::ostream& out);
 int cmd_faults(const CommonOptions& o, const std::string& csv_path, std::ostream& out);
 // Replaces the process with the Python package's report builder (coilkick/report.py).
 int cmd_report(const CommonOptions& o, const std::string& output, int samples, unsigned long long seed);

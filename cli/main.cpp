@@ -1,4 +1,4 @@
-// coilkick command-line tool: run, compare, sweep, tolerance, suggest, faults (and demo).
+// coilkick command-line tool: run, compare, sweep, tolerance, suggest, faults, fit, report (and demo).
 #include <CLI/CLI.hpp>
 #include <csignal>
 #include <filesystem>
@@ -100,6 +100,25 @@ int main(int argc, char** argv) {
   rep->add_option("--samples", samples, "Monte Carlo runs of the tolerance section (default 200; 0: none)")->check(CLI::Range(0, 10000000));
   rep->add_option("--seed", seed, "random seed of the tolerance section (default 1)");
 
+  FitCommand fitc;
+  auto* fit = app.add_subcommand("fit", "fit the scenario's coil to a bench capture of its switch-off or switch-on");
+  common(fit, o);
+  fit->add_option("--capture", fitc.capture, "the capture: CSV with a time column and the coil current and switch voltage")->required();
+  fit->add_option("--parameters", fitc.parameters,
+                  "scenario keys to fit, e.g. coil.inductance,coil.core_loss_resistance (default: inductance with core loss "
+                  "at switch-off, with resistance at switch-on)")
+      ->delimiter(',');
+  fit->add_option("--channels", fitc.channels,
+                  "which column is which, by name or number: time=1,current=2,voltage=3 (the default), contact=4")
+      ->delimiter(',');
+  fit->add_option("--units", fitc.units, "units of columns whose header has none, e.g. 2=mV,3=V")->delimiter(',');
+  fit->add_option("--shunt", fitc.shunt, "the current channel is a shunt's voltage: its resistance, e.g. \"0.1 ohm\"");
+  fit->add_option("--noise", fitc.noise, "the current's noise, e.g. \"1 mA\" (default: from the steady current before the edge)");
+  fit->add_option("--plot", fitc.plot, "write the overlay chart (measured, fitted, residuals) as SVG to this file");
+  fit->add_option("--coil-record", fitc.coil_record, "write the fitted coil as a models/coils record (TOML) to this file");
+  fit->add_option("--record-name", fitc.record_name, "the coil record's part name (default: the file's stem)");
+  fit->add_option("--csv", fitc.csv, "write measured and fitted current per sample as CSV to this file");
+
   auto* demo = app.add_subcommand("demo", "compare every clamp on the bundled greenhouse-valve scenario");
   common(demo, o, false);
   demo->add_option("--csv", csv, "write the comparison as CSV to this file");
@@ -116,7 +135,7 @@ int main(int argc, char** argv) {
   } catch (const CLI::RequiredError& e) {
     if (app.get_subcommands().empty() && argc > 1 && argv[1][0] != '-') {
       std::cerr << "coilkick: unknown command '" << argv[1] << "'; the commands are run, compare, sweep, tolerance, suggest, "
-                   "faults, report, demo (coilkick --help)\n";
+                   "faults, fit, report, demo (coilkick --help)\n";
       return 2;
     }
     app.exit(e);
@@ -133,6 +152,7 @@ int main(int argc, char** argv) {
     if (tol->parsed()) return cmd_tolerance(o, samples, seed, std::cout);
     if (suggest->parsed()) return cmd_suggest(o, max_release, max_voltage, top, std::cout, time_metric, suggest_kinds);
     if (faults->parsed()) return cmd_faults(o, csv, std::cout);
+    if (fit->parsed()) return cmd_fit(o, fitc, std::cout);
     if (rep->parsed()) return cmd_report(o, output, rep->count("--samples") ? samples : 200, seed);
     if (demo->parsed()) {
       const std::string models = o.models_dir.empty() ? coilkick::catalogue::default_models_directory() : o.models_dir;

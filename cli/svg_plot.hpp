@@ -1,6 +1,8 @@
 #pragma once
-// The clamp-comparison chart as SVG: switch voltage (top) and coil current (bottom) against the
-// time after switch-off, one line per clamp, with the switch rating and its derated limit.
+// Charts as SVG. The clamp comparison: switch voltage (top) and coil current (bottom) against the
+// time after switch-off, one line per clamp, with the switch rating and its derated limit. The
+// fit overlay: a capture's coil current and the fitted model's (top), their difference in units
+// of the capture's noise with the ±3σ band (bottom).
 #include <string>
 #include <vector>
 
@@ -9,5 +11,8 @@
 namespace coilkick::cli {
 
 std::string comparison_svg(const std::vector<drivers::ComparisonRow>& rows, const std::string& title);
+// edge_words: "falling" or "rising" (the switch voltage's edge that time zero is at).
+std::string overlay_svg(const std::vector<double>& time_s, const std::vector<double>& measured_A, const std::vector<double>& model_A,
+                        double noise_A, const std::string& title, const std::string& edge_words);
 
 }  // namespace coilkick::cli

@@ -9,6 +9,7 @@ Load a scenario (file or dict in the scenario schema, see README "Scenario files
     rows = coilkick.compare(s)          # every applicable clamp, fastest release first
     df = coilkick.sweep(s, {"clamp.zener.overrides.breakdown_voltage": coilkick.span(5.0, 40.0, 36)})
     t = coilkick.tolerance(s, samples=1000, seed=1)
+    f = coilkick.fit(s, coilkick.read_capture("capture.csv"))   # the coil fitted to a bench capture
 
 `sweep` and `tolerance` take any concurrent.futures-style executor (a dask.distributed Client
 works as one). Plots: coilkick.plot.
@@ -18,6 +19,7 @@ import os as _os
 from . import _core
 from ._core import CatalogueError, ScenarioError, SimulationError, default_models_directory, numeric_keys
 from .review_page import report
+from .bench_fit import FitResult, fit, model_trace, read_capture
 from .api import (ComparisonRow, FaultReport, RunResult, Span, ToleranceResult, compare, faults, load_scenario, part_info,
                   part_names, relay_calibration, run, scenario_from_dict, span, suggest, sweep, tolerance)
 
@@ -42,5 +44,5 @@ CAUTION = ("A simulation is not a qualification. Build and measure the real driv
            "belong to qualified people; local codes and licensed practice take precedence.")
 
 __all__ = ["CAUTION", "CatalogueError", "ComparisonRow", "RunResult", "ScenarioError", "SimulationError",
-           "ToleranceResult", "FaultReport", "compare", "faults", "default_models_directory", "load_scenario", "numeric_keys", "part_info",
+           "ToleranceResult", "FaultReport", "FitResult", "compare", "fit", "model_trace", "read_capture", "faults", "default_models_directory", "load_scenario", "numeric_keys", "part_info",
            "part_names", "report", "run", "scenario_from_dict", "Span", "span", "suggest", "sweep", "tolerance"]

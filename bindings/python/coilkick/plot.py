@@ -1,5 +1,5 @@
 """Plots of coilkick results (matplotlib), in a style of our own: switch-off waveforms with clamps
-overlaid, a PWM hold's ripple and the release from it, the clamp comparison chart, release time against peak switch voltage with the switch
+overlaid, a PWM hold's ripple and the release from it, a fit to a bench capture (overlay), the clamp comparison chart, release time against peak switch voltage with the switch
 rating and its derated limit, and Monte Carlo histograms. Every axis is labelled with its unit."""
 import numpy as np
 
@@ -210,5 +210,34 @@ def histograms(result, metrics=("switch_voltage_peak_V", "release_time_s", "clam
         _style(ax)
     if title:
         fig.suptitle(title)
+    fig.tight_layout()
+    return fig
+
+
+def overlay(fit, title=None):
+    """A fit to a bench capture (coilkick.fit): the measured and the fitted model's coil current
+    against the time after the switch-voltage edge (top; switch-on: the armature's flight marked as
+    measured), and their difference in units of the capture's noise with the ±3σ band (bottom).
+    Returns the figure."""
+    plt = _plt()
+    f = fit.frame
+    fig, (top, bottom) = plt.subplots(2, 1, figsize=(9, 6), sharex=True, gridspec_kw={"height_ratios": [2, 1]})
+    t = f.time_after_edge_s.to_numpy() * 1e3
+    top.plot(t, f.measured_current_A * 1e3, color=PALETTE[5], linewidth=0.8, alpha=0.7, label="measured")
+    top.plot(t, f.model_current_A * 1e3, color=PALETTE[1], linewidth=1.8, label="fitted model")
+    motion = fit.measured_armature_motion
+    if fit.edge == "switch-on" and np.isfinite(motion.get("end_s", float("nan"))):
+        top.axvspan(motion.start_s * 1e3, motion.end_s * 1e3, color=PALETTE[2], alpha=0.15, label="armature's flight (measured dip)")
+    bottom.plot(t, f.residual, color=PALETTE[7], linewidth=0.8, label="measured − model")
+    for band in (-3.0, 3.0):
+        bottom.axhline(band, color=LIMIT_COLOUR, linestyle="--", linewidth=1)
+    edge = "rising" if fit.edge == "switch-off" else "falling"
+    bottom.set_xlabel("time after the %s edge of the switch voltage (ms)" % edge)
+    top.set_ylabel("coil current (mA)")
+    bottom.set_ylabel("residual (noise units; ±3σ dashed)")
+    for ax in (top, bottom):
+        _style(ax)
+    top.legend(fontsize=8, frameon=False)
+    top.set_title(title or "%s fitted to %s: residual RMS %.2f of the noise" % (fit.edge, fit.capture_name, fit.residual_rms))
     fig.tight_layout()
     return fig

@@ -106,6 +106,17 @@ void read_contact(const scenario::Capture& c, const std::vector<double>& t_after
   }
 }
 
+// With the armature model the reader froze the coil's resistance and inductance into the relay's
+// data sheet (the magnet is calibrated from them, drivers::freeze_relay_datasheet); a fitted coil
+// is that data sheet, so the frozen values follow the fitted ones.
+void follow_frozen_datasheet(const scenario::Scenario& original, scenario::Scenario& c) {
+  if (!c.driver.relay.armature_model) return;
+  auto& r = c.driver.relay;
+  const auto& before = original.driver;
+  if (before.relay.resistance_at_20C_ohm == before.coil.resistance_at_20C_ohm) r.resistance_at_20C_ohm = c.driver.coil.resistance_at_20C_ohm;
+  if (before.relay.closed_inductance_H == before.coil.inductance_H) r.closed_inductance_H = c.driver.coil.inductance_H;
+}
+
 }  // namespace
 
 const char* to_string(CaptureEdge e) { return e == CaptureEdge::switch_off ? "switch-off" : "switch-on"; }
@@ -186,6 +197,7 @@ CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& 
   auto at = [&](const Eigen::VectorXd& x) {
     scenario::Scenario c = s;
     for (Eigen::Index k = 0; k < n; ++k) scenario::set_numeric_key(c, keys[static_cast<std::size_t>(k)], x[k], parts);
+    follow_frozen_datasheet(s, c);
     std::vector<double> shifted(out.time_after_edge_s);
     for (double& t : shifted) t += x[n];
     return trace_of(run_model(c, parts, out.edge, span), shifted);
@@ -199,6 +211,9 @@ CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& 
   };
   LeastSquaresOptions lo;
   lo.on_iteration = options.on_iteration;
+  // The engine's own tolerances (relative 1e-6 and below) make the sum of squares wobble in its
+  // last digits: a reduction below 1e-9 of it moves the parameters by far less than their errors.
+  lo.relative_reduction_tolerance = 1e-9;
   out.result = levenberg_marquardt(p, lo);
   if (!out.result.converged) throw engine::SimulationError("fit: " + out.result.message);
   const auto best = at(out.result.parameters);

@@ -105,12 +105,18 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& problem, const
   out.sum_of_squares = ss;
   out.residual_rms = std::sqrt(ss / static_cast<double>(m));
   out.evaluations = f.count;
-  const Eigen::MatrixXd a = j.transpose() * j;
+  // (JᵀJ)⁻¹ in parameters scaled to their typical sizes: a henry, kilohms and milliseconds side
+  // by side make JᵀJ's entries span many decades, and the rank test must see the shape of the
+  // problem, not its units.
+  const Eigen::VectorXd size = x.array().abs().max(problem.scale.array()).matrix();
+  const Eigen::MatrixXd js = j * size.asDiagonal();
+  const Eigen::MatrixXd a = js.transpose() * js;
   const double s2 = m > n ? ss / static_cast<double>(m - n) : std::numeric_limits<double>::quiet_NaN();
   Eigen::FullPivLU<Eigen::MatrixXd> lu(a);
+  lu.setThreshold(1e-12);
   out.standard_errors = Eigen::VectorXd::Constant(n, std::numeric_limits<double>::quiet_NaN());
   if (lu.isInvertible()) {
-    out.covariance = s2 * lu.inverse();
+    out.covariance = s2 * size.asDiagonal() * lu.inverse() * size.asDiagonal();
     for (Eigen::Index k = 0; k < n; ++k) out.standard_errors[k] = std::sqrt(std::max(0.0, out.covariance(k, k)));
   } else {
     out.covariance = Eigen::MatrixXd::Constant(n, n, std::numeric_limits<double>::quiet_NaN());

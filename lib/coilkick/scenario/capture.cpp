@@ -112,15 +112,11 @@ class Reader {
       if (!trim(line).empty()) lines_.emplace_back(n, line);
     }
     if (lines_.empty()) throw std::invalid_argument(file_ + ": the capture is empty");
-    // Separator: a semicolon or a tab anywhere decides; else commas.
-    for (const auto& [k, l] : lines_) {
-      if (l.find(';') != std::string::npos) sep_ = ';';
-    }
-    if (sep_ != ';') {
-      for (const auto& [k, l] : lines_) {
-        if (l.find('\t') != std::string::npos) sep_ = '\t';
-      }
-    }
+    // Separator: from the last line, which is data (a header's prose may hold any of them): a
+    // semicolon or a tab there decides; else commas.
+    const std::string& last = lines_.back().second;
+    if (last.find(';') != std::string::npos) sep_ = ';';
+    else if (last.find('\t') != std::string::npos) sep_ = '\t';
     decimal_comma_ = sep_ != ',';
   }
 
