@@ -39,6 +39,17 @@ std::map<std::string, std::string> pairs(const std::vector<std::string>& items, 
   return out;
 }
 
+double option_quantity(const char* option, const std::string& text, scenario::Dimension d) {
+  double v = 0.0;
+  try {
+    v = scenario::parse_quantity(text, d);
+  } catch (const std::invalid_argument& e) {
+    throw std::invalid_argument(std::string(option) + ": " + e.what());
+  }
+  if (!(v > 0.0)) throw std::invalid_argument(std::string(option) + ": must be > 0, not '" + text + "'");
+  return v;
+}
+
 std::string key_unit(const std::string& key) {
   for (const auto& [k, unit] : scenario::numeric_keys()) {
     if (k == key) return unit;
@@ -70,12 +81,12 @@ int cmd_fit(const CommonOptions& o, const FitCommand& f, std::ostream& out) {
   scenario::CaptureOptions co;
   co.channels = pairs(f.channels, "--channels", {"time", "current", "voltage", "contact"});
   co.units = pairs(f.units, "--units", {});
-  if (!f.shunt.empty()) co.shunt_resistance_ohm = scenario::parse_quantity(f.shunt, scenario::Dimension::resistance);
+  if (!f.shunt.empty()) co.shunt_resistance_ohm = option_quantity("--shunt", f.shunt, scenario::Dimension::resistance);
   if (!co.channels.count("current")) co.channels["current"] = "2";
   if (!co.channels.count("voltage")) co.channels["voltage"] = "3";
   const auto capture = scenario::read_capture_file(f.capture, co);
   analyses::FitOptions fo;
-  if (!f.noise.empty()) fo.current_noise_A = scenario::parse_quantity(f.noise, scenario::Dimension::current);
+  if (!f.noise.empty()) fo.current_noise_A = option_quantity("--noise", f.noise, scenario::Dimension::current);
   const auto edge = analyses::capture_edge(capture);
   const auto keys = f.parameters.empty() ? analyses::default_fit_keys(l.scenario, edge) : f.parameters;
   if (!o.quiet) {

@@ -12,22 +12,14 @@
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/drivers/metrics.hpp"
 #include "commands.hpp"
+#include "cli_support.hpp"
 #include "report_format.hpp"
 
 using namespace coilkick;
 using namespace coilkick::cli;
+using namespace test_support;
 
 namespace {
-std::string scenario_path(const char* name) { return catalogue::default_models_directory() + "/scenarios/" + name; }
-
-std::string scratch(const std::string& name, const std::string& text) {
-  const auto dir = std::filesystem::temp_directory_path() / "coilkick_cli_test";
-  std::filesystem::create_directories(dir);
-  const auto p = (dir / name).string();
-  std::ofstream(p) << text;
-  return p;
-}
-
 const char* kPwlScenario = R"(name = "cli test"
 [supply]
 voltage = "12 V"
@@ -52,19 +44,6 @@ model_level = "pwl"
 coil_resistance = "10 %"
 )";
 
-struct Outcome {
-  int code;
-  std::string output;  // stdout and stderr
-};
-Outcome run_program(const std::string& args) {
-  const std::string cmd = std::string(COILKICK_PROGRAM) + " " + args + " 2>&1";
-  FILE* p = popen(cmd.c_str(), "r");
-  std::string out;
-  char buf[4096];
-  while (p && fgets(buf, sizeof buf, p)) out += buf;
-  const int status = p ? pclose(p) : -1;
-  return {WIFEXITED(status) ? WEXITSTATUS(status) : -1, out};
-}
 }  // namespace
 
 TEST_CASE("run: readable report with checks and the caution, JSON with every metric") {

@@ -211,9 +211,14 @@ CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& 
   };
   LeastSquaresOptions lo;
   lo.on_iteration = options.on_iteration;
-  // The engine's own tolerances (relative 1e-6 and below) make the sum of squares wobble in its
-  // last digits: a reduction below 1e-9 of it moves the parameters by far less than their errors.
-  lo.relative_reduction_tolerance = 1e-9;
+  // The residuals are weighted by the noise: a fall of the sum by less than 1e-3 moves the
+  // parameters by a few hundredths of their standard errors (the sum rises by 1 at 1σ).
+  lo.absolute_reduction_tolerance = 1e-3;
+  // Difference steps well above the engine's error: a step of 1e-6 of a weakly seen key (a core
+  // loss resistance) moves the current by less than the integration's own tolerance, and the
+  // Jacobian — and so the standard errors — would be that noise. 1e-4 keeps the truncation error
+  // of the forward difference (second order in the step) far below the statistical error.
+  lo.difference_step = 1e-4;
   out.result = levenberg_marquardt(p, lo);
   if (!out.result.converged) throw engine::SimulationError("fit: " + out.result.message);
   const auto best = at(out.result.parameters);

@@ -80,13 +80,17 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& problem, const
       const double ss_new = r_new.squaredNorm();
       if (ss_new < ss) {
         const double reduction = (ss - ss_new) / std::max(ss, std::numeric_limits<double>::min());
+        const double ss_before = ss;
         const double moved = (step.array() / x_new.array().abs().max(problem.scale.array())).abs().maxCoeff();
         x = x_new;
         r = r_new;
         ss = ss_new;
         mu = std::max(mu / 3.0, 1e-300);
         improved = true;
-        if (moved < o.relative_step_tolerance || reduction < o.relative_reduction_tolerance) out.converged = true;
+        if (moved < o.relative_step_tolerance || reduction < o.relative_reduction_tolerance ||
+            ss_before - ss_new < o.absolute_reduction_tolerance) {
+          out.converged = true;
+        }
         break;
       }
       mu *= 4.0;

@@ -26,6 +26,9 @@ struct LeastSquaresOptions {
   int maximum_iterations = 100;
   double relative_step_tolerance = 1e-10;  // converged when a step moves every scaled parameter less
   double relative_reduction_tolerance = 1e-12;  // ... or the sum of squares falls by less than this
+  // ... or by less than this in absolute terms: for residuals weighted by their noise, a fall of
+  // 1e-3 in the sum (χ²) is statistically nothing (0 = off).
+  double absolute_reduction_tolerance = 0.0;
   double difference_step = 1e-6;           // forward-difference step, relative to each scale
   // Called after each iteration with its number (from 1) and the sum of squares reached.
   std::function<void(int iteration, double sum_of_squares)> on_iteration;

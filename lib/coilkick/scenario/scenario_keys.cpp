@@ -167,6 +167,19 @@ Dimension extra_part_dimension(const Scenario& s, const std::string& key) {
   throw ScenarioError("key '" + key + "': no numeric field of an extra part of that name");
 }
 
+namespace {
+[[noreturn]] void throw_not_numeric(const Scenario& s, const std::string& key) {
+  std::vector<std::string> names;
+  for (const auto& n : numeric_table()) names.emplace_back(n.key);
+  for (const auto& x : s.driver.extra_parts) {
+    names.push_back("extra_part." + x.name + ".value");
+    if (x.element == drivers::ExtraElement::inductor) names.push_back("extra_part." + x.name + ".series_resistance");
+  }
+  throw ScenarioError("key '" + key + "' is not a numeric scenario key (or a part override such as "
+                      "clamp.zener.overrides.breakdown_voltage)" + engine::did_you_mean(key, names));
+}
+}  // namespace
+
 void set_numeric_key(Scenario& s, const std::string& key, double value, const catalogue::Catalogue& parts) {
   if (!std::isfinite(value)) throw ScenarioError("key '" + key + "': value must be finite");
   for (const auto& n : numeric_table()) {
@@ -196,14 +209,7 @@ void set_numeric_key(Scenario& s, const std::string& key, double value, const ca
     *field = value;
     return;
   }
-  std::vector<std::string> names;
-  for (const auto& n : numeric_table()) names.emplace_back(n.key);
-  for (const auto& x : s.driver.extra_parts) {
-    names.push_back("extra_part." + x.name + ".value");
-    if (x.element == drivers::ExtraElement::inductor) names.push_back("extra_part." + x.name + ".series_resistance");
-  }
-  throw ScenarioError("key '" + key + "' is not a numeric scenario key (or a part override such as "
-                      "clamp.zener.overrides.breakdown_voltage)" + engine::did_you_mean(key, names));
+  throw_not_numeric(s, key);
 }
 
 double numeric_key_value(const Scenario& s, const std::string& key) {
@@ -220,7 +226,7 @@ double numeric_key_value(const Scenario& s, const std::string& key) {
     throw ScenarioError("key '" + key + "': the scenario does not set this part parameter (give it as an override to start from)");
   }
   if (const double* field = extra_part_field(c, key)) return *field;
-  throw ScenarioError("key '" + key + "' is not a numeric scenario key");
+  throw_not_numeric(s, key);
 }
 
 std::vector<std::pair<std::string, std::string>> numeric_keys() {
