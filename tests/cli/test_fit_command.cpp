@@ -47,7 +47,7 @@ std::map<std::string, double> known_values() {
 }
 }  // namespace
 
-TEST_CASE("fit: the demo capture's known values found within 3 standard errors; record, chart and CSV written") {
+TEST_CASE("fit: the demo capture's known values found within 3 standard errors, and the record, chart and CSV written") {
   const auto known = known_values();
   REQUIRE(known.size() == 3);
   const auto dir = std::filesystem::temp_directory_path() / "coilkick_fit_test";
