@@ -40,11 +40,12 @@ void DefineFit(py::module_& m) {
   m.def(
       "read_capture",
       [](const std::string& path, const std::map<std::string, std::string>& channels, const std::map<std::string, std::string>& units,
-         double shunt_ohm) {
+         double shunt_ohm, bool time_zero_at_edge) {
         scenario::CaptureOptions o;
         o.channels = channels;
         o.units = units;
         o.shunt_resistance_ohm = shunt_ohm;
+        if (time_zero_at_edge) o.time_zero = scenario::CaptureTimeZero::switch_voltage_edge;
         const auto c = scenario::read_capture_file(path, o);
         py::dict d;
         d["time_s"] = c.time_s;
@@ -53,7 +54,7 @@ void DefineFit(py::module_& m) {
         d["contact"] = c.contact;
         return d;
       },
-      py::arg("path"), py::arg("channels"), py::arg("units"), py::arg("shunt_ohm") = std::nan(""),
+      py::arg("path"), py::arg("channels"), py::arg("units"), py::arg("shunt_ohm") = std::nan(""), py::arg("time_zero_at_edge") = false,
       "Read a capture CSV (see README, 'Fitting to a bench capture'); errors are ValueError 'file:line: ...'.");
 
   m.def(

@@ -16,19 +16,21 @@ _COLUMN_OF_ROLE = {"time": "time_s", "current": "current_A", "voltage": "voltage
 
 
 def read_capture(path, channels: Optional[Dict[str, str]] = None, units: Optional[Dict[str, str]] = None,
-                 shunt_ohm: Optional[float] = None) -> pd.DataFrame:
+                 shunt_ohm: Optional[float] = None, time_zero_at_edge: bool = False) -> pd.DataFrame:
     """A capture CSV as an oscilloscope or logger writes it, as a DataFrame with columns time_s,
     current_A, voltage_V (and contact where mapped). `channels` maps roles (time, current,
     voltage, contact) to column names or 1-based numbers (default time=1, current=2, voltage=3);
     `units` gives units of columns whose header has none; `shunt_ohm`: the current column is a
-    shunt's voltage. Errors: ValueError "file:line: ..."."""
+    shunt's voltage; `time_zero_at_edge`: times counted from the switch voltage's edge (half way
+    from its first value to the value farthest from it), as model_trace counts them. Errors:
+    ValueError "file:line: ..."."""
     ch = {"current": "2", "voltage": "3"}
     for role, column in (channels or {}).items():
         if role not in _ROLES:
             raise ValueError("channels: unknown role %r (the roles are %s)" % (role, ", ".join(_ROLES)))
         ch[role] = str(column)
     d = _core.read_capture(os.fspath(path), ch, {str(k): str(v) for k, v in (units or {}).items()},
-                           math.nan if shunt_ohm is None else float(shunt_ohm))
+                           math.nan if shunt_ohm is None else float(shunt_ohm), bool(time_zero_at_edge))
     frame = {"time_s": d["time_s"], "current_A": d["current_A"], "voltage_V": d["voltage_V"]}
     if d["contact"]:
         frame["contact"] = d["contact"]

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cctype>
 #include <charconv>
+#include <filesystem>
 #include <cmath>
 #include <iomanip>
 #include <limits>
@@ -59,7 +60,8 @@ std::string coil_record_toml(const scenario::Scenario& fitted, const CaptureFit&
   const auto& coil = fitted.driver.coil;
   const auto& relay = fitted.driver.relay;
   const std::string fitted_to = "fitted to " + capture_file + ", " + date;
-  const std::string not_fitted = "as in the scenario " + (fitted.file.empty() ? std::string("given") : fitted.file) + " (not fitted)";
+  const std::string scenario_name = std::filesystem::path(fitted.file).filename().string();
+  const std::string not_fitted = "as in the scenario " + (scenario_name.empty() ? std::string("given") : scenario_name) + " (not fitted)";
   auto source_of = [&](const std::string& key, const char* unit, const std::string& fitted_note = "") {
     const auto it = std::find(fit.keys.begin(), fit.keys.end(), key);
     if (it == fit.keys.end()) return not_fitted;
