@@ -44,14 +44,6 @@ std::string short_number(double v) {
 
 }  // namespace
 
-scenario::Scenario fitted_scenario(const scenario::Scenario& s, const catalogue::Catalogue& parts, const CaptureFit& fit) {
-  scenario::Scenario c = s;
-  for (std::size_t k = 0; k < fit.keys.size(); ++k) {
-    scenario::set_numeric_key(c, fit.keys[k], fit.result.parameters[static_cast<Eigen::Index>(k)], parts);
-  }
-  return c;
-}
-
 std::string coil_record_toml(const scenario::Scenario& fitted, const CaptureFit& fit, const std::string& name,
                              const std::string& capture_file, const std::string& date) {
   if (name.empty() || !std::all_of(name.begin(), name.end(), [](char ch) { return std::isalnum(static_cast<unsigned char>(ch)) || ch == '_' || ch == '-'; })) {

@@ -11,12 +11,9 @@
 
 namespace coilkick::analyses {
 
-// `fitted` is the scenario with the fit's values set (fitted_scenario); `name` the record's part
+// `fitted` is the scenario with the fit's values set (fit.hpp's fitted_scenario); `name` the record's part
 // name (letters, digits, '_' and '-'; std::invalid_argument otherwise).
 std::string coil_record_toml(const scenario::Scenario& fitted, const CaptureFit& fit, const std::string& name,
                              const std::string& capture_file, const std::string& date);
-
-// The scenario with the fit's values of its keys.
-scenario::Scenario fitted_scenario(const scenario::Scenario& s, const catalogue::Catalogue& parts, const CaptureFit& fit);
 
 }  // namespace coilkick::analyses

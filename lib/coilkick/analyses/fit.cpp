@@ -8,6 +8,7 @@
 #include "coilkick/drivers/switch_off.hpp"
 #include "coilkick/drivers/switch_on.hpp"
 #include "coilkick/engine/errors.hpp"
+#include "coilkick/engine/probe.hpp"
 
 namespace coilkick::analyses {
 namespace {
@@ -63,19 +64,24 @@ double model_edge_time(const ModelRun& m) {
   return 0.5 * (lo + hi) - m.drive_edge_s;
 }
 
-ModelTrace trace_of(const ModelRun& m, const std::vector<double>& times_after_edge_s) {
+// with_voltage: the switch voltage at each time too (a fit's residuals need only the current).
+ModelTrace trace_of(const ModelRun& m, const std::vector<double>& times_after_edge_s, bool with_voltage = true) {
   const auto& tr = *m.transient;
   ModelTrace out;
   out.edge_time_s = model_edge_time(m);
   out.make_time_s = m.make_time_s;
-  const int coil = tr.circuit().state_index("coil.current");
+  // What a shunt in series with the coil measures: the current through its terminals, the
+  // winding's and the core loss's (which a stiff clamp's voltage drives). The coil element
+  // holds no charge, so its terminal current reads no rates.
+  const engine::Probe coil = engine::Probe::element_current(tr.circuit(), "coil", 0);
+  const std::vector<double> no_rates(static_cast<std::size_t>(tr.circuit().state_count()), 0.0);
   out.current_A.reserve(times_after_edge_s.size());
   out.voltage_V.reserve(times_after_edge_s.size());
   for (double ta : times_after_edge_s) {
     const double t = std::clamp(m.drive_edge_s + out.edge_time_s + ta, tr.start_time_s(), tr.end_time_s());
     const Eigen::VectorXd x = tr.sample(t);
-    out.current_A.push_back(x[coil]);
-    out.voltage_V.push_back(drivers::switch_voltage_V(m.built, tr.circuit(), t, x.data()));
+    out.current_A.push_back(coil(t, x.data(), no_rates.data()));
+    if (with_voltage) out.voltage_V.push_back(drivers::switch_voltage_V(m.built, tr.circuit(), t, x.data()));
   }
   return out;
 }
@@ -107,14 +113,17 @@ void read_contact(const scenario::Capture& c, const std::vector<double>& t_after
 }
 
 // With the armature model the reader froze the coil's resistance and inductance into the relay's
-// data sheet (the magnet is calibrated from them, drivers::freeze_relay_datasheet); a fitted coil
-// is that data sheet, so the frozen values follow the fitted ones.
-void follow_frozen_datasheet(const scenario::Scenario& original, scenario::Scenario& c) {
-  if (!c.driver.relay.armature_model) return;
-  auto& r = c.driver.relay;
-  const auto& before = original.driver;
-  if (before.relay.resistance_at_20C_ohm == before.coil.resistance_at_20C_ohm) r.resistance_at_20C_ohm = c.driver.coil.resistance_at_20C_ohm;
-  if (before.relay.closed_inductance_H == before.coil.inductance_H) r.closed_inductance_H = c.driver.coil.inductance_H;
+// data sheet, and the magnet is calibrated from those (drivers::freeze_relay_datasheet): the
+// armature's coil takes its inductance from the magnet alone. A fitted coil is that data sheet,
+// so a fitted coil.inductance or coil.resistance goes there too.
+void set_fitted_keys(scenario::Scenario& c, const catalogue::Catalogue& parts, const std::vector<std::string>& keys, const Eigen::VectorXd& x) {
+  for (std::size_t k = 0; k < keys.size(); ++k) {
+    const double v = x[static_cast<Eigen::Index>(k)];
+    scenario::set_numeric_key(c, keys[k], v, parts);
+    if (!c.driver.relay.armature_model) continue;
+    if (keys[k] == "coil.inductance") c.driver.relay.closed_inductance_H = v;
+    if (keys[k] == "coil.resistance") c.driver.relay.resistance_at_20C_ohm = v;
+  }
 }
 
 }  // namespace
@@ -196,11 +205,10 @@ CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& 
   const double span = span_after_edge(out.time_after_edge_s);
   auto at = [&](const Eigen::VectorXd& x) {
     scenario::Scenario c = s;
-    for (Eigen::Index k = 0; k < n; ++k) scenario::set_numeric_key(c, keys[static_cast<std::size_t>(k)], x[k], parts);
-    follow_frozen_datasheet(s, c);
+    set_fitted_keys(c, parts, keys, x);
     std::vector<double> shifted(out.time_after_edge_s);
     for (double& t : shifted) t += x[n];
-    return trace_of(run_model(c, parts, out.edge, span), shifted);
+    return trace_of(run_model(c, parts, out.edge, span), shifted, false);
   };
   p.residuals = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
     const auto m = at(x);
@@ -218,7 +226,7 @@ CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& 
   // loss resistance) moves the current by less than the integration's own tolerance, and the
   // Jacobian — and so the standard errors — would be that noise. 1e-4 keeps the truncation error
   // of the forward difference (second order in the step) far below the statistical error.
-  lo.difference_step = 1e-4;
+  lo.difference_step = 1e-3;
   out.result = levenberg_marquardt(p, lo);
   if (!out.result.converged) throw engine::SimulationError("fit: " + out.result.message);
   const auto best = at(out.result.parameters);
@@ -236,6 +244,12 @@ CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& 
   }
   read_contact(capture, out.time_after_edge_s, out);
   return out;
+}
+
+scenario::Scenario fitted_scenario(const scenario::Scenario& s, const catalogue::Catalogue& parts, const CaptureFit& fit) {
+  scenario::Scenario c = s;
+  set_fitted_keys(c, parts, fit.keys, fit.result.parameters);
+  return c;
 }
 
 }  // namespace coilkick::analyses

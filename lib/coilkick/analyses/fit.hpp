@@ -28,6 +28,9 @@ const char* to_string(CaptureEdge e);
 CaptureEdge capture_edge(const scenario::Capture& c);
 
 // What the model shows at times after its own switch-voltage edge (the capture's convention):
+// the current through the coil's terminals (a shunt in series with it: the winding's current and
+// the core loss's; the winding capacitance's charging current, a spike of a fraction of a
+// microsecond at the edge, is left out) and the switch voltage;
 // samples before its run's start read the start (the steady state before the edge), after its
 // end the end (the run stops once the coil's energy is spent; a switch-on runs to the last time).
 struct ModelTrace {
@@ -78,5 +81,9 @@ struct FitOptions {
 // a voltage channel or an edge, or without a noise estimate, engine::SimulationError for a run that fails.
 CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& parts, const scenario::Capture& capture,
                        const std::vector<std::string>& keys, const FitOptions& options = {});
+
+// The scenario with the fit's values of its keys (with the armature model, a fitted coil
+// resistance or inductance is also the relay data sheet the magnet is calibrated from).
+scenario::Scenario fitted_scenario(const scenario::Scenario& s, const catalogue::Catalogue& parts, const CaptureFit& fit);
 
 }  // namespace coilkick::analyses
