@@ -16,7 +16,9 @@ using namespace coilkick;
 using namespace test_support;
 
 namespace {
-std::string capture_path() { return catalogue::default_models_directory() + "/captures/greenhouse_valve_switch_off.csv"; }
+std::string capture_path(const char* name = "greenhouse_valve_switch_off.csv") {
+  return catalogue::default_models_directory() + "/captures/" + name;
+}
 
 std::string read_file(const std::string& path) {
   std::ifstream f(path);
@@ -26,9 +28,9 @@ std::string read_file(const std::string& path) {
 }
 
 // The known values, from the capture's own header line "# known values: key = value, ...".
-std::map<std::string, double> known_values() {
+std::map<std::string, double> known_values(const std::string& capture) {
   std::map<std::string, double> out;
-  std::istringstream in(read_file(capture_path()));
+  std::istringstream in(read_file(capture));
   std::string line;
   while (std::getline(in, line)) {
     const std::string tag = "# known values: ";
@@ -48,7 +50,7 @@ std::map<std::string, double> known_values() {
 }  // namespace
 
 TEST_CASE("fit: the demo capture's known values found within 3 standard errors, and the record, chart and CSV written") {
-  const auto known = known_values();
+  const auto known = known_values(capture_path());
   REQUIRE(known.size() == 3);
   const auto dir = std::filesystem::temp_directory_path() / "coilkick_fit_test";
   std::filesystem::remove_all(dir);
@@ -97,6 +99,34 @@ TEST_CASE("fit: the demo capture's known values found within 3 standard errors, 
   const std::string table = read_file(csv);
   CHECK(table.rfind("# Caution", 0) == 0);
   CHECK(std::count(table.begin(), table.end(), '\n') == 4001 + 2);
+}
+
+TEST_CASE("fit: the demo switch-on capture of the fan relay: known values, and the armature's flight beside the model's") {
+  // models/captures/fan_relay_switch_on.csv: demo data (invented), the relay's switch-on with its
+  // armature from known values, a 10 ohm shunt, 5 us samples.
+  const auto capture = capture_path("fan_relay_switch_on.csv");
+  const auto known = known_values(capture);
+  REQUIRE(known.size() == 3);
+  const auto r = run_program("fit " + scenario_path("fan_relay.toml") + " --capture " + capture + " --shunt \"10 ohm\" --json --quiet");
+  REQUIRE(r.code == 0);
+  const auto j = nlohmann::json::parse(r.output);
+  CHECK(j["edge"] == "switch-on");
+  for (const auto& p : j["parameters"]) {
+    const std::string key = p["key"];
+    CAPTURE(key);
+    REQUIRE(known.count(key));
+    CHECK(std::abs(double(p["value"]) - known.at(key)) < 3.0 * double(p["standard_error"]));
+  }
+  // The dip read from the noisy capture and from the fitted model's current: the same flight
+  // within the smoothing window (7 samples of 5 us) and a few samples more.
+  const double measured_end = j["measured_armature_motion"]["end_s"], model_end = j["model_armature_motion"]["end_s"];
+  CHECK(std::abs(measured_end - model_end) < 100e-6);
+  // Contact make (the operate time, IEC 61810-1) comes before the armature rests on its stop
+  // (the over-travel) and after the flight began (the operate time counts from the drive edge,
+  // the flight from the switch-voltage edge: microseconds apart, against milliseconds here).
+  const double make = j["model_operate_time_s"];
+  CHECK(make > double(j["measured_armature_motion"]["start_s"]));
+  CHECK(make < measured_end);
 }
 
 TEST_CASE("fit: the text report") {
