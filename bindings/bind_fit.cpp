@@ -52,6 +52,7 @@ void DefineFit(py::module_& m) {
         d["current_A"] = c.current_A;
         d["voltage_V"] = c.voltage_V;
         d["contact"] = c.contact;
+        d["drive_V"] = c.drive_V;
         return d;
       },
       py::arg("path"), py::arg("channels"), py::arg("units"), py::arg("shunt_ohm") = std::nan(""), py::arg("time_zero_at_edge") = false,
@@ -59,9 +60,13 @@ void DefineFit(py::module_& m) {
 
   m.def(
       "model_trace",
-      [](const PyScenario& s, const std::string& edge, const std::vector<double>& times) {
+      [](const PyScenario& s, const std::string& edge, const std::vector<double>& times, const std::string& time_zero) {
+        if (time_zero != "switch-voltage" && time_zero != "drive") {
+          throw std::invalid_argument("time_zero: '" + time_zero + "' is neither 'switch-voltage' nor 'drive'");
+        }
+        const auto a = time_zero == "drive" ? analyses::EdgeAlignment::drive : analyses::EdgeAlignment::switch_voltage;
         analyses::ModelTrace t;
-        run_interruptibly([&] { t = analyses::model_trace(s.scenario, *s.parts, edge_of(edge), times); });
+        run_interruptibly([&] { t = analyses::model_trace(s.scenario, *s.parts, edge_of(edge), times, a); });
         py::dict d;
         d["current_A"] = t.current_A;
         d["voltage_V"] = t.voltage_V;
@@ -69,8 +74,8 @@ void DefineFit(py::module_& m) {
         d["make_time_s"] = t.make_time_s;
         return d;
       },
-      py::arg("scenario"), py::arg("edge"), py::arg("times_after_edge_s"),
-      "The model's coil current and switch voltage at times after its own switch-voltage edge.");
+      py::arg("scenario"), py::arg("edge"), py::arg("times_after_edge_s"), py::arg("time_zero") = "switch-voltage",
+      "The model's coil current and switch voltage at times after its own switch-voltage (or drive) edge.");
 
   m.def(
       "default_fit_keys", [](const PyScenario& s, const std::string& edge) { return analyses::default_fit_keys(s.scenario, edge_of(edge)); },
@@ -78,6 +83,7 @@ void DefineFit(py::module_& m) {
 
   py::class_<PyFit, std::shared_ptr<PyFit>>(m, "CaptureFit", "A scenario fitted to a capture (coilkick.fit wraps it).")
       .def_property_readonly("edge", [](const PyFit& f) { return std::string(analyses::to_string(f.fit.edge)); })
+      .def_property_readonly("time_zero", [](const PyFit& f) { return std::string(analyses::to_string(f.fit.alignment)); })
       .def_property_readonly("keys", [](const PyFit& f) { return f.fit.keys; })
       .def_property_readonly("start_values", [](const PyFit& f) { return f.fit.start_values; })
       .def_property_readonly("values",
@@ -111,14 +117,15 @@ void DefineFit(py::module_& m) {
   m.def(
       "fit_capture",
       [](const PyScenario& s, const std::vector<double>& time_s, const std::vector<double>& current_A, const std::vector<double>& voltage_V,
-         const std::vector<double>& contact, const std::vector<std::string>& keys, double noise_A) {
+         const std::vector<double>& contact, const std::vector<double>& drive_V, const std::vector<std::string>& keys, double noise_A) {
         scenario::Capture c;
         c.time_s = time_s;
         c.current_A = current_A;
         c.voltage_V = voltage_V;
         c.contact = contact;
-        if (c.current_A.size() != c.time_s.size() || c.voltage_V.size() != c.time_s.size() ||
-            (!c.contact.empty() && c.contact.size() != c.time_s.size())) {
+        c.drive_V = drive_V;
+        auto fits = [&](const std::vector<double>& v) { return v.empty() || v.size() == c.time_s.size(); };
+        if (c.current_A.size() != c.time_s.size() || !fits(c.voltage_V) || !fits(c.contact) || !fits(c.drive_V)) {
           throw std::invalid_argument("fit: the capture's columns differ in length");
         }
         for (std::size_t k = 1; k < c.time_s.size(); ++k) {
@@ -134,7 +141,7 @@ void DefineFit(py::module_& m) {
         });
         return out;
       },
-      py::arg("scenario"), py::arg("time_s"), py::arg("current_A"), py::arg("voltage_V"), py::arg("contact"), py::arg("keys"),
+      py::arg("scenario"), py::arg("time_s"), py::arg("current_A"), py::arg("voltage_V"), py::arg("contact"), py::arg("drive_V"), py::arg("keys"),
       py::arg("noise_A") = 0.0);
 }
 

@@ -32,7 +32,7 @@ std::map<std::string, std::string> pairs(const std::vector<std::string>& items, 
     const std::string name = item.substr(0, eq);
     if (!roles.empty() && std::find(roles.begin(), roles.end(), name) == roles.end()) {
       throw std::invalid_argument(std::string(option) + ": unknown channel role '" + name + "'" + engine::did_you_mean(name, roles) +
-                                  " (the roles are time, current, voltage, contact)");
+                                  " (the roles are time, current, voltage, contact, drive)");
     }
     out[name] = item.substr(eq + 1);
   }
@@ -79,11 +79,12 @@ std::string value_text(double v, const std::string& unit) {
 int cmd_fit(const CommonOptions& o, const FitCommand& f, std::ostream& out) {
   const Loaded l = load(o);
   scenario::CaptureOptions co;
-  co.channels = pairs(f.channels, "--channels", {"time", "current", "voltage", "contact"});
+  co.channels = pairs(f.channels, "--channels", {"time", "current", "voltage", "contact", "drive"});
   co.units = pairs(f.units, "--units", {});
   if (!f.shunt.empty()) co.shunt_resistance_ohm = option_quantity("--shunt", f.shunt, scenario::Dimension::resistance);
   if (!co.channels.count("current")) co.channels["current"] = "2";
-  if (!co.channels.count("voltage")) co.channels["voltage"] = "3";
+  // The default third column is the switch voltage, unless a drive channel was named and no voltage.
+  if (!co.channels.count("voltage") && !co.channels.count("drive")) co.channels["voltage"] = "3";
   const auto capture = scenario::read_capture_file(f.capture, co);
   analyses::FitOptions fo;
   if (!f.noise.empty()) fo.current_noise_A = option_quantity("--noise", f.noise, scenario::Dimension::current);
@@ -98,7 +99,9 @@ int cmd_fit(const CommonOptions& o, const FitCommand& f, std::ostream& out) {
   if (!o.quiet) std::cerr << "\n";
   const auto fitted = analyses::fitted_scenario(l.scenario, l.parts, fit);
   const auto n = fit.keys.size();
-  const std::string edge_words = fit.edge == analyses::CaptureEdge::switch_off ? "rising" : "falling";
+  const bool off = fit.edge == analyses::CaptureEdge::switch_off;
+  const std::string edge_words = fit.alignment == analyses::EdgeAlignment::drive ? (off ? "falling" : "rising") + std::string(" edge of the drive")
+                                                                                : (off ? "rising" : "falling") + std::string(" edge of the switch voltage");
 
   if (!f.plot.empty()) {
     write_file(f.plot,
@@ -136,7 +139,8 @@ int cmd_fit(const CommonOptions& o, const FitCommand& f, std::ostream& out) {
       return nlohmann::json{{"start_s", number_json(m.start_s)}, {"end_s", number_json(m.end_s)}};
     };
     out << nlohmann::json{{"scenario", l.scenario.driver.name}, {"file", o.file}, {"capture", f.capture},
-                          {"edge", analyses::to_string(fit.edge)}, {"samples", capture.time_s.size()},
+                          {"edge", analyses::to_string(fit.edge)}, {"time_zero", std::string(analyses::to_string(fit.alignment)) + " edge"},
+                          {"samples", capture.time_s.size()},
                           {"current_noise_A", fit.current_noise_A}, {"noise_given", fo.current_noise_A > 0.0},
                           {"parameters", params}, {"time_shift_s", number_json(fit.time_shift_s)},
                           {"time_shift_error_s", number_json(fit.time_shift_error_s)}, {"residual_rms", r.residual_rms},
@@ -153,6 +157,7 @@ int cmd_fit(const CommonOptions& o, const FitCommand& f, std::ostream& out) {
       << "Capture: " << f.capture << " — " << analyses::to_string(fit.edge) << ", " << capture.time_s.size() << " samples over "
       << drivers::format_si(capture.time_s.back() - capture.time_s.front(), "s") << "; current noise "
       << drivers::format_si(fit.current_noise_A, "A") << (fo.current_noise_A > 0.0 ? " (given)" : " (from the steady current before the edge)")
+      << "; time zero at the " << analyses::to_string(fit.alignment) << " edge"
       << "\n\nFitted by weighted least squares (Levenberg–Marquardt, " << r.iterations << " iterations, " << r.evaluations
       << " runs of the engine)\n  " << std::left << std::setw(32) << "key" << std::right << std::setw(14) << "start" << std::setw(14)
       << "fitted" << std::setw(24) << "standard error" << "\n";

@@ -109,7 +109,8 @@ int main(int argc, char** argv) {
                   "at switch-off, with resistance at switch-on)")
       ->delimiter(',');
   fit->add_option("--channels", fitc.channels,
-                  "which column is which, by name or number: time=1,current=2,voltage=3 (the default), contact=4")
+                  "which column is which, by name or number: time=1,current=2,voltage=3 (the default), contact=4, drive=5 "
+                  "(with a drive channel, time zero is at the drive edge)")
       ->delimiter(',');
   fit->add_option("--units", fitc.units, "units of columns whose header has none, e.g. 2=mV,3=V")->delimiter(',');
   fit->add_option("--shunt", fitc.shunt, "the current channel is a shunt's voltage: its resistance, e.g. \"0.1 ohm\"");

@@ -143,7 +143,7 @@ std::string overlay_svg(const std::vector<double>& time_s, const std::vector<dou
     << "<rect width='940' height='640' fill='white'/>\n"
     << "<text x='80' y='30' font-size='16' font-weight='bold'>" << xml_text(title) << "</text>\n";
   axes(o, top, "coil current (A)", false);
-  axes(o, bottom, "residual (noise units)", true, "time after the " + edge_words + " edge of the switch voltage (ms)");
+  axes(o, bottom, "residual (noise units)", true, "time after the " + edge_words + " (ms)");
   // At most ~2000 points a line: every k-th sample.
   const std::size_t stride = std::max<std::size_t>(1, n / 2000);
   std::ostringstream pm, pf, pr;

@@ -11,7 +11,7 @@
 namespace coilkick::cli {
 
 std::string comparison_svg(const std::vector<drivers::ComparisonRow>& rows, const std::string& title);
-// edge_words: "falling" or "rising" (the switch voltage's edge that time zero is at).
+// edge_words: the edge time zero is at, e.g. "rising edge of the switch voltage".
 std::string overlay_svg(const std::vector<double>& time_s, const std::vector<double>& measured_A, const std::vector<double>& model_A,
                         double noise_A, const std::string& title, const std::string& edge_words);
 

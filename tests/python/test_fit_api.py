@@ -114,3 +114,18 @@ def test_bad_input(valve):
         coilkick.read_capture(CAPTURE, channels={"current": "9"})
     with pytest.raises(ValueError, match="switch-off"):
         coilkick.model_trace(valve, "sideways", [0.0])
+
+
+def test_a_capture_with_a_drive_column_is_timed_from_the_drive_edge(valve):
+    # The valve's own switch-off traced from its drive edge (half way across the 20 ns fall), with
+    # 1 mA of noise; the logic signal as the drive column, the switch voltage left out.
+    t = np.arange(-0.5e-3, 6e-3, 4e-6)
+    tr = coilkick.model_trace(valve, "switch-off", t, time_zero="drive")
+    rng = np.random.default_rng(3)
+    capture = pd.DataFrame({"time_s": t + 1e-3, "current_A": tr.current_A + rng.normal(0, 1e-3, t.size),
+                            "drive_V": np.where(t < 0, 5.0, 0.0)})
+    f = coilkick.fit(valve, capture, parameters=["coil.inductance"], noise_A=1e-3)
+    assert f.time_zero == "drive" and f.edge == "switch-off"
+    # The truth is the scenario's own inductance (the demo coil's 0.35 H).
+    assert abs(f.value("coil.inductance") - 0.35) < 3 * f.parameters.standard_error.iloc[0]
+    assert "drive" in coilkick.plot.overlay(f).axes[1].get_xlabel()

@@ -67,6 +67,26 @@ TEST_CASE("time zero at the switch-voltage edge: half way from the first value t
   CHECK(c.time_s[0] == rel(-25e-6).epsilon(1e-9));
 }
 
+TEST_CASE("time zero at a falling edge (a switch-on's switch voltage, or a drive channel)") {
+  // The ramp as a drive channel: half way (20.1 V) at 25 µs; turned upside down (a switch-on's
+  // switch voltage, 40.1 V falling to 0.1 V) half way at the same instant.
+  std::string text = ramp_capture(',', false, "time (s),I (mA),logic (V)");
+  CaptureOptions o;
+  o.channels = {{"drive", "logic"}};
+  o.time_zero = CaptureTimeZero::drive_edge;
+  Capture c = read_capture_text(text, "drive.csv", o);
+  REQUIRE(c.drive_V.size() == 40);
+  CHECK(c.voltage_V.empty());
+  CHECK(c.time_shift_s == rel(25e-6).epsilon(1e-9));
+  std::vector<double> falling;
+  for (double v : c.drive_V) falling.push_back(40.2 - v);
+  std::vector<double> t(c.time_s.begin(), c.time_s.end());
+  CHECK(edge_time_s(t, falling) == rel_or_abs(0.0, 1e-9, 1e-12));
+  o.time_zero = CaptureTimeZero::drive_edge;
+  o.channels = {{"voltage", "3"}};
+  CHECK_THROWS_WITH_AS(read_capture_text(text, "drive.csv", o), doctest::Contains("needs a drive channel"), std::invalid_argument);
+}
+
 TEST_CASE("malformed captures: one clear message with the file and line each") {
   const std::string good = ramp_capture(',', false, "time (s),I (mA),CH2 (V)");
   auto replace_line = [&](int line, const std::string& text) {
@@ -108,7 +128,7 @@ TEST_CASE("malformed captures: one clear message with the file and line each") {
        "channel current (column 'CH2', unit 'V') is in V: a current measured as a shunt's voltage needs the shunt resistance"},
       {"no data at all", "# only a header\ntime,I\n", current_and_voltage, "bad.csv: no data rows"},
       {"an empty file", "", current_and_voltage, "bad.csv: the capture is empty"},
-      {"an unknown role", good, unknown_role, "channel role 'temperature' is not one of time, current, voltage, contact"},
+      {"an unknown role", good, unknown_role, "channel role 'temperature' is not one of time, current, voltage, contact, drive"},
   };
   for (const auto& r : rows) {
     CAPTURE(std::string(r.what));

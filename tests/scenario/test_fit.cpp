@@ -108,6 +108,33 @@ TEST_CASE("fit: a valve coil's inductance and resistance recovered from a noisy 
   CHECK(std::isnan(fit.measured_release_current_A));  // no contact channel
 }
 
+TEST_CASE("fit: time zero at the drive edge, for a capture with a drive channel and no switch voltage") {
+  const auto parts = catalogue::load_default_catalogue();
+  const auto truth = scenario::read_scenario_text(kValve, "valve.toml", parts);
+  auto capture = with_noise(clean_switch_off(truth, parts, 2400, 5e-6), 1e-3, 17);
+  // The logic signal as a probe on the controller's pin sees it: 5 V, falling at 1 ms (the
+  // scope's clock: 0.7 ms) — a 20 ns edge between samples 5 µs apart.
+  for (double t : capture.time_s) capture.drive_V.push_back(t + 0.3e-3 < 1e-3 ? 5.0 : 0.0);
+  capture.voltage_V.clear();
+  CHECK(analyses::capture_edge(capture) == analyses::CaptureEdge::switch_off);
+  CHECK(analyses::capture_alignment(capture) == analyses::EdgeAlignment::drive);
+  auto start = truth;
+  scenario::set_numeric_key(start, "coil.inductance", 0.315, parts);
+  const auto fit = analyses::fit_capture(start, parts, capture, {"coil.inductance", "coil.resistance"}, noise_of(1e-3));
+  CHECK(fit.alignment == analyses::EdgeAlignment::drive);
+  const auto& p = fit.result.parameters;
+  const auto& se = fit.result.standard_errors;
+  CHECK(std::abs(p[0] - 0.35) < 3.0 * se[0]);
+  CHECK(std::abs(p[1] - 48.0) < 3.0 * se[1]);
+  CHECK(fit.result.residual_rms == rel(1.0).epsilon(0.1));  // as above
+  // The sampled drive edge is half way between the samples around it: 2.5 µs from the true one.
+  CHECK(std::abs(std::abs(fit.time_shift_s) - 2.5e-6) < 1e-6);
+  // A rising drive is a switch-on.
+  auto on = capture;
+  for (double& v : on.drive_V) v = 5.0 - v;
+  CHECK(analyses::capture_edge(on) == analyses::CaptureEdge::switch_on);
+}
+
 TEST_CASE("fit: the noise taken from the steady current before the edge") {
   const auto parts = catalogue::load_default_catalogue();
   const auto truth = scenario::read_scenario_text(kValve, "valve.toml", parts);

@@ -231,8 +231,12 @@ def overlay(fit, title=None):
     bottom.plot(t, f.residual, color=PALETTE[7], linewidth=0.8, label="measured − model")
     for band in (-3.0, 3.0):
         bottom.axhline(band, color=LIMIT_COLOUR, linestyle="--", linewidth=1)
-    edge = "rising" if fit.edge == "switch-off" else "falling"
-    bottom.set_xlabel("time after the %s edge of the switch voltage (ms)" % edge)
+    off = fit.edge == "switch-off"
+    if fit.time_zero == "drive":
+        edge = "falling edge of the drive" if off else "rising edge of the drive"
+    else:
+        edge = "rising edge of the switch voltage" if off else "falling edge of the switch voltage"
+    bottom.set_xlabel("time after the %s (ms)" % edge)
     top.set_ylabel("coil current (mA)")
     bottom.set_ylabel("residual (noise units; ±3σ dashed)")
     for ax in (top, bottom):

@@ -20,6 +20,7 @@ struct ModelRun {
   drivers::BuiltDriver built;
   std::shared_ptr<const engine::TransientResult> transient;
   double drive_edge_s = 0.0;
+  double drive_ramp_s = 0.0;  // the drive edge's fall or rise time
   double make_time_s = std::nan("");
   double switch_voltage(double t) const {
     const Eigen::VectorXd x = transient->sample(t);
@@ -30,6 +31,7 @@ struct ModelRun {
 ModelRun run_model(const scenario::Scenario& s, const catalogue::Catalogue& parts, CaptureEdge edge, double span_s) {
   ModelRun m{drivers::build_driver_network(s.driver, parts), nullptr};  // bad values: invalid_argument
   m.drive_edge_s = s.driver.drive.switch_off_at_s;
+  m.drive_ramp_s = edge == CaptureEdge::switch_off ? s.driver.drive.fall_time_s : s.driver.drive.rise_time_s;
   if (edge == CaptureEdge::switch_off) {
     m.transient = drivers::simulate_switch_off(s.driver, m.built).transient;
   } else {
@@ -40,16 +42,18 @@ ModelRun run_model(const scenario::Scenario& s, const catalogue::Catalogue& part
   return m;
 }
 
-// The model's switch-voltage edge by the capture's rule (switch_voltage_edge_time_s), on the
-// recorded points and then by bisection on the dense output.
-double model_edge_time(const ModelRun& m) {
+// The model's edge by the capture's rule (edge_time_s), after the start of its drive edge. The
+// drive is a straight ramp: half way at half its fall (switch-off) or rise (switch-on) time. The
+// switch voltage: on the recorded points, then by bisection on the dense output.
+double model_edge_time(const ModelRun& m, EdgeAlignment alignment) {
+  if (alignment == EdgeAlignment::drive) return 0.5 * m.drive_ramp_s;
   const auto& tr = *m.transient;
   std::vector<double> t, v;
   for (std::size_t k = 0; k < tr.times_s().size(); ++k) {
     t.push_back(tr.times_s()[k]);
     v.push_back(m.switch_voltage(t.back()));
   }
-  const double rough = scenario::switch_voltage_edge_time_s(t, v);
+  const double rough = scenario::edge_time_s(t, v);
   if (std::isnan(rough)) throw engine::SimulationError("fit: the model's switch voltage never moves: no edge to align with");
   double far = v[0];
   for (double x : v) far = std::abs(x - v[0]) > std::abs(far - v[0]) ? x : far;
@@ -65,10 +69,10 @@ double model_edge_time(const ModelRun& m) {
 }
 
 // with_voltage: the switch voltage at each time too (a fit's residuals need only the current).
-ModelTrace trace_of(const ModelRun& m, const std::vector<double>& times_after_edge_s, bool with_voltage = true) {
+ModelTrace trace_of(const ModelRun& m, const std::vector<double>& times_after_edge_s, EdgeAlignment alignment, bool with_voltage = true) {
   const auto& tr = *m.transient;
   ModelTrace out;
-  out.edge_time_s = model_edge_time(m);
+  out.edge_time_s = model_edge_time(m, alignment);
   out.make_time_s = m.make_time_s;
   // What a shunt in series with the coil measures: the current through its terminals, the
   // winding's and the core loss's (which a stiff clamp's voltage drives). The coil element
@@ -131,18 +135,32 @@ void set_fitted_keys(scenario::Scenario& c, const catalogue::Catalogue& parts, c
 const char* to_string(CaptureEdge e) { return e == CaptureEdge::switch_off ? "switch-off" : "switch-on"; }
 
 CaptureEdge capture_edge(const scenario::Capture& c) {
-  if (c.voltage_V.empty()) throw std::invalid_argument("capture: no switch-voltage channel to tell the edge from");
-  const double v0 = c.voltage_V.front();
+  // The drive falls to switch off and rises to switch on; the switch voltage does the opposite.
+  const bool drive = !c.drive_V.empty();
+  const auto& v = drive ? c.drive_V : c.voltage_V;
+  if (v.empty()) throw std::invalid_argument("capture: no switch-voltage or drive channel to tell the edge from");
+  const double v0 = v.front();
   double far = v0;
-  for (double v : c.voltage_V) far = std::abs(v - v0) > std::abs(far - v0) ? v : far;
-  if (far == v0) throw std::invalid_argument("capture: the switch voltage never moves: neither a switch-off nor a switch-on");
-  return far > v0 ? CaptureEdge::switch_off : CaptureEdge::switch_on;
+  for (double x : v) far = std::abs(x - v0) > std::abs(far - v0) ? x : far;
+  if (far == v0) {
+    throw std::invalid_argument(std::string("capture: the ") + (drive ? "drive" : "switch voltage") +
+                                " never moves: neither a switch-off nor a switch-on");
+  }
+  return (far > v0) != drive ? CaptureEdge::switch_off : CaptureEdge::switch_on;
 }
 
 ModelTrace model_trace(const scenario::Scenario& s, const catalogue::Catalogue& parts, CaptureEdge edge,
-                       const std::vector<double>& times_after_edge_s) {
-  return trace_of(run_model(s, parts, edge, span_after_edge(times_after_edge_s)), times_after_edge_s);
+                       const std::vector<double>& times_after_edge_s, EdgeAlignment alignment) {
+  return trace_of(run_model(s, parts, edge, span_after_edge(times_after_edge_s)), times_after_edge_s, alignment);
 }
+
+EdgeAlignment capture_alignment(const scenario::Capture& c) { return c.drive_V.empty() ? EdgeAlignment::switch_voltage : EdgeAlignment::drive; }
+
+double capture_edge_time_s(const scenario::Capture& c) {
+  return scenario::edge_time_s(c.time_s, capture_alignment(c) == EdgeAlignment::drive ? c.drive_V : c.voltage_V);
+}
+
+const char* to_string(EdgeAlignment a) { return a == EdgeAlignment::drive ? "drive" : "switch-voltage"; }
 
 std::vector<std::string> default_fit_keys(const scenario::Scenario& s, CaptureEdge edge) {
   std::vector<std::string> keys{"coil.inductance"};
@@ -157,7 +175,7 @@ std::vector<std::string> default_fit_keys(const scenario::Scenario& s, CaptureEd
 }
 
 double current_noise_before_edge_A(const scenario::Capture& c) {
-  const double t_edge = scenario::switch_voltage_edge_time_s(c.time_s, c.voltage_V);
+  const double t_edge = capture_edge_time_s(c);
   if (std::isnan(t_edge) || c.current_A.empty()) return std::nan("");
   double sum = 0.0, sum2 = 0.0;
   std::size_t n = 0;
@@ -171,18 +189,19 @@ double current_noise_before_edge_A(const scenario::Capture& c) {
 CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& parts, const scenario::Capture& capture,
                        const std::vector<std::string>& keys, const FitOptions& options) {
   if (keys.empty()) throw std::invalid_argument("fit: no keys to fit");
-  if (capture.current_A.empty() || capture.voltage_V.empty()) {
-    throw std::invalid_argument("fit: the capture needs a current and a switch-voltage channel");
+  if (capture.current_A.empty() || (capture.voltage_V.empty() && capture.drive_V.empty())) {
+    throw std::invalid_argument("fit: the capture needs a current channel and a switch-voltage or drive channel");
   }
   CaptureFit out;
   out.edge = capture_edge(capture);
+  out.alignment = capture_alignment(capture);
   out.keys = keys;
   out.current_noise_A = options.current_noise_A > 0.0 ? options.current_noise_A : current_noise_before_edge_A(capture);
   if (!(out.current_noise_A > 0.0) || !std::isfinite(out.current_noise_A)) {
     throw std::invalid_argument("fit: the current's noise is not known: give it (the capture has fewer than 16 steady samples before its edge)");
   }
-  const double t_edge_capture = scenario::switch_voltage_edge_time_s(capture.time_s, capture.voltage_V);
-  if (std::isnan(t_edge_capture)) throw std::invalid_argument("fit: the capture's switch voltage has no edge to align with");
+  const double t_edge_capture = capture_edge_time_s(capture);
+  if (std::isnan(t_edge_capture)) throw std::invalid_argument(std::string("fit: the capture's ") + to_string(out.alignment) + " channel has no edge to align with");
   for (double t : capture.time_s) out.time_after_edge_s.push_back(t - t_edge_capture);
   const auto n = static_cast<Eigen::Index>(keys.size());
   // The keys, and last the time shift between capture and model: the edges are found on samples
@@ -208,7 +227,7 @@ CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& 
     set_fitted_keys(c, parts, keys, x);
     std::vector<double> shifted(out.time_after_edge_s);
     for (double& t : shifted) t += x[n];
-    return trace_of(run_model(c, parts, out.edge, span), shifted, false);
+    return trace_of(run_model(c, parts, out.edge, span), shifted, out.alignment, false);
   };
   p.residuals = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
     const auto m = at(x);

@@ -4,10 +4,10 @@
 // squares (least_squares.hpp) so that the normal engine's coil current matches the capture's,
 // each residual a run of the whole switch-off (switch_off.hpp) or switch-on (switch_on.hpp).
 // Which edge: the capture's switch voltage rises from its first value (switch-off) or falls
-// (switch-on). Times: the capture's zero is its switch-voltage edge (capture.hpp), the model's
-// the same point of its own switch voltage (half way from its first value to the value farthest
-// from it), and the shift between the two is fitted with the keys (an edge found on a scope's
-// samples is only as sharp as their spacing). Keys whose standard error is not below their value
+// (switch-on), or its drive channel falls or rises. Times: the capture's zero is its edge — the
+// drive's where it has a drive channel, else the switch voltage's (capture.hpp) — and the model's
+// the same point of its own drive or switch voltage; the shift between the two is fitted with
+// the keys (an edge found on a scope's samples is only as sharp as their spacing). Keys whose standard error is not below their value
 // are reported as undetermined.
 #include <functional>
 #include <string>
@@ -23,11 +23,21 @@ namespace coilkick::analyses {
 
 enum class CaptureEdge { switch_off, switch_on };
 const char* to_string(CaptureEdge e);
+// Which edge a capture's time zero and the model's are at: the switch voltage's (half way from
+// its first value to the value farthest from it), or the drive's (half way across its edge; the
+// model's drive is a straight ramp, so half its fall or rise time after its start).
+enum class EdgeAlignment { switch_voltage, drive };
+const char* to_string(EdgeAlignment a);
 
-// Throws std::invalid_argument when the capture has no switch voltage or it never moves.
+// From the drive channel where the capture has one (it falls to switch off), else from the switch
+// voltage (it rises at switch-off). Throws std::invalid_argument when neither is there or moves.
 CaptureEdge capture_edge(const scenario::Capture& c);
+// The drive where the capture has one, else the switch voltage.
+EdgeAlignment capture_alignment(const scenario::Capture& c);
+// The capture's edge by its alignment (scenario::edge_time_s); NaN where there is none.
+double capture_edge_time_s(const scenario::Capture& c);
 
-// What the model shows at times after its own switch-voltage edge (the capture's convention):
+// What the model shows at times after its own edge (switch voltage or drive, the capture's convention):
 // the current through the coil's terminals (a shunt in series with it: the winding's current and
 // the core loss's; the winding capacitance's charging current, a spike of a fraction of a
 // microsecond at the edge, is left out) and the switch voltage;
@@ -36,23 +46,24 @@ CaptureEdge capture_edge(const scenario::Capture& c);
 struct ModelTrace {
   std::vector<double> current_A;
   std::vector<double> voltage_V;
-  double edge_time_s = 0.0;  // the model's switch-voltage edge after the start of its drive edge
+  double edge_time_s = 0.0;  // the model's edge (as aligned) after the start of its drive edge
   double make_time_s = 0.0;  // switch-on with the armature model: contact make after the drive edge (NaN otherwise)
 };
 ModelTrace model_trace(const scenario::Scenario& s, const catalogue::Catalogue& parts, CaptureEdge edge,
-                       const std::vector<double>& times_after_edge_s);
+                       const std::vector<double>& times_after_edge_s, EdgeAlignment alignment = EdgeAlignment::switch_voltage);
 
 // The keys fitted when none are named: coil.inductance with, at switch-off, the core loss (where
 // the scenario gives one) and, at switch-on, the coil resistance; with the armature model also
 // the data-sheet time of that edge (relay.release_time / relay.operate_time) where one is given.
 std::vector<std::string> default_fit_keys(const scenario::Scenario& s, CaptureEdge edge);
 
-// The capture's noise where none is given: the standard deviation of its current before the
-// edge (a steady current there), from at least 16 samples; NaN where there are fewer.
+// The capture's noise where none is given: the standard deviation of its current before its
+// edge (capture_edge_time_s; a steady current there), from at least 16 samples; NaN where there are fewer.
 double current_noise_before_edge_A(const scenario::Capture& c);
 
 struct CaptureFit {
   CaptureEdge edge = CaptureEdge::switch_off;
+  EdgeAlignment alignment = EdgeAlignment::switch_voltage;
   std::vector<std::string> keys;
   std::vector<double> start_values;      // SI units of each key
   LeastSquaresResult result;              // parameters and standard errors in the keys' SI units, then the time shift
@@ -60,7 +71,7 @@ struct CaptureFit {
   double time_shift_s = 0.0;              // fitted shift of the capture's clock against the model's edge
   double time_shift_error_s = 0.0;
   std::vector<std::string> undetermined;  // keys whose standard error is not below their value (or NaN)
-  std::vector<double> time_after_edge_s;  // the capture's times after its own edge
+  std::vector<double> time_after_edge_s;  // the capture's times after its own edge (as aligned)
   std::vector<double> model_current_A;    // at those times, at the optimum
   ArmatureMotion measured_motion;         // switch-on: the dip in the capture's current
   ArmatureMotion model_motion;            // switch-on: the same reading of the fitted model's current

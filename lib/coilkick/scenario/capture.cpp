@@ -67,8 +67,8 @@ class Reader {
 
   Capture read(const std::string& text) {
     for (const auto& [role, col] : o_.channels) {
-      if (role != "time" && role != "current" && role != "voltage" && role != "contact") {
-        throw std::invalid_argument(file_ + ": channel role '" + role + "' is not one of time, current, voltage, contact");
+      if (role != "time" && role != "current" && role != "voltage" && role != "contact" && role != "drive") {
+        throw std::invalid_argument(file_ + ": channel role '" + role + "' is not one of time, current, voltage, contact, drive");
       }
     }
     split_lines(text);
@@ -80,8 +80,10 @@ class Reader {
     if (o_.channels.count("current")) c.current_A = channel("current", Dimension::current);
     if (o_.channels.count("voltage")) c.voltage_V = channel("voltage", Dimension::voltage);
     if (o_.channels.count("contact")) c.contact = channel("contact", Dimension::dimensionless);
+    if (o_.channels.count("drive")) c.drive_V = channel("drive", Dimension::voltage);
     check_time(c.time_s);
-    if (o_.time_zero == CaptureTimeZero::switch_voltage_edge) shift_to_edge(c);
+    if (o_.time_zero == CaptureTimeZero::switch_voltage_edge) shift_to_edge(c, c.voltage_V, "switch voltage");
+    if (o_.time_zero == CaptureTimeZero::drive_edge) shift_to_edge(c, c.drive_V, "drive");
     return c;
   }
 
@@ -245,12 +247,12 @@ class Reader {
     }
   }
 
-  // Time zero at the switch-voltage edge (switch_voltage_edge_time_s).
-  void shift_to_edge(Capture& c) const {
-    if (c.voltage_V.empty()) throw std::invalid_argument(file_ + ": time zero at the switch-voltage edge needs a voltage channel");
-    const double t = switch_voltage_edge_time_s(c.time_s, c.voltage_V);
+  // Time zero at the edge of the switch voltage or the drive (edge_time_s).
+  void shift_to_edge(Capture& c, const std::vector<double>& signal, const std::string& what) const {
+    if (signal.empty()) throw std::invalid_argument(file_ + ": time zero at the " + what + " edge needs a " + what + " channel");
+    const double t = edge_time_s(c.time_s, signal);
     if (std::isnan(t)) {
-      throw std::invalid_argument(file_ + ": the switch voltage never moves from its first value: no edge to take as time zero");
+      throw std::invalid_argument(file_ + ": the " + what + " never moves from its first value: no edge to take as time zero");
     }
     c.time_shift_s = t;
     for (auto& x : c.time_s) x -= t;
@@ -259,7 +261,7 @@ class Reader {
 
 }  // namespace
 
-double switch_voltage_edge_time_s(const std::vector<double>& time_s, const std::vector<double>& voltage_V) {
+double edge_time_s(const std::vector<double>& time_s, const std::vector<double>& voltage_V) {
   if (voltage_V.empty()) return std::nan("");
   const double v0 = voltage_V.front();
   double far = v0;  // the value farthest from the first: a switch-off's peak, a switch-on's low

@@ -2,9 +2,9 @@
 // Bench captures: the CSV an oscilloscope or a data logger writes — header lines (skipped, the
 // last one naming the columns, units in brackets: "time (s)", "CH1 [mV]"), comma, semicolon or
 // tab separated (with semicolons a decimal comma is read too), a time column and channels.
-// The caller maps columns to roles (time, current, voltage, contact) by name or 1-based number;
+// The caller maps columns to roles (time, current, voltage, contact, drive) by name or 1-based number;
 // a current measured as a shunt's voltage is divided by the shunt resistance. Time zero can be
-// moved to the switch-voltage edge of a switch-off or switch-on capture.
+// moved to the switch-voltage edge of a switch-off or switch-on capture, or to the drive edge.
 //
 // Errors name the file and line: a missing column (with the columns there are), a non-numeric
 // or empty value, time that does not increase, too few samples, a unit that does not fit its
@@ -16,10 +16,10 @@
 
 namespace coilkick::scenario {
 
-enum class CaptureTimeZero { as_recorded, switch_voltage_edge };
+enum class CaptureTimeZero { as_recorded, switch_voltage_edge, drive_edge };
 
 struct CaptureOptions {
-  // role ("time", "current", "voltage", "contact") -> column name or 1-based column number.
+  // role ("time", "current", "voltage", "contact", "drive") -> column name or 1-based column number.
   // Unmapped roles: "time" is the first column; the others are absent.
   std::map<std::string, std::string> channels;
   // column (as mapped) -> unit with an optional SI prefix ("mV", "A"), where the header has none
@@ -36,14 +36,16 @@ struct Capture {
   std::vector<double> current_A;  // empty where the capture has no current channel
   std::vector<double> voltage_V;  // the switch voltage; empty where absent
   std::vector<double> contact;    // contact monitor, as recorded (any unit); empty where absent
+  std::vector<double> drive_V;    // the driver's logic input (the drive edge); empty where absent
   double time_shift_s = 0.0;      // subtracted from the recorded times (time zero)
   int first_data_line = 0;
 };
 
-// Where a switch voltage first moves half way from its first value to the value farthest from
-// it (linear between samples): up to a switch-off's peak, down to a switch-on's low. The edge a
-// capture's time zero and a fit's alignment use; NaN where the voltage never moves.
-double switch_voltage_edge_time_s(const std::vector<double>& time_s, const std::vector<double>& voltage_V);
+// Where a signal first moves half way from its first value to the value farthest from it
+// (linear between samples): a switch voltage up to a switch-off's peak or down to a switch-on's
+// low, a drive signal across its edge. The edge a capture's time zero and a fit's alignment use;
+// NaN where the signal never moves.
+double edge_time_s(const std::vector<double>& time_s, const std::vector<double>& signal);
 
 // Throws std::invalid_argument "file:line: ..." for anything it cannot read as asked.
 Capture read_capture_text(const std::string& text, const std::string& file, const CaptureOptions& options);
