@@ -183,6 +183,14 @@ struct Builder {
       out.relay_calibration = &relay::calibrate_relay_cached(relay_datasheet(s));
       relay::ArmatureCoilParameters ap = out.relay_calibration->parameters;
       ap.resistance_ohm = out.coil_resistance_ohm;
+      // A coil whose inductance is not the data sheet's (a tolerance run, a sweep of
+      // coil.inductance): the same magnet and springs with a winding of other turns, N² scaled so
+      // that L(g) is that ratio times the data sheet's at every gap.
+      const double ratio = cs.inductance_H / relay_datasheet(s).closed_inductance_H;
+      if (ratio != 1.0) {
+        ap.magnetic.turns *= std::sqrt(ratio);
+        ap.magnetic.leakage_inductance_H *= ratio;
+      }
       ap.core_loss_resistance_ohm = cs.core_loss_resistance_ohm;
       out.armature = ap;
       out.network.add(std::make_shared<relay::ArmatureCoil>("coil", a, k, ap));
