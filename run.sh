@@ -5,7 +5,7 @@
 #   ./run.sh build   configure (Release, build/) and build only
 #   ./run.sh bench   build with the benchmarks and run them (never part of the tests)
 #   ./run.sh sanitize  C++ tests under ASan+UBSan, threaded analyses under TSan
-#   ./run.sh fuzz      libFuzzer targets (scenario reader, random networks) for a set time
+#   ./run.sh fuzz      libFuzzer targets (scenario reader, random networks, capture reader) for a set time
 #   ./run.sh package   the Debian package (build/coilkick_<version>_<arch>.deb)
 set -euo pipefail
 cd "$(dirname "$0")"
@@ -42,7 +42,7 @@ build_fuzzers() {
   cmake -S . -B build-fuzz -DCMAKE_BUILD_TYPE=RelWithDebInfo -DCMAKE_CXX_COMPILER="$FUZZ_CXX" \
     -DCOILKICK_BUILD_PYTHON=OFF -DCOILKICK_BUILD_TESTS=OFF -DCOILKICK_BUILD_FUZZ=ON \
     -DCMAKE_CXX_FLAGS="-fsanitize=fuzzer-no-link,address,undefined -fno-sanitize-recover=undefined" >/dev/null
-  cmake --build build-fuzz -j "$JOBS" --target fuzz_scenario fuzz_network
+  cmake --build build-fuzz -j "$JOBS" --target fuzz_scenario fuzz_network fuzz_capture
 }
 
 configure_and_build() {
@@ -74,7 +74,7 @@ case "$cmd" in
     # Each target for COILKICK_FUZZ_SECONDS (default 300) from a copy of the seed corpus.
     install_missing_packages
     build_fuzzers
-    for t in scenario network; do
+    for t in scenario network capture; do
       mkdir -p "build-fuzz/corpus-$t"
       cp -n fuzz/corpus/$t/* "build-fuzz/corpus-$t/" 2>/dev/null || true
       "build-fuzz/bin/fuzz_$t" -max_total_time="${COILKICK_FUZZ_SECONDS:-300}" -timeout=45 -rss_limit_mb=2048 \
