@@ -111,7 +111,7 @@ case "$cmd" in
     "$BUILD_DIR/bin/hold_bench"
     "$BUILD_DIR/bin/fit_bench"
     PYTHONPATH="$BUILD_DIR/python" "$PYTHON" bench/throughput.py
-    PYTHONPATH="$BUILD_DIR/python" "$PYTHON" bench/reference_transient.py
+    COILKICK_BUILD_DIR="$BUILD_DIR" PYTHONPATH="$BUILD_DIR/python" "$PYTHON" bench/reference_transient.py
     ;;
   *)
     echo "usage: ./run.sh demo|test|build|bench|sanitize|fuzz|package" >&2
