@@ -213,3 +213,38 @@ TEST_CASE("an armature that cannot meet a data-sheet time names that value, not 
                        doctest::Contains("relay.operate_time (1e-06 s) cannot be met by an armature on this coil"),
                        coilkick::scenario::ScenarioError);
 }
+
+TEST_CASE("a loose tolerance does not carry the decay past the end of the run") {
+  // At relative tolerance 1e-2 one long step carried the coil current from 6 mA through zero to
+  // −5 mA, past the clamp diode's turn-off, and the run-ending probe (the coil's energy) fell
+  // below its threshold and rose again inside that step: the run went on through a made-up
+  // transient to 1.4 ms with 130 steps, where 1e-3 took 83. The end must be where the coil's
+  // energy has fallen to the threshold (the same instant at any tolerance: the current's 1 %
+  // point, on a decay of ~30 A/s into the clamp, within 1 % of the tight run's), and a looser
+  // tolerance must not take more steps.
+  // The circuit of bench/reference_transient.py: the relay case with the devices' charges and
+  // series resistances taken out (the stiffest form of it).
+  auto s = test_support::relay_case(false);
+  s.clamp.kind = coilkick::drivers::ClampKind::diode_zener;
+  s.clamp.diode_part = "rectifier_1a";
+  s.switch_.overrides = {{"collector_resistance", 0.0}, {"base_emitter_capacitance", 0.0}, {"base_collector_capacitance", 0.0},
+                         {"forward_transit_time", 0.0}, {"reverse_transit_time", 0.0}, {"forward_early_voltage", 1e12},
+                         {"collector_emitter_breakdown_voltage", 1e4}};
+  const coilkick::drivers::Overrides no_charge{{"series_resistance", 0.0}, {"transit_time", 0.0}, {"zero_bias_capacitance", 0.0}};
+  s.clamp.diode_overrides = no_charge;
+  s.clamp.diode_overrides["breakdown_voltage"] = 1e5;
+  s.clamp.zener_overrides = no_charge;
+  long steps_before = 0;
+  double tight_end = 0.0;
+  for (double rtol : {1e-6, 1e-3, 1e-2}) {
+    CAPTURE(rtol);
+    s.analysis.relative_tolerance = rtol;
+    const auto r = coilkick::drivers::simulate_switch_off(s, test_support::catalogue());
+    const double end = r.transient->end_time_s();
+    const long steps = r.transient->statistics().accepted_steps;
+    if (rtol == 1e-6) tight_end = end;
+    CHECK(std::abs(end - tight_end) < 0.01 * (tight_end - s.drive.switch_off_at_s));
+    if (steps_before > 0) CHECK(steps <= steps_before);
+    steps_before = steps;
+  }
+}

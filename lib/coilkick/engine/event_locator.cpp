@@ -101,15 +101,58 @@ double EventLocator::on_step(double t0, const double* x0, const double* r0, doub
     const double a = std::max(t0, e.after_time_s);
     if (e.kind == EventSpec::Kind::crossing) {
       if (outcomes_[k].time_s) continue;  // first occurrence only
-      const double ga = (a == t0 ? probe_at_start(k, t0, x0, r0) : probe_at(e, a, f)) - e.threshold;
+      auto crosses = [&e](double g0, double g1) {
+        const bool falls = g0 > 0.0 && g1 <= 0.0, rises = g0 < 0.0 && g1 >= 0.0;
+        return (e.direction == Direction::falling && falls) || (e.direction == Direction::rising && rises) ||
+               (e.direction == Direction::either && (falls || rises));
+      };
+      double ga = (a == t0 ? probe_at_start(k, t0, x0, r0) : probe_at(e, a, f)) - e.threshold;
       const double gb = probe_at_end(k, t1, x1, r1) - e.threshold;
-      const bool falls = ga > 0.0 && gb <= 0.0;
-      const bool rises = ga < 0.0 && gb >= 0.0;
-      const bool hit = (e.direction == Direction::falling && falls) ||
-                       (e.direction == Direction::rising && rises) ||
-                       (e.direction == Direction::either && (falls || rises));
+      double b = t1;
+      bool hit = crosses(ga, gb);
+      if (!hit && e.stops_run && t1 > a && ga != 0.0 && (ga > 0.0 ? e.direction != Direction::rising : e.direction != Direction::falling)) {
+        // A run-ending probe can pass its threshold inside one step and come back: a long step
+        // that carries a decaying coil current through zero (where a clamp diode would have
+        // stopped it) has the coil's energy vanish inside the step and grow again. Look for the
+        // probe's turning point towards the threshold inside the step (golden section); where it
+        // lies beyond the threshold the run ends at the crossing before it.
+        const double toward = ga > 0.0 ? -1.0 : 1.0;  // the direction of the threshold
+        // Two probes just inside the ends tell whether it turns: heading for the threshold at the
+        // start, away from it at the end. Only then (rare) is the turning point searched for.
+        const double eps = 1e-6 * (t1 - a);
+        const bool turns = toward * (probe_at(e, a + eps, f) - e.threshold - ga) > 0.0 &&
+                           toward * (gb - (probe_at(e, t1 - eps, f) - e.threshold)) < 0.0;
+        double lo = a, hi = t1;
+        const double r = 0.5 * (std::sqrt(5.0) - 1.0);
+        double c = hi - r * (hi - lo), d = lo + r * (hi - lo);
+        double gc = turns ? probe_at(e, c, f) - e.threshold : -toward, gd = turns ? probe_at(e, d, f) - e.threshold : -toward;
+        for (int it = 0; turns && it < 100 && hi - lo > tol_; ++it) {
+          if (toward * gc >= 0.0 || toward * gd >= 0.0) break;  // a point beyond the threshold: enough
+          if (toward * gc > toward * gd) {
+            hi = d;
+            d = c;
+            gd = gc;
+            c = hi - r * (hi - lo);
+            gc = probe_at(e, c, f) - e.threshold;
+          } else {
+            lo = c;
+            c = d;
+            gc = gd;
+            d = lo + r * (hi - lo);
+            gd = probe_at(e, d, f) - e.threshold;
+          }
+        }
+        double t_turn = std::nan("");
+        for (const auto& [tt, gg] : {std::make_pair(c, gc), std::make_pair(d, gd)}) {
+          if (toward * gg >= 0.0 && (std::isnan(t_turn) || tt < t_turn)) t_turn = tt;
+        }
+        if (!std::isnan(t_turn)) {
+          hit = true;
+          b = t_turn;  // the crossing lies between the step's start and this point
+        }
+      }
       if (!hit) continue;
-      const double tc = locate_crossing(e, a, ga, t1, f);
+      const double tc = locate_crossing(e, a, ga, b, f);
       outcomes_[k].time_s = tc;
       outcomes_[k].value = probe_at(e, tc, f);
       if (e.stops_run) stop_at = std::min(stop_at, tc);
