@@ -163,9 +163,13 @@ struct Checker {
   void relay_checks(const HoldResult* hold) {
     if (!b.relay_calibration) return;
     const double worst = b.relay_calibration->worst_relative_error();
-    out.push_back({"relay_calibration", worst <= 0.02 ? CheckStatus::pass : CheckStatus::warn, worst, 0.02, "1",
+    // Above half (our choice) the armature is not the data sheet's: a time it cannot reach on this
+    // coil (the calibration keeps the nearest it found), and the contact times mean little.
+    out.push_back({"relay_calibration", worst <= 0.02 ? CheckStatus::pass : worst <= 0.5 ? CheckStatus::warn : CheckStatus::fail, worst, 0.02,
+                   "1",
                    "largest relative miss of the armature model's calibration targets (operate and release voltage and "
-                   "time, closed inductance); above 2 % the contact times are less trustworthy"});
+                   "time, closed inductance); above 2 % the contact times are less trustworthy, above 50 % the armature "
+                   "cannot meet the data sheet on this coil"});
     if (b.armature && std::isnan(m.get("contact_open_time_s"))) {
       out.push_back({"contact_opens", CheckStatus::fail, kNaN, kNaN, "s",
                      hold && !hold->armature_held ? "the make contact opened already in the PWM hold, before the switch-off"
