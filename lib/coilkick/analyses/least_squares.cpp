@@ -57,7 +57,7 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& problem, const
     out.iterations = it + 1;
     const Eigen::MatrixXd a = j.transpose() * j;
     const Eigen::VectorXd g = j.transpose() * r;
-    // Moré's scaling: the damping term uses the diagonal of JᵀJ (kept at its largest so far).
+    // Scaled damping: the damping term uses the diagonal of JᵀJ.
     Eigen::VectorXd d = a.diagonal().cwiseMax(1e-300);
     if (mu < 0.0) mu = 1e-3 * d.maxCoeff();
     bool improved = false;

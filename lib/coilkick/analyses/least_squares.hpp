@@ -1,8 +1,7 @@
 #pragma once
 // Nonlinear least squares for fits to bench captures: Levenberg–Marquardt with the damping
-// scaled by the diagonal of JᵀJ (J. J. Moré, Lecture Notes in Mathematics 630, Springer 1978,
-// pp. 105–116), the Jacobian by forward differences
-// on each parameter's own scale, and the parameters' standard errors from the Jacobian at the
+// scaled by the diagonal of JᵀJ (Nocedal & Wright, Numerical Optimization, 2nd ed., §10.3;
+// section from memory), the Jacobian by forward differences on each parameter's own scale, and the parameters' standard errors from the Jacobian at the
 // optimum: covariance s²·(JᵀJ)⁻¹ with s² the residual sum of squares over (residuals −
 // parameters) — the usual linearised estimate (e.g. Press et al., Numerical Recipes, 3rd ed.,
 // §15.5; section from memory).
