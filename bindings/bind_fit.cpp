@@ -124,13 +124,6 @@ void DefineFit(py::module_& m) {
         c.voltage_V = voltage_V;
         c.contact = contact;
         c.drive_V = drive_V;
-        auto fits = [&](const std::vector<double>& v) { return v.empty() || v.size() == c.time_s.size(); };
-        if (c.current_A.size() != c.time_s.size() || !fits(c.voltage_V) || !fits(c.contact) || !fits(c.drive_V)) {
-          throw std::invalid_argument("fit: the capture's columns differ in length");
-        }
-        for (std::size_t k = 1; k < c.time_s.size(); ++k) {
-          if (!(c.time_s[k] > c.time_s[k - 1])) throw std::invalid_argument("fit: the capture's time does not increase at row " + std::to_string(k));
-        }
         auto out = std::make_shared<PyFit>();
         run_interruptibly([&] {
           analyses::FitOptions o;

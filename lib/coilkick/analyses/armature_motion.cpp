@@ -11,7 +11,7 @@ ArmatureMotion find_armature_motion(const std::vector<double>& time_s, const std
   const std::size_t n = current_A.size();
   ArmatureMotion out;
   if (n < 8) return out;
-  const std::size_t half = std::max<std::size_t>(0, n / 400);
+  const std::size_t half = n / 400;
   const std::size_t window = 2 * half + 1;
   std::vector<double> s(n);
   double sum = 0.0;

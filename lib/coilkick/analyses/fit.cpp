@@ -48,22 +48,19 @@ ModelRun run_model(const scenario::Scenario& s, const catalogue::Catalogue& part
 double model_edge_time(const ModelRun& m, EdgeAlignment alignment) {
   if (alignment == EdgeAlignment::drive) return 0.5 * m.drive_ramp_s;
   const auto& tr = *m.transient;
-  std::vector<double> t, v;
-  for (std::size_t k = 0; k < tr.times_s().size(); ++k) {
-    t.push_back(tr.times_s()[k]);
-    v.push_back(m.switch_voltage(t.back()));
+  const std::vector<double>& t = tr.times_s();
+  std::vector<double> v(t.size());
+  for (std::size_t k = 0; k < t.size(); ++k) {
+    v[k] = drivers::switch_voltage_V(m.built, tr.circuit(), t[k], tr.states().row(static_cast<Eigen::Index>(k)).data());
   }
   const double rough = scenario::edge_time_s(t, v);
   if (std::isnan(rough)) throw engine::SimulationError("fit: the model's switch voltage never moves: no edge to align with");
-  double far = v[0];
-  for (double x : v) far = std::abs(x - v[0]) > std::abs(far - v[0]) ? x : far;
-  const double level = v[0] + 0.5 * (far - v[0]);
-  const double sign = far > v[0] ? 1.0 : -1.0;
+  const scenario::EdgeLevel e = scenario::edge_level(v);
   const auto k = static_cast<std::size_t>(std::upper_bound(t.begin(), t.end(), rough) - t.begin());
   double lo = t[std::max<std::size_t>(k, 1) - 1], hi = t[std::min(k, t.size() - 1)];
   for (int it = 0; it < 200 && hi - lo > 1e-15 * std::max(1.0, hi); ++it) {
     const double mid = 0.5 * (lo + hi);
-    (sign * (m.switch_voltage(mid) - level) < 0.0 ? lo : hi) = mid;
+    (e.direction * (m.switch_voltage(mid) - e.level) < 0.0 ? lo : hi) = mid;
   }
   return 0.5 * (lo + hi) - m.drive_edge_s;
 }
@@ -81,9 +78,10 @@ ModelTrace trace_of(const ModelRun& m, const std::vector<double>& times_after_ed
   const std::vector<double> no_rates(static_cast<std::size_t>(tr.circuit().state_count()), 0.0);
   out.current_A.reserve(times_after_edge_s.size());
   out.voltage_V.reserve(times_after_edge_s.size());
+  Eigen::VectorXd x(tr.circuit().state_count());
   for (double ta : times_after_edge_s) {
     const double t = std::clamp(m.drive_edge_s + out.edge_time_s + ta, tr.start_time_s(), tr.end_time_s());
-    const Eigen::VectorXd x = tr.sample(t);
+    tr.sample(t, x.data());
     out.current_A.push_back(coil(t, x.data(), no_rates.data()));
     if (with_voltage) out.voltage_V.push_back(drivers::switch_voltage_V(m.built, tr.circuit(), t, x.data()));
   }
@@ -139,14 +137,12 @@ CaptureEdge capture_edge(const scenario::Capture& c) {
   const bool drive = !c.drive_V.empty();
   const auto& v = drive ? c.drive_V : c.voltage_V;
   if (v.empty()) throw std::invalid_argument("capture: no switch-voltage or drive channel to tell the edge from");
-  const double v0 = v.front();
-  double far = v0;
-  for (double x : v) far = std::abs(x - v0) > std::abs(far - v0) ? x : far;
-  if (far == v0) {
+  const int direction = scenario::edge_level(v).direction;
+  if (direction == 0) {
     throw std::invalid_argument(std::string("capture: the ") + (drive ? "drive" : "switch voltage") +
                                 " never moves: neither a switch-off nor a switch-on");
   }
-  return (far > v0) != drive ? CaptureEdge::switch_off : CaptureEdge::switch_on;
+  return (direction > 0) != drive ? CaptureEdge::switch_off : CaptureEdge::switch_on;
 }
 
 ModelTrace model_trace(const scenario::Scenario& s, const catalogue::Catalogue& parts, CaptureEdge edge,
@@ -191,6 +187,16 @@ CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& 
   if (keys.empty()) throw std::invalid_argument("fit: no keys to fit");
   if (capture.current_A.empty() || (capture.voltage_V.empty() && capture.drive_V.empty())) {
     throw std::invalid_argument("fit: the capture needs a current channel and a switch-voltage or drive channel");
+  }
+  // A capture made in a program rather than read from a file (which checks the same).
+  auto fits = [&](const std::vector<double>& v) { return v.empty() || v.size() == capture.time_s.size(); };
+  if (capture.current_A.size() != capture.time_s.size() || !fits(capture.voltage_V) || !fits(capture.contact) || !fits(capture.drive_V)) {
+    throw std::invalid_argument("fit: the capture's columns differ in length");
+  }
+  for (std::size_t k = 1; k < capture.time_s.size(); ++k) {
+    if (!(capture.time_s[k] > capture.time_s[k - 1])) {
+      throw std::invalid_argument("fit: the capture's time does not increase at row " + std::to_string(k));
+    }
   }
   CaptureFit out;
   out.edge = capture_edge(capture);

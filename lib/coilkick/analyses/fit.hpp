@@ -89,7 +89,8 @@ struct FitOptions {
 };
 
 // Throws ScenarioError for unknown keys, std::invalid_argument for a capture without a current or
-// a voltage channel or an edge, or without a noise estimate, engine::SimulationError for a run that fails.
+// a voltage channel or an edge, with columns of different lengths or time that does not increase,
+// or without a noise estimate, engine::SimulationError for a run that fails.
 CaptureFit fit_capture(const scenario::Scenario& s, const catalogue::Catalogue& parts, const scenario::Capture& capture,
                        const std::vector<std::string>& keys, const FitOptions& options = {});
 

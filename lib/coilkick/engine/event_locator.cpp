@@ -10,6 +10,35 @@ bool better(EventSpec::Kind kind, double candidate, double current) {
   if (std::isnan(current)) return true;
   return kind == EventSpec::Kind::maximum ? candidate > current : candidate < current;
 }
+
+// Golden-section search for the largest value of s on [a, b], down to `tol` — or until one of
+// the two inner points reaches `enough`. The bracket and its inner points are returned.
+struct GoldenBracket {
+  double a, b, c, d, sc, sd;
+};
+template <class S>
+GoldenBracket golden_section(double a, double b, double tol, S&& s, double enough = std::numeric_limits<double>::infinity()) {
+  const double r = 0.5 * (std::sqrt(5.0) - 1.0);
+  GoldenBracket g{a, b, b - r * (b - a), a + r * (b - a), 0.0, 0.0};
+  g.sc = s(g.c);
+  g.sd = s(g.d);
+  for (int it = 0; it < 200 && (g.b - g.a) > tol && g.sc < enough && g.sd < enough; ++it) {
+    if (g.sc > g.sd) {
+      g.b = g.d;
+      g.d = g.c;
+      g.sd = g.sc;
+      g.c = g.b - r * (g.b - g.a);
+      g.sc = s(g.c);
+    } else {
+      g.a = g.c;
+      g.c = g.d;
+      g.sc = g.sd;
+      g.d = g.a + r * (g.b - g.a);
+      g.sd = s(g.d);
+    }
+  }
+  return g;
+}
 }  // namespace
 
 EventLocator::EventLocator(const std::vector<EventSpec>& specs, int state_size,
@@ -67,27 +96,10 @@ double EventLocator::locate_crossing(const EventSpec& e, double a, double ga, do
 void EventLocator::refine_extremum(std::size_t k, double a, double b, const Interpolant& f) {
   const auto& e = specs_[k];
   const double sign = e.kind == EventSpec::Kind::maximum ? 1.0 : -1.0;
-  const double r = 0.5 * (std::sqrt(5.0) - 1.0);
-  double c = b - r * (b - a), d = a + r * (b - a);
-  double fc = sign * probe_at(e, c, f), fd = sign * probe_at(e, d, f);
-  for (int it = 0; it < 200 && (b - a) > tol_; ++it) {
-    if (fc > fd) {
-      b = d;
-      d = c;
-      fd = fc;
-      c = b - r * (b - a);
-      fc = sign * probe_at(e, c, f);
-    } else {
-      a = c;
-      c = d;
-      fc = fd;
-      d = a + r * (b - a);
-      fd = sign * probe_at(e, d, f);
-    }
-  }
+  const GoldenBracket g = golden_section(a, b, tol_, [&](double t) { return sign * probe_at(e, t, f); });
   // The kept step holds the best sample of the run, so its refined value is the extremum, even
   // where it lies a little below the sample (which may have read the less exact rates).
-  outcomes_[k].time_s = 0.5 * (a + b);
+  outcomes_[k].time_s = 0.5 * (g.a + g.b);
   outcomes_[k].value = probe_at(e, *outcomes_[k].time_s, f);
 }
 
@@ -122,33 +134,13 @@ double EventLocator::on_step(double t0, const double* x0, const double* r0, doub
         const double eps = 1e-6 * (t1 - a);
         const bool turns = toward * (probe_at(e, a + eps, f) - e.threshold - ga) > 0.0 &&
                            toward * (gb - (probe_at(e, t1 - eps, f) - e.threshold)) < 0.0;
-        double lo = a, hi = t1;
-        const double r = 0.5 * (std::sqrt(5.0) - 1.0);
-        double c = hi - r * (hi - lo), d = lo + r * (hi - lo);
-        double gc = turns ? probe_at(e, c, f) - e.threshold : -toward, gd = turns ? probe_at(e, d, f) - e.threshold : -toward;
-        for (int it = 0; turns && it < 100 && hi - lo > tol_; ++it) {
-          if (toward * gc >= 0.0 || toward * gd >= 0.0) break;  // a point beyond the threshold: enough
-          if (toward * gc > toward * gd) {
-            hi = d;
-            d = c;
-            gd = gc;
-            c = hi - r * (hi - lo);
-            gc = probe_at(e, c, f) - e.threshold;
-          } else {
-            lo = c;
-            c = d;
-            gc = gd;
-            d = lo + r * (hi - lo);
-            gd = probe_at(e, d, f) - e.threshold;
+        if (turns) {
+          const GoldenBracket g = golden_section(a, t1, tol_, [&](double t) { return toward * (probe_at(e, t, f) - e.threshold); }, 0.0);
+          // The crossing lies between the step's start and the first inner point beyond the threshold.
+          if (g.sc >= 0.0 || g.sd >= 0.0) {
+            hit = true;
+            b = g.sc >= 0.0 ? g.c : g.d;  // c lies before d
           }
-        }
-        double t_turn = std::nan("");
-        for (const auto& [tt, gg] : {std::make_pair(c, gc), std::make_pair(d, gd)}) {
-          if (toward * gg >= 0.0 && (std::isnan(t_turn) || tt < t_turn)) t_turn = tt;
-        }
-        if (!std::isnan(t_turn)) {
-          hit = true;
-          b = t_turn;  // the crossing lies between the step's start and this point
         }
       }
       if (!hit) continue;

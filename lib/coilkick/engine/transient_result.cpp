@@ -69,6 +69,12 @@ Eigen::VectorXd TransientResult::stored_energy_J(const std::string& element) con
 }
 
 Eigen::VectorXd TransientResult::sample(double t_s) const {
+  Eigen::VectorXd x(states_.cols());
+  sample(t_s, x.data());
+  return x;
+}
+
+void TransientResult::sample(double t_s, double* out) const {
   if (!(t_s >= times_.front() && t_s <= times_.back())) {
     std::ostringstream m;
     m << "transient result: t = " << t_s << " s lies outside the run [" << times_.front() << ", "
@@ -81,13 +87,15 @@ Eigen::VectorXd TransientResult::sample(double t_s) const {
   const std::size_t k0 = k1 == 0 ? 0 : k1 - 1;
   const double t0 = times_[k0], t1 = times_[k1];
   const auto i0 = static_cast<Eigen::Index>(k0), i1 = static_cast<Eigen::Index>(k1);
-  if (t1 <= t0) return states_.row(i1).transpose();
+  Eigen::Map<Eigen::RowVectorXd> x(out, states_.cols());
+  if (t1 <= t0) {
+    x = states_.row(i1);
+    return;
+  }
   const double h = t1 - t0, s = (t_s - t0) / h;
   const double h00 = (1 + 2 * s) * (1 - s) * (1 - s), h10 = s * (1 - s) * (1 - s);
   const double h01 = s * s * (3 - 2 * s), h11 = s * s * (s - 1);
-  return (h00 * states_.row(i0) + h10 * h * rates_.row(i0) + h01 * states_.row(i1) +
-          h11 * h * rates_.row(i1))
-      .transpose();
+  x = h00 * states_.row(i0) + h10 * h * rates_.row(i0) + h01 * states_.row(i1) + h11 * h * rates_.row(i1);
 }
 
 UniformSamples TransientResult::resample(double step_s) const {

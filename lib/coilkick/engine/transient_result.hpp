@@ -68,6 +68,8 @@ class TransientResult {
   // States at any instant inside the run, by cubic Hermite interpolation of the accepted points
   // (uses the stored rates, third-order accurate like the integrator's dense output).
   Eigen::VectorXd sample(double t_s) const;
+  // The same into `out` (state_count values): no allocation, for sampling many instants.
+  void sample(double t_s, double* out) const;
   // The run resampled on a uniform grid with the given step (first and last point included).
   UniformSamples resample(double step_s) const;
 

@@ -261,18 +261,25 @@ class Reader {
 
 }  // namespace
 
-double edge_time_s(const std::vector<double>& time_s, const std::vector<double>& voltage_V) {
-  if (voltage_V.empty()) return std::nan("");
-  const double v0 = voltage_V.front();
-  double far = v0;  // the value farthest from the first: a switch-off's peak, a switch-on's low
-  for (double v : voltage_V) far = std::abs(v - v0) > std::abs(far - v0) ? v : far;
-  if (!(std::abs(far - v0) > 1e-9 * std::max(1.0, std::abs(v0)))) return std::nan("");
-  const double level = v0 + 0.5 * (far - v0);
-  const double sign = far > v0 ? 1.0 : -1.0;
-  for (std::size_t k = 1; k < voltage_V.size(); ++k) {
-    if (sign * (voltage_V[k] - level) >= 0.0) {
-      const double a = voltage_V[k - 1], b = voltage_V[k];
-      return time_s[k - 1] + (level - a) / (b - a) * (time_s[k] - time_s[k - 1]);
+EdgeLevel edge_level(const std::vector<double>& signal) {
+  EdgeLevel e;
+  if (signal.empty()) return e;
+  const double v0 = signal.front();
+  double far = v0;
+  for (double v : signal) far = std::abs(v - v0) > std::abs(far - v0) ? v : far;
+  if (!(std::abs(far - v0) > 1e-9 * std::max(1.0, std::abs(v0)))) return e;
+  e.level = v0 + 0.5 * (far - v0);
+  e.direction = far > v0 ? 1 : -1;
+  return e;
+}
+
+double edge_time_s(const std::vector<double>& time_s, const std::vector<double>& signal) {
+  const EdgeLevel e = edge_level(signal);
+  if (e.direction == 0) return std::nan("");
+  for (std::size_t k = 1; k < signal.size(); ++k) {
+    if (e.direction * (signal[k] - e.level) >= 0.0) {
+      const double a = signal[k - 1], b = signal[k];
+      return time_s[k - 1] + (e.level - a) / (b - a) * (time_s[k] - time_s[k - 1]);
     }
   }
   return std::nan("");

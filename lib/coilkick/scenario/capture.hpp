@@ -41,10 +41,18 @@ struct Capture {
   int first_data_line = 0;
 };
 
-// Where a signal first moves half way from its first value to the value farthest from it
-// (linear between samples): a switch voltage up to a switch-off's peak or down to a switch-on's
-// low, a drive signal across its edge. The edge a capture's time zero and a fit's alignment use;
-// NaN where the signal never moves.
+// A signal's edge: the level half way from its first value to the value farthest from it (a
+// switch voltage's switch-off peak or switch-on low, a drive signal's other level), and which way
+// the signal crosses it (+1 rising, −1 falling, 0 where it never moves by more than 1e-9 of its
+// first value, or 1e-9 V).
+struct EdgeLevel {
+  double level = 0.0;
+  int direction = 0;
+};
+EdgeLevel edge_level(const std::vector<double>& signal);
+
+// Where the signal first reaches its edge_level (linear between samples): the edge a capture's
+// time zero and a fit's alignment use; NaN where the signal never moves.
 double edge_time_s(const std::vector<double>& time_s, const std::vector<double>& signal);
 
 // Throws std::invalid_argument "file:line: ..." for anything it cannot read as asked.
