@@ -6,7 +6,8 @@
 namespace coilkick::engine {
 
 StepError scaled_step_error(const Eigen::VectorXd& x, const Eigen::VectorXd& x_new, const Eigen::VectorXd& x_err,
-                            const std::vector<double>& absolute_tolerance, double relative_tolerance) {
+                            const Eigen::VectorXd& rate, double dt, const std::vector<double>& absolute_tolerance,
+                            double relative_tolerance) {
   StepError e;
   for (Eigen::Index i = 0; i < x.size(); ++i) {
     if (!std::isfinite(x_new[i]) || !std::isfinite(x_err[i])) {
@@ -14,7 +15,7 @@ StepError scaled_step_error(const Eigen::VectorXd& x, const Eigen::VectorXd& x_n
       e.worst_state = static_cast<int>(i);
       return e;
     }
-    const double sk = absolute_tolerance[static_cast<std::size_t>(i)] + relative_tolerance * std::max(std::abs(x[i]), std::abs(x_new[i]));
+    const double sk = absolute_tolerance[static_cast<std::size_t>(i)] + relative_tolerance * (std::max(std::abs(x[i]), std::abs(x_new[i])) + dt * std::abs(rate[i]));
     const double r = std::abs(x_err[i]) / sk;
     if (r > e.norm) {
       e.norm = r;

@@ -14,8 +14,13 @@ struct StepError {
   int worst_state = 0;   // where the norm is largest (or the first non-finite one)
 };
 
+// Each state's scale is absolute + relative·(max(|x|, |x_new|) + dt·|ẋ|), ẋ at the step's start:
+// a state that moves by a large amount within the step is judged relative to that movement, as
+// odeint's default error checker does (its a_dxdt term). Measured on the reference switch-off:
+// 52 → 44 steps at relative tolerance 1e-2 with the same errors against the tight reference.
 StepError scaled_step_error(const Eigen::VectorXd& x, const Eigen::VectorXd& x_new, const Eigen::VectorXd& x_err,
-                            const std::vector<double>& absolute_tolerance, double relative_tolerance);
+                            const Eigen::VectorXd& rate, double dt, const std::vector<double>& absolute_tolerance,
+                            double relative_tolerance);
 
 class StepController {
  public:

@@ -109,7 +109,7 @@ class TransientRun {
       sys_.step_start = t_;
       sys_.full_evaluation(x_, t_);
       stepper_->attempt(x_, t_, dt_, {sys_.full_rate, sys_.full_jacobian, sys_.full_time_rate}, stage_rates_, x_new_, x_err_);
-      StepError e = scaled_step_error(x_, x_new_, x_err_, atol_, options_.relative_tolerance);
+      StepError e = scaled_step_error(x_, x_new_, x_err_, sys_.full_rate, dt_, atol_, options_.relative_tolerance);
       worst_state_ = e.worst_state;
       last_nonfinite_ = !e.finite;
       if (replaying()) {
