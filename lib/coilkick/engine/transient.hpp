@@ -2,7 +2,7 @@
 // Transient analysis: integrates a Circuit from an initial state with the fourth-order
 // L-stable Rosenbrock method of Boost.Odeint's rosenbrock4 (embedded third-order error
 // estimate, dense output; rosenbrock_step.hpp), under our own step controller:
-//  - per-state error scale: |err_i| <= absolute_i + relative_tolerance·|x_i|, with absolute_i
+//  - per-state error scale: |err_i| <= absolute_i + relative_tolerance·(|x_i| + dt·|ẋ_i|), with absolute_i
 //    from the state's kind (volts, amperes, joules, or the element's own unit);
 //  - never steps over a corner of a source waveform or an element's time dependence;
 //  - guards: minimum step size, step budget, wall-time budget, non-finite states. Each ends the
