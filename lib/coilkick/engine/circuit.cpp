@@ -14,16 +14,17 @@ namespace coilkick::engine {
 // Writes one element's local contributions into the workspace's extended arrays.
 class GlobalStamper final : public Stamper {
  public:
-  GlobalStamper(Workspace& w, const int* map, int channel_offset)
-      : w_(w), map_(map), ch_(channel_offset) {}
+  // Without `slopes` (rates only: the Rosenbrock stages) the derivatives are not kept.
+  GlobalStamper(Workspace& w, const int* map, int channel_offset, bool slopes = true)
+      : w_(w), map_(map), ch_(channel_offset), slopes_(slopes) {}
   void add_flow(int row, double v) override {
     if (map_[row] >= 0) w_.flow[map_[row]] += v;
   }
   void add_flow_slope(int row, int col, double v) override {
-    if (map_[row] >= 0 && map_[col] >= 0) w_.flow_slope(map_[row], map_[col]) += v;
+    if (slopes_ && map_[row] >= 0 && map_[col] >= 0) w_.flow_slope(map_[row], map_[col]) += v;
   }
   void add_flow_time_rate(int row, double v) override {
-    if (map_[row] >= 0) w_.flow_time_rate[map_[row]] += v;
+    if (slopes_ && map_[row] >= 0) w_.flow_time_rate[map_[row]] += v;
   }
   void add_mass(int row, int col, double v) override {
     if (map_[row] >= 0 && map_[col] >= 0) w_.mass(map_[row], map_[col]) += v;
@@ -33,14 +34,17 @@ class GlobalStamper final : public Stamper {
   }
   void add_power(int channel, double v) override { w_.power[ch_ + channel] += v; }
   void add_power_slope(int channel, int col, double v) override {
-    if (map_[col] >= 0) w_.power_slope(ch_ + channel, map_[col]) += v;
+    if (slopes_ && map_[col] >= 0) w_.power_slope(ch_ + channel, map_[col]) += v;
   }
-  void add_power_time_rate(int channel, double v) override { w_.power_time_rate[ch_ + channel] += v; }
+  void add_power_time_rate(int channel, double v) override {
+    if (slopes_) w_.power_time_rate[ch_ + channel] += v;
+  }
 
  private:
   Workspace& w_;
   const int* map_;
   int ch_;
+  bool slopes_;
 };
 
 namespace {
@@ -185,22 +189,25 @@ Workspace Circuit::make_workspace() const {
   return w;
 }
 
-void Circuit::assemble(double t_s, double slope_time_s, const double* x, Workspace& w) const {
+void Circuit::assemble(double t_s, double slope_time_s, const double* x, Workspace& w, bool with_slopes) const {
   for (int i = 0; i < n_circuit_; ++i) w.ext_value[i] = x[i];
   for (int j = 0; j < n_fixed_; ++j) {
     w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
     w.ext_rate[n_circuit_ + j] = sources_[j].voltage_V.slope(slope_time_s);
   }
   w.flow.setZero();
-  w.flow_time_rate.setZero();
-  w.flow_slope.setZero();
   w.mass.setZero();
   w.power.setZero();
-  w.power_time_rate.setZero();
-  w.power_slope.setZero();
+  if (with_slopes) {
+    w.flow_time_rate.setZero();
+    w.flow_slope.setZero();
+    w.power_time_rate.setZero();
+    w.power_slope.setZero();
+  }
+  w.slopes_valid = with_slopes;
   for (std::size_t k = 0; k < elements_.size(); ++k) {
     ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data());
-    GlobalStamper st(w, maps_[k].data(), channel_offset_[k]);
+    GlobalStamper st(w, maps_[k].data(), channel_offset_[k], with_slopes);
     elements_[k]->load(ctx, st);
   }
   for (int i = 0; i < n_nodes_; ++i) w.mass(i, i) += stray_F_;
@@ -208,7 +215,7 @@ void Circuit::assemble(double t_s, double slope_time_s, const double* x, Workspa
 
 void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspace& w,
                        bool with_jacobian) const {
-  assemble(t_s, slope_time_s, x, w);
+  assemble(t_s, slope_time_s, x, w, with_jacobian);
   const int nc = n_circuit_, nf = n_fixed_, nch = n_element_channels_;
   const auto vdot_f = w.ext_rate.segment(nc, nf);
   // M is often the same as at the last evaluation (pwl devices, fixed capacitors and coils):
