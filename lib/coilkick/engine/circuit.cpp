@@ -204,7 +204,6 @@ void Circuit::assemble(double t_s, double slope_time_s, const double* x, Workspa
     w.power_time_rate.setZero();
     w.power_slope.setZero();
   }
-  w.slopes_valid = with_slopes;
   for (std::size_t k = 0; k < elements_.size(); ++k) {
     ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data());
     GlobalStamper st(w, maps_[k].data(), channel_offset_[k], with_slopes);

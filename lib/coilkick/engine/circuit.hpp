@@ -56,7 +56,6 @@ struct Workspace {
   Eigen::RowVectorXd scratch_row;
   Eigen::VectorXd local_flow;  // one element's own rows (terminal_current_A)
   Eigen::MatrixXd local_mass;
-  bool slopes_valid = false;   // the last assembly kept ∂f/∂x, ∂f/∂t and the power slopes
 };
 
 class Circuit {
@@ -87,7 +86,7 @@ class Circuit {
   // passes the middle of the current step so that a step ending on a corner uses the slope
   // before the corner.
   // Without slopes only f, M and the powers are assembled (∂f/∂x, ∂f/∂t and the power slopes
-  // keep stale values; Workspace::slopes_valid says which).
+  // keep stale values): what the Rosenbrock stages need.
   void assemble(double t_s, double slope_time_s, const double* x, Workspace& w, bool with_slopes = true) const;
   // ẋ (and, if asked, ∂ẋ/∂x and ∂ẋ/∂t) into w.rate / w.jacobian / w.time_rate.
   void evaluate(double t_s, double slope_time_s, const double* x, Workspace& w,
