@@ -8,4 +8,5 @@
 #include "coilkick/engine/state.hpp"
 #include "coilkick/engine/transient.hpp"
 #include "coilkick/engine/transient_result.hpp"
+#include "coilkick/engine/transmission_line.hpp"
 #include "coilkick/engine/waveform.hpp"

@@ -142,6 +142,21 @@ Circuit::Circuit(const Network& network)
   n_element_channels_ = static_cast<int>(channels_.size());
   for (const auto& s : sources_) channels_.push_back({s.name + ".delivered", s.name, PowerChannelSpec::Kind::supplied});
   for (const auto& c : channels_) states_.push_back({"energy:" + c.name, "J", StateKind::internal, true, 0.0});
+  // History channels of the elements that read their past.
+  int history_channels = 0;
+  for (const auto& e : elements_) {
+    history_offset_.push_back(history_channels);
+    const int n = e->history_channel_count();
+    if (n > 0) {
+      const double d = e->shortest_delay_s();
+      if (!(d > 0.0) || !std::isfinite(d)) {
+        throw std::invalid_argument("element '" + e->name() + "': reads its past but has no positive delay");
+      }
+      shortest_delay_s_ = std::min(shortest_delay_s_, d);
+    }
+    history_channels += n;
+  }
+  if (history_channels > 0) history_.p = std::make_shared<DelayHistory>(history_channels);
   check_every_node_has_capacitance();
 }
 
@@ -189,6 +204,78 @@ Workspace Circuit::make_workspace() const {
   return w;
 }
 
+DelayedValues Circuit::past_of(std::size_t element, const Workspace& w, bool before) const {
+  if (!history_ || w.operating_point || history_->empty()) return {};
+  return {history_.get(), history_offset_[element], before, w.quasi_static};
+}
+
+bool Circuit::history_quiet(double absolute, double relative) const {
+  if (!history_ || history_->empty()) return true;
+  const int n = history_->channel_count();
+  // The first-order form's error is ~τ²·ẅ/2: judged from the rates at the last two points.
+  const double t1 = history_->last_time_s();
+  const double t0 = history_->previous_time_s();
+  if (!(t0 < t1)) return false;
+  const double tau = shortest_delay_s_;
+  for (int k = 0; k < n; ++k) {
+    const double v = history_->value(k, t1);
+    const double curvature = (history_->rate(k, t1, true) - history_->rate(k, t0, false)) / (t1 - t0);
+    if (0.5 * std::abs(curvature) * tau * tau > absolute + relative * std::abs(v)) return false;
+  }
+  return true;
+}
+
+void Circuit::start_history(double t_s, const double* x, Workspace& w) const {
+  if (!history_) return;
+  history_->clear();
+  Eigen::VectorXd zero = Eigen::VectorXd::Zero(n_circuit_);
+  history_point(t_s, x, zero.data(), t_s, w, w.history_rates_after);
+  history_->append(t_s, w.history_values.data(), w.history_rates_after.data(), w.history_rates_after.data());
+}
+
+void Circuit::record_history(const DenseStep& step, KinkTolerance kink_tolerance, Workspace& w) const {
+  if (!history_) return;
+  w.history_x.resize(step.x0.size());
+  w.history_rate.resize(step.x0.size());
+  // After the previous point: this step's polynomial at its start.
+  step.at(step.t0, w.history_x.data(), w.history_rate.data());
+  history_point(step.t0, step.x0.data(), w.history_rate.data(), step.t0, w, w.history_rates_after);
+  const double* before = history_->last_rates_before();
+  bool kink = false;
+  for (std::size_t k = 0; k < w.history_values.size(); ++k) {
+    const double jump = std::abs(w.history_rates_after[k] - before[k]) * shortest_delay_s_;
+    kink = kink || jump > kink_tolerance.absolute + kink_tolerance.relative * std::abs(w.history_values[k]);
+  }
+  history_->set_last_rates_after(w.history_rates_after.data());
+  if (kink) history_->mark_kink();
+  // The step's end, its rates before it (and, until the next step, after it).
+  step.at(step.t1, w.history_x.data(), w.history_rate.data());
+  history_point(step.t1, step.x1.data(), w.history_rate.data(), 0.5 * (step.t0 + step.t1), w, w.history_rates_before);
+  history_->append(step.t1, w.history_values.data(), w.history_rates_before.data(), w.history_rates_before.data());
+}
+
+void Circuit::history_point(double t_s, const double* x, const double* rates, double slope_time_s, Workspace& w,
+                            std::vector<double>& rates_out) const {
+  const bool dc = history_->empty();  // the initial DC point: its past is constant
+  for (int i = 0; i < n_circuit_; ++i) {
+    w.ext_value[i] = x[i];
+    w.ext_rate[i] = rates[i];
+  }
+  for (int j = 0; j < n_fixed_; ++j) {
+    w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
+    w.ext_rate[n_circuit_ + j] = dc ? 0.0 : sources_[j].voltage_V.slope(slope_time_s);
+  }
+  const auto n = static_cast<std::size_t>(history_->channel_count());
+  w.history_values.resize(n);
+  rates_out.resize(n);
+  for (std::size_t k = 0; k < elements_.size(); ++k) {
+    if (elements_[k]->history_channel_count() == 0) continue;
+    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data(), past_of(k, w, slope_time_s < t_s));
+    const auto off = static_cast<std::size_t>(history_offset_[k]);
+    elements_[k]->history_values(ctx, w.history_values.data() + off, rates_out.data() + off);
+  }
+}
+
 void Circuit::assemble(double t_s, double slope_time_s, const double* x, Workspace& w, bool with_slopes) const {
   for (int i = 0; i < n_circuit_; ++i) w.ext_value[i] = x[i];
   for (int j = 0; j < n_fixed_; ++j) {
@@ -205,7 +292,7 @@ void Circuit::assemble(double t_s, double slope_time_s, const double* x, Workspa
     w.power_slope.setZero();
   }
   for (std::size_t k = 0; k < elements_.size(); ++k) {
-    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data());
+    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data(), past_of(k, w, slope_time_s < t_s));
     GlobalStamper st(w, maps_[k].data(), channel_offset_[k], with_slopes);
     elements_[k]->load(ctx, st);
   }
@@ -238,7 +325,7 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
 
   w.mass_slope.setZero();
   for (std::size_t k = 0; k < elements_.size(); ++k) {
-    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data());
+    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data(), past_of(k, w, slope_time_s < t_s));
     GlobalStamper st(w, maps_[k].data(), channel_offset_[k]);
     elements_[k]->load_mass_slope(ctx, st);
   }
@@ -302,7 +389,8 @@ void Circuit::load_element_alone(int element, double t_s, const double* x, const
   }
   const auto& map = maps_[static_cast<std::size_t>(element)];
   LocalStamper st(w.local_flow, w.local_mass, static_cast<int>(map.size()));
-  ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), map.data());
+  ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), map.data(),
+                     past_of(static_cast<std::size_t>(element), w));
   elements_.at(static_cast<std::size_t>(element))->load(ctx, st);
 }
 
@@ -330,7 +418,7 @@ double Circuit::stored_energy_J(int element, double t_s, const double* x, Worksp
   for (int i = 0; i < n_circuit_; ++i) w.ext_value[i] = x[i];
   for (int j = 0; j < n_fixed_; ++j) w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
   auto one = [&](std::size_t k) {
-    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data());
+    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data(), past_of(k, w));
     return elements_[k]->stored_energy_J(ctx);
   };
   if (element >= 0) return one(static_cast<std::size_t>(element));
@@ -340,12 +428,32 @@ double Circuit::stored_energy_J(int element, double t_s, const double* x, Worksp
   return total;
 }
 
+double Circuit::longest_step_reading_past_s(double t_s, int pieces) const {
+  double longest = shortest_delay_s_;
+  if (!history_ || history_->empty()) return longest;
+  for (const auto& e : elements_) {
+    if (e->history_channel_count() == 0) continue;
+    const double back = t_s - e->shortest_delay_s();
+    // The rest of the piece holding `back`, then `pieces` − 1 whole pieces.
+    longest = std::min(longest, history_->point_after(back, pieces) - back);
+  }
+  return longest;
+}
+
 double Circuit::next_corner_after_s(double t_s) const {
   double next = std::numeric_limits<double>::infinity();
   for (const auto& s : sources_) {
     if (auto c = s.voltage_V.next_corner_after(t_s)) next = std::min(next, *c);
   }
-  for (const auto& e : elements_) next = std::min(next, e->next_corner_after_s(t_s));
+  for (const auto& e : elements_) {
+    next = std::min(next, e->next_corner_after_s(t_s));
+    if (history_ && e->history_channel_count() > 0 && !history_->empty()) {
+      const double d = e->shortest_delay_s();
+      double k = history_->next_kink_after(t_s - d);
+      while (k + d <= t_s) k = history_->next_kink_after(k);  // rounding of t − d
+      next = std::min(next, k + d);
+    }
+  }
   return next;
 }
 

@@ -12,9 +12,12 @@
 // evaluation; the energy rows are the channel powers. The Jacobian is analytic: assembled from
 // the element conductances, J = M⁻¹·(∂f/∂x − ∂(M·ẋ)/∂x).
 #include <Eigen/Dense>
+#include <limits>
+#include <memory>
 #include <string>
 #include <vector>
 
+#include "coilkick/engine/dense_step.hpp"
 #include "coilkick/engine/element.hpp"
 #include "coilkick/engine/network.hpp"
 #include "coilkick/engine/small_lu.hpp"
@@ -56,6 +59,11 @@ struct Workspace {
   Eigen::RowVectorXd scratch_row;
   Eigen::VectorXd local_flow;  // one element's own rows (terminal_current_A)
   Eigen::MatrixXd local_mass;
+  std::vector<double> history_values, history_rates_before, history_rates_after;  // one point of the delay history
+  Eigen::VectorXd history_x, history_rate;  // a point of a step's dense output
+  // The operating-point solve: elements that read their past see none (their DC model).
+  bool operating_point = false;
+  bool quasi_static = false;  // lines couple their ends without delay (steps longer than it)
 };
 
 class Circuit {
@@ -106,8 +114,36 @@ class Circuit {
   int element_with_terminal(const std::string& element, int terminal, const std::string& who) const;
   // Energy stored in fields (J): element `e`, or the whole circuit (elements + stray) for e = -1.
   double stored_energy_J(int element, double t_s, const double* x, Workspace& w) const;
-  // First corner of any source waveform or element time dependence strictly after t_s.
+  // First corner of any source waveform or element time dependence strictly after t_s, or a
+  // kink of the history arriving at a line's other end.
   double next_corner_after_s(double t_s) const;
+  // Elements that read their past (transmission lines). Such a circuit keeps the history of its
+  // latest run, which every evaluation then reads: one run at a time per circuit (every analysis
+  // builds its own circuit per run). Before a run, and in the operating-point solve
+  // (Workspace::operating_point), those elements are at their DC point.
+  bool has_history() const { return static_cast<bool>(history_); }
+  // The longest step a run may take: the shortest delay at which an element reads its past.
+  double shortest_delay_s() const { return shortest_delay_s_; }
+  // The longest step from t_s that reads at most `pieces` pieces of any line's past: a step over
+  // a stretch the run resolved finely would sample its detail at only a few stages, unseen by
+  // the error estimate. (The pieces may grow by that factor at each passage.)
+  double longest_step_reading_past_s(double t_s, int pieces) const;
+  // Every history channel's rate at the last point moves it by less than the tolerance over one delay.
+  bool history_quiet(double absolute, double relative) const;
+  // Forgets the history and records the initial point (a DC point: its own constant past).
+  void start_history(double t_s, const double* x, Workspace& w) const;
+  // Records an accepted step from its dense output: the point at its end, with the rates of the
+  // step's own polynomial there, and the rates after the previous point (this step's polynomial
+  // at its start). Rates of the dense polynomial, not f(x) at the points: a stiff state's rate
+  // f(x) carries its error times the stiffness, which the interpolated past would feed back into
+  // the line at every passage (measured: a wave ringing up from the tolerance's noise). Where the
+  // rates on the two sides of the previous point differ by more than a channel may drift over one
+  // delay (absolute + relative·|value|), that point is a kink, which next_corner_after_s reports
+  // one delay later.
+  struct KinkTolerance {
+    double absolute = 0.0, relative = 0.0;
+  };
+  void record_history(const DenseStep& step, KinkTolerance kink_tolerance, Workspace& w) const;
   // Rows of the circuit part that are node KCL rows (true) or element states (false).
   bool is_node_row(int state) const { return state < n_nodes_; }
 
@@ -122,6 +158,28 @@ class Circuit {
   std::vector<StateInfo> states_;
   std::vector<PowerChannelInfo> channels_;
   int n_nodes_ = 0, n_circuit_ = 0, n_fixed_ = 0, n_element_channels_ = 0;
+  std::vector<int> history_offset_;          // per element: its first history channel
+  // Null: no element reads its past. A copy of the circuit (a TransientResult keeps one) copies
+  // the history, so that the result keeps its own run's past when the circuit runs again.
+  struct OwnHistory {
+    std::shared_ptr<DelayHistory> p;
+    OwnHistory() = default;
+    OwnHistory(const OwnHistory& o) : p(o.p ? std::make_shared<DelayHistory>(*o.p) : nullptr) {}
+    OwnHistory(OwnHistory&&) noexcept = default;
+    OwnHistory& operator=(const OwnHistory& o) {
+      if (this != &o) p = o.p ? std::make_shared<DelayHistory>(*o.p) : nullptr;
+      return *this;
+    }
+    OwnHistory& operator=(OwnHistory&&) noexcept = default;
+    DelayHistory* operator->() const { return p.get(); }
+    DelayHistory* get() const { return p.get(); }
+    explicit operator bool() const { return p != nullptr; }
+  } history_;
+  double shortest_delay_s_ = std::numeric_limits<double>::infinity();
+  DelayedValues past_of(std::size_t element, const Workspace& w, bool before = false) const;
+  // The history channels' values and rates at (t, x, ẋ) into w.history_values and `rates_out`.
+  void history_point(double t_s, const double* x, const double* rates, double slope_time_s, Workspace& w,
+                     std::vector<double>& rates_out) const;
 
   int ext_node_index(const std::string& node) const;  // -1 ground, throws if unknown
   // Loads one element alone at (t, x, ẋ) into w.local_flow / w.local_mass, and reads one

@@ -13,8 +13,11 @@
 // Local indices: an element with T terminals and S internal states addresses its unknowns as
 // 0..T-1 (the terminal node voltages, V) and T..T+S-1 (its internal states, in their units).
 // Rows use the same numbering: row k < T is the KCL row of terminal k.
+#include <limits>
 #include <string>
 #include <vector>
+
+#include "coilkick/engine/delay_history.hpp"
 
 namespace coilkick::engine {
 
@@ -40,19 +43,24 @@ struct PowerChannelSpec {
 // Read-only view of the unknowns one element sees at one instant.
 class ElementContext {
  public:
-  ElementContext(double time_s, const double* values, const double* rates, const int* map)
-      : time_s_(time_s), values_(values), rates_(rates), map_(map) {}
+  ElementContext(double time_s, const double* values, const double* rates, const int* map,
+                 DelayedValues past = {})
+      : time_s_(time_s), values_(values), rates_(rates), map_(map), past_(past) {}
   double time_s() const { return time_s_; }
   // Terminal voltage (V) or internal state value for a local index (ground reads 0).
   double value(int local) const { return map_[local] < 0 ? 0.0 : values_[map_[local]]; }
   // Time derivative of a local unknown; only valid inside Element::load_mass_slope.
   double rate(int local) const { return map_[local] < 0 ? 0.0 : rates_[map_[local]]; }
+  // The element's recorded past (Element::history_channel_count), or null at a DC operating
+  // point (the operating-point solve, or before a run).
+  const DelayedValues* past() const { return past_.history ? &past_ : nullptr; }
 
  private:
   double time_s_;
   const double* values_;
   const double* rates_;
   const int* map_;
+  DelayedValues past_;
 };
 
 // Where elements write their contributions (local indices, see above).
@@ -93,6 +101,15 @@ class Element {
   virtual double stored_energy_J(const ElementContext& /*ctx*/) const { return 0.0; }
   // First instant strictly after t_s where the element's explicit time dependence has a corner.
   virtual double next_corner_after_s(double /*t_s*/) const;
+
+  // Elements that read their own past (a transmission line): how many history channels they
+  // record, the shortest delay at which they read them back (a run's steps never exceed it, so a
+  // step reads only recorded points), and the channels' values and time rates at a point of a
+  // run (ctx.rate valid there). Without a past (ctx.past() null) such an element is at its DC
+  // operating point, and history_values gives the constant past of that point.
+  virtual int history_channel_count() const { return 0; }
+  virtual double shortest_delay_s() const { return std::numeric_limits<double>::infinity(); }
+  virtual void history_values(const ElementContext& /*ctx*/, double* /*values*/, double* /*rates*/) const {}
 
  private:
   std::string name_;

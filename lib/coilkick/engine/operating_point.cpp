@@ -125,6 +125,7 @@ CircuitState solve_operating_point(const Circuit& circuit, const CircuitState& g
     return solve_by_newton(circuit, guess, options);
   } catch (const SimulationError& newton_failed) {
     Workspace w = circuit.make_workspace();
+    w.operating_point = true;
     CircuitState start = guess;
     start.values = pseudo_transient(circuit, guess.time_s, guess.values, options.minimum_conductance_S, w);
     try {
@@ -142,6 +143,7 @@ CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
   const double t = guess.time_s;
   const double gmin = options.minimum_conductance_S;
   Workspace w = circuit.make_workspace();
+  w.operating_point = true;
   Eigen::VectorXd x = guess.values;
   x.tail(x.size() - nc).setZero();
   Eigen::VectorXd r, r_try, x_try;

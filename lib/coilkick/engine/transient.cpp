@@ -17,6 +17,9 @@
 namespace coilkick::engine {
 namespace {
 
+// A step reads at most the rest of one piece of a line's past and two more.
+constexpr int kPastPiecesPerStep = 3;
+
 void check_options(const TransientOptions& o, double t0) {
   auto bad = [](const char* field, const char* rule, double v) {
     std::ostringstream m;
@@ -91,6 +94,10 @@ class TransientRun {
         rate_old_(n_),
         t_(initial.time_s) {
     x_.tail(n_ - circuit.circuit_state_count()).setZero();  // energies start at 0
+    if (circuit.has_history()) {
+      if (replaying()) throw std::invalid_argument("transient options: replayed step times cannot be used with elements that read their past (a cable)");
+      circuit.start_history(t_, x_.data(), w_);
+    }
     record();
     locator_.start(t_, x_.data(), sys_.full_rate.data());
     dt_ = std::min(options.initial_step_s, options.stop_time_s - t_);
@@ -140,7 +147,7 @@ class TransientRun {
   EventLocator locator_;
   StepController control_;
   Eigen::VectorXd x_, x_new_, x_err_, rate_old_;
-  double t_, dt_ = 0.0, next_corner_ = 0.0, target_ = 0.0;
+  double t_, dt_ = 0.0, next_corner_ = 0.0, target_ = 0.0, proposed_dt_ = 0.0;
   DenseStep dense_;
   std::vector<double> times_, rec_x_, rec_rate_;
   int rejections_in_a_row_ = 0, worst_state_ = 0;
@@ -208,8 +215,21 @@ class TransientRun {
     const double remaining = target_ - t_;
     const double min_step = std::max(options_.minimum_step_s, 64.0 * std::numeric_limits<double>::epsilon() * std::abs(t_));
     if (options_.maximum_step_s > 0.0) dt_ = std::min(dt_, options_.maximum_step_s);
+    // An element reading its past one delay back must find it recorded, in few pieces.
+    if (circuit_.has_history()) {
+      const double cap = circuit_.longest_step_reading_past_s(t_, kPastPiecesPerStep);
+      // Quiet waves and a step longer than the delay: the lines' quasi-static form, uncapped.
+      const bool qs = dt_ > circuit_.shortest_delay_s() &&
+                      circuit_.history_quiet(options_.voltage_tolerance_V, options_.relative_tolerance);
+      if (qs != w_.quasi_static) {
+        w_.quasi_static = qs;
+        sys_.full_time = std::numeric_limits<double>::quiet_NaN();  // the cached evaluation was of the other form
+      }
+      if (!qs) dt_ = std::min(dt_, cap);
+    }
     bool lands_on_target = false;
     if (dt_ >= remaining) {
+      proposed_dt_ = dt_;
       dt_ = remaining;
       lands_on_target = true;
     }
@@ -244,6 +264,7 @@ class TransientRun {
     stepper_->dense_output(dense_.c3, dense_.c4);
     rate_old_ = sys_.full_rate;              // the full evaluation at the start of the step
     sys_.full_evaluation(x_new_, t_new);     // at its end: probes read it, the next step starts there
+    circuit_.record_history(dense_, {options_.voltage_tolerance_V, options_.relative_tolerance}, w_);
     auto interp = [this](double tq, double* xo, double* ro) { dense_.at(tq, xo, ro); };
     // The kept copy (extremum refinement) evaluates the circuit for exact rates.
     auto keep = [this]() {
@@ -256,7 +277,10 @@ class TransientRun {
     };
     const double stop_at = locator_.on_step(t_old, x_.data(), rate_old_.data(), t_new, x_new_.data(), sys_.full_rate.data(),
                                             interp, keep);
-    const double dt_next = control_.after_acceptance(dt_, e.norm);
+    double dt_next = control_.after_acceptance(dt_, e.norm);
+    // With a line, kinks arrive one delay after they left, often just after another point: a
+    // step cut short to land on one says nothing about the step after it.
+    if (lands_on_target && circuit_.has_history()) dt_next = std::max(dt_next, proposed_dt_);
     if (std::isfinite(stop_at)) {
       dense_.at(stop_at, x_.data(), nullptr);  // record() evaluates the rates there
       t_ = stop_at;
@@ -266,7 +290,8 @@ class TransientRun {
     x_.swap(x_new_);
     t_ = t_new;
     if (options_.record_waveforms || t_ >= options_.stop_time_s) record();
-    if (t_ >= next_corner_) next_corner_ = corner_ahead();
+    // (A kink recorded here is a corner one delay on, maybe before the one ahead.)
+    if (t_ >= next_corner_ || circuit_.has_history()) next_corner_ = corner_ahead();
     dt_ = dt_next;
     report_progress();
     return false;

@@ -1,0 +1,147 @@
+#include "coilkick/engine/transmission_line.hpp"
+
+#include <cstdlib>
+
+#include "coilkick/engine/parameter_check.hpp"
+
+namespace coilkick::engine {
+
+TransmissionLine::TransmissionLine(std::string name, std::string a_plus, std::string a_minus, std::string b_plus,
+                                   std::string b_minus, TransmissionLineParameters parameters)
+    : Element(std::move(name), {std::move(a_plus), std::move(a_minus), std::move(b_plus), std::move(b_minus)}),
+      p_(parameters) {
+  const std::string owner = "transmission line '" + this->name() + "'";
+  require_positive(owner, "characteristic_impedance_ohm", p_.characteristic_impedance_ohm);
+  require_positive(owner, "delay_s", p_.delay_s);
+  require_positive(owner, "loop_resistance_ohm", p_.loop_resistance_ohm);
+  require_positive(owner, "high_frequency_loss_time_s", p_.high_frequency_loss_time_s);
+}
+
+std::vector<PowerChannelSpec> TransmissionLine::power_channels() const {
+  return {{"heat", PowerChannelSpec::Kind::dissipated}};
+}
+
+
+std::vector<InternalStateSpec> TransmissionLine::internal_states() const {
+  return {{"incoming_a", "V", 1e-6, StateKind::internal}, {"incoming_b", "V", 1e-6, StateKind::internal}};
+}
+
+void TransmissionLine::port_current(const ElementContext& ctx, int end, double* current_A, double* time_rate_A_per_s) const {
+  const int plus = 2 * end, minus = plus + 1;
+  const double v = ctx.value(plus) - ctx.value(minus);
+  const double g = 1.0 / (p_.characteristic_impedance_ohm + end_resistance_ohm());
+  *current_A = g * (v - ctx.value(4 + end));
+  *time_rate_A_per_s = 0.0;
+}
+
+void TransmissionLine::load(const ElementContext& ctx, Stamper& out) const {
+  const double z = p_.characteristic_impedance_ohm, rs = end_resistance_ohm(), c = z - rs;
+  const double tf = p_.high_frequency_loss_time_s;
+  out.add_mass(4, 4, tf);
+  out.add_mass(5, 5, tf);
+  if (!ctx.past()) {
+    const double g = 1.0 / p_.loop_resistance_ohm;
+    const double va = ctx.value(0) - ctx.value(1), vb = ctx.value(2) - ctx.value(3);
+    const double dv = va - vb;
+    const double i = g * dv;
+    const double sign[4] = {1.0, -1.0, -1.0, 1.0};
+    for (int r = 0; r < 4; ++r) {
+      out.add_flow(r, -sign[r] * i);
+      for (int col = 0; col < 4; ++col) out.add_flow_slope(r, col, -sign[r] * g * sign[col]);
+      out.add_power_slope(0, r, 2.0 * g * dv * sign[r]);
+    }
+    out.add_power(0, g * dv * dv);
+    // The incoming waves of the DC point: e_a = v_b − c·I, e_b = v_a + c·I.
+    const double ea = vb - c * i, eb = va + c * i;
+    out.add_flow(4, ea - ctx.value(4));
+    out.add_flow(5, eb - ctx.value(5));
+    out.add_flow_slope(4, 4, -1.0);
+    out.add_flow_slope(5, 5, -1.0);
+    const double dva[4] = {1, -1, 0, 0}, dvb[4] = {0, 0, 1, -1};
+    for (int col = 0; col < 4; ++col) {
+      const double di = g * sign[col];
+      out.add_flow_slope(4, col, dvb[col] - c * di);
+      out.add_flow_slope(5, col, dva[col] + c * di);
+    }
+    return;
+  }
+  const DelayedValues* past = ctx.past();
+  const double g = 1.0 / (z + rs);
+  const double back = ctx.time_s() - p_.delay_s;
+  for (int end = 0; end < 2; ++end) {
+    const int plus = 2 * end, minus = plus + 1, e = 4 + end;
+    double i = 0.0, unused = 0.0;
+    port_current(ctx, end, &i, &unused);
+    out.add_flow(plus, -i);
+    out.add_flow(minus, i);
+    out.add_flow_slope(plus, plus, -g);
+    out.add_flow_slope(plus, minus, g);
+    out.add_flow_slope(plus, e, g);
+    out.add_flow_slope(minus, plus, g);
+    out.add_flow_slope(minus, minus, -g);
+    out.add_flow_slope(minus, e, -g);
+    out.add_power(0, rs * i * i);
+    out.add_power_slope(0, plus, 2.0 * rs * i * g);
+    out.add_power_slope(0, minus, -2.0 * rs * i * g);
+    out.add_power_slope(0, e, -2.0 * rs * i * g);
+    // The arriving wave, through the cable's high-frequency loss (first order).
+    const int other = 1 - end;
+    if (past->quasi_static) {
+      // Quiet waves, long steps: the wave leaving the other end now (w = v + (Z0 − Rs)·g·(v − e)).
+      const int op = 2 * other, om = op + 1, oe = 4 + other;
+      const double vo = ctx.value(op) - ctx.value(om);
+      const double k = (z - rs) * g;
+      out.add_flow(e, vo + k * (vo - ctx.value(oe)) - ctx.value(e));
+      out.add_flow_slope(e, op, 1.0 + k);
+      out.add_flow_slope(e, om, -(1.0 + k));
+      out.add_flow_slope(e, oe, -k);
+      out.add_flow_slope(e, e, -1.0);
+      // w(t − τ) ≈ w(t) − τ·ẇ(t): the line's own series L and shunt C, to first order in τ.
+      const double tau = p_.delay_s;
+      out.add_mass(e, op, tau * (1.0 + k));
+      out.add_mass(e, om, -tau * (1.0 + k));
+      out.add_mass(e, oe, -tau * k);
+    } else {
+      out.add_flow(e, past->value(other, back) - ctx.value(e));
+      out.add_flow_slope(e, e, -1.0);
+      out.add_flow_time_rate(e, past->rate(other, back));
+    }
+  }
+}
+
+void TransmissionLine::history_values(const ElementContext& ctx, double* values, double* rates) const {
+  const double z = p_.characteristic_impedance_ohm, rs = end_resistance_ohm();
+  if (!ctx.past()) {
+    const double va = ctx.value(0) - ctx.value(1), vb = ctx.value(2) - ctx.value(3);
+    const double i = (va - vb) / p_.loop_resistance_ohm;
+    values[0] = va + (z - rs) * i;
+    values[1] = vb - (z - rs) * i;
+    rates[0] = rates[1] = 0.0;
+    return;
+  }
+  const double g = 1.0 / (z + rs);
+  for (int end = 0; end < 2; ++end) {
+    const int plus = 2 * end, minus = plus + 1;
+    double i = 0.0, unused = 0.0;
+    port_current(ctx, end, &i, &unused);
+    const double v = ctx.value(plus) - ctx.value(minus);
+    const double v_rate = ctx.rate(plus) - ctx.rate(minus);
+    values[end] = v + (z - rs) * i;
+    rates[end] = v_rate + (z - rs) * g * (v_rate - ctx.rate(4 + end));
+  }
+}
+
+double TransmissionLine::stored_energy_J(const ElementContext& ctx) const {
+  const double z = p_.characteristic_impedance_ohm, tau = p_.delay_s;
+  if (const DelayedValues* past = ctx.past()) {
+    // A wave w/2 carries (w/2)²/Z0 watts; what left either end within the last delay is in transit.
+    const double t = ctx.time_s();
+    return (past->integral_of_square(0, t - tau, t) + past->integral_of_square(1, t - tau, t)) / (4.0 * z);
+  }
+  const double va = ctx.value(0) - ctx.value(1), vb = ctx.value(2) - ctx.value(3);
+  const double i = (va - vb) / p_.loop_resistance_ohm;
+  const double v_line = va - end_resistance_ohm() * i;  // the lossless line's voltage, the same all along
+  return 0.5 * tau / z * v_line * v_line + 0.5 * z * tau * i * i;  // ½·C·V² + ½·L·I², C = τ/Z0, L = Z0·τ
+}
+
+}  // namespace coilkick::engine
