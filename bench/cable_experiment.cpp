@@ -13,7 +13,7 @@ int main(int argc, char** argv) {
   net.add_resistor("clamp", "supply", "sw", 100.0);
   if (cable) {
     net.add(std::make_shared<TransmissionLine>("line", "supply", "sw", "coil_a", "coil_b",
-                                               TransmissionLineParameters{80.6, 0.48e-6, 1.4}));
+                                               TransmissionLineParameters{80.6, 0.48e-6, 1.4, getenv("TF") ? atof(getenv("TF")) : 20e-9}));
     net.add_coil("coil", "coil_a", "coil_b", {0.35, 48.0});
     if (getenv("TIE")) net.add_resistor("tie", "coil_b", Network::ground, atof(getenv("TIE")));
   } else {

@@ -39,8 +39,8 @@ TransientResult launch(double source_ohm, double load_ohm, double stop_s) {
   const CircuitState s0 = solve_operating_point(c, 0.0);
   TransientOptions o;
   o.stop_time_s = stop_s;
-  o.relative_tolerance = 1e-7;
-  o.voltage_tolerance_V = 1e-8;
+  o.relative_tolerance = std::getenv("RT") ? std::atof(std::getenv("RT")) : 1e-7;
+  o.voltage_tolerance_V = 0.1 * o.relative_tolerance;
   o.energy_tolerance_J = 1e-18;  // the run delivers nanojoules
   return simulate(c, s0, o);
 }
@@ -53,6 +53,7 @@ double at(const TransientResult& r, const std::string& node, double t) {
 
 TEST_CASE("a line: a step travels one delay and doubles at an open end (telegrapher's equations)") {
   const double open = 1e6;
+  if (std::getenv("STOPS")) for (double m : {0.1, 0.5, 0.9, 1.1, 1.5, 2.0, 2.5, 3.0, 3.5}) { auto rr = launch(kZ0, open, kEdgeAt + m * kDelay); MESSAGE(m << " " << rr.energy().balance_error << " " << rr.times_s().size()); }
   const auto r = launch(kZ0, open, kEdgeAt + 3.5 * kDelay);
   const double gamma_load = (open - kZ0) / (open + kZ0);
   const double launched = kStep * kZ0 / (kZ0 + kZ0);
@@ -68,7 +69,7 @@ TEST_CASE("a line: a step travels one delay and doubles at an open end (telegrap
   // Energy: delivered = heat + waves in transit + strays. The run reaches ~1e-8 at relative
   // tolerance 1e-7; 1e-5 leaves room and still catches a wrong stored-energy formula (a kink
   // stepped over, before steps landed on arriving kinks, cost 1.2e-4).
-  CHECK(std::abs(r.energy().balance_error) < 1e-5);
+  MESSAGE(r.energy().balance_error);MESSAGE(r.times_s().size());CHECK(std::abs(r.energy().balance_error) < 1e-5);
 }
 
 TEST_CASE("a line: a mismatched load reflects Γ = (Z_L − Z0)/(Z_L + Z0) and settles at the divider") {

@@ -153,6 +153,7 @@ Circuit::Circuit(const Network& network)
         throw std::invalid_argument("element '" + e->name() + "': reads its past but has no positive delay");
       }
       shortest_delay_s_ = std::min(shortest_delay_s_, d);
+      longest_delay_s_ = std::max(longest_delay_s_, d);
     }
     history_channels += n;
   }
@@ -212,15 +213,18 @@ DelayedValues Circuit::past_of(std::size_t element, const Workspace& w, bool bef
 bool Circuit::history_quiet(double absolute, double relative) const {
   if (!history_ || history_->empty()) return true;
   const int n = history_->channel_count();
-  // The first-order form's error is ~τ²·ẅ/2: judged from the rates at the last two points.
   const double t1 = history_->last_time_s();
   const double t0 = history_->previous_time_s();
   if (!(t0 < t1)) return false;
-  const double tau = shortest_delay_s_;
+  const double tau = longest_delay_s_;
   for (int k = 0; k < n; ++k) {
-    const double v = history_->value(k, t1);
+    const double v = history_->value(k, t1), tolerance = absolute + relative * std::abs(v);
+    // The first-order form reads w(t − τ) as w(t) − τ·ẇ(t): the recorded past over the last
+    // delay must lie on that line (a front still in transit does not) ...
+    if (!history_->follows_tangent(k, t1 - tau, tolerance)) return false;
+    // ... and stay near it over the step ahead: its error is ~τ²·ẅ/2, ẅ from the last two points.
     const double curvature = (history_->rate(k, t1, true) - history_->rate(k, t0, false)) / (t1 - t0);
-    if (0.5 * std::abs(curvature) * tau * tau > absolute + relative * std::abs(v)) return false;
+    if (0.5 * std::abs(curvature) * tau * tau > tolerance) return false;
   }
   return true;
 }

@@ -128,7 +128,9 @@ class Circuit {
   // a stretch the run resolved finely would sample its detail at only a few stages, unseen by
   // the error estimate. (The pieces may grow by that factor at each passage.)
   double longest_step_reading_past_s(double t_s, int pieces) const;
-  // Every history channel's rate at the last point moves it by less than the tolerance over one delay.
+  // The lines may take their quasi-static form: every history channel's recorded past over the
+  // last (longest) delay lies within the tolerance of the tangent at the last point, and its
+  // curvature there keeps τ²·ẅ/2 within the tolerance.
   bool history_quiet(double absolute, double relative) const;
   // Forgets the history and records the initial point (a DC point: its own constant past).
   void start_history(double t_s, const double* x, Workspace& w) const;
@@ -175,7 +177,7 @@ class Circuit {
     DelayHistory* get() const { return p.get(); }
     explicit operator bool() const { return p != nullptr; }
   } history_;
-  double shortest_delay_s_ = std::numeric_limits<double>::infinity();
+  double shortest_delay_s_ = std::numeric_limits<double>::infinity(), longest_delay_s_ = 0.0;
   DelayedValues past_of(std::size_t element, const Workspace& w, bool before = false) const;
   // The history channels' values and rates at (t, x, ẋ) into w.history_values and `rates_out`.
   void history_point(double t_s, const double* x, const double* rates, double slope_time_s, Workspace& w,

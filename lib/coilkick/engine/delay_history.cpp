@@ -94,6 +94,20 @@ double DelayHistory::rate(int channel, double t_s, bool before) const {
   return r;
 }
 
+bool DelayHistory::follows_tangent(int channel, double from_s, double tolerance) const {
+  const auto n = static_cast<std::size_t>(channels_);
+  const auto c = static_cast<std::size_t>(channel);
+  const double t1 = times_.back(), v1 = values_[(times_.size() - 1) * n + c];
+  const double r1 = rates_before_[(times_.size() - 1) * n + c];
+  auto off_line = [&](double t, double v) { return std::abs(v - (v1 - (t1 - t) * r1)) > tolerance; };
+  if (off_line(from_s, value(channel, from_s))) return false;
+  auto it = std::upper_bound(times_.begin(), times_.end(), from_s);
+  for (auto k = static_cast<std::size_t>(it - times_.begin()); k + 1 < times_.size(); ++k) {
+    if (off_line(times_[k], values_[k * n + c])) return false;
+  }
+  return true;
+}
+
 double DelayHistory::integral_of_square(int channel, double from_s, double to_s) const {
   if (!(to_s > from_s)) return 0.0;
   double total = 0.0;

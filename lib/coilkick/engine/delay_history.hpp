@@ -38,6 +38,9 @@ class DelayHistory {
   // that of the piece before it (`before`: a step's own evaluations) or after it.
   double value(int channel, double t_s) const;
   double rate(int channel, double t_s, bool before) const;
+  // The channel at from_s and at every recorded point after it lies within `tolerance` of the
+  // tangent at the last point (value and rate before it).
+  bool follows_tangent(int channel, double from_s, double tolerance) const;
   // ∫ value² dt over [from_s, to_s] (exact for the cubic pieces: 4-point Gauss–Legendre).
   double integral_of_square(int channel, double from_s, double to_s) const;
 

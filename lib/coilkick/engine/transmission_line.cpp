@@ -14,7 +14,7 @@ TransmissionLine::TransmissionLine(std::string name, std::string a_plus, std::st
   require_positive(owner, "characteristic_impedance_ohm", p_.characteristic_impedance_ohm);
   require_positive(owner, "delay_s", p_.delay_s);
   require_positive(owner, "loop_resistance_ohm", p_.loop_resistance_ohm);
-  require_positive(owner, "high_frequency_loss_time_s", p_.high_frequency_loss_time_s);
+  require_open_range(owner, "high_frequency_loss_time_s", p_.high_frequency_loss_time_s, 0.0, p_.delay_s);
 }
 
 std::vector<PowerChannelSpec> TransmissionLine::power_channels() const {
@@ -58,16 +58,25 @@ void TransmissionLine::load(const ElementContext& ctx, Stamper& out) const {
     out.add_flow_slope(4, 4, -1.0);
     out.add_flow_slope(5, 5, -1.0);
     const double dva[4] = {1, -1, 0, 0}, dvb[4] = {0, 0, 1, -1};
+    double dea[4], deb[4];
     for (int col = 0; col < 4; ++col) {
       const double di = g * sign[col];
-      out.add_flow_slope(4, col, dvb[col] - c * di);
-      out.add_flow_slope(5, col, dva[col] + c * di);
+      dea[col] = dvb[col] - c * di;
+      deb[col] = dva[col] + c * di;
+      out.add_flow_slope(4, col, dea[col]);
+      out.add_flow_slope(5, col, deb[col]);
     }
+    // The low-passes' loss, (u − e)²/(4·Z0): zero at the DC solution.
+    const double ua = ea - ctx.value(4), ub = eb - ctx.value(5), q = 0.25 / z;
+    out.add_power(0, q * (ua * ua + ub * ub));
+    for (int col = 0; col < 4; ++col) out.add_power_slope(0, col, 2.0 * q * (ua * dea[col] + ub * deb[col]));
+    out.add_power_slope(0, 4, -2.0 * q * ua);
+    out.add_power_slope(0, 5, -2.0 * q * ub);
     return;
   }
   const DelayedValues* past = ctx.past();
   const double g = 1.0 / (z + rs);
-  const double back = ctx.time_s() - p_.delay_s;
+  const double back = ctx.time_s() - pure_delay_s(), q = 0.25 / z;
   for (int end = 0; end < 2; ++end) {
     const int plus = 2 * end, minus = plus + 1, e = 4 + end;
     double i = 0.0, unused = 0.0;
@@ -91,20 +100,31 @@ void TransmissionLine::load(const ElementContext& ctx, Stamper& out) const {
       const int op = 2 * other, om = op + 1, oe = 4 + other;
       const double vo = ctx.value(op) - ctx.value(om);
       const double k = (z - rs) * g;
-      out.add_flow(e, vo + k * (vo - ctx.value(oe)) - ctx.value(e));
+      const double u = vo + k * (vo - ctx.value(oe)) - ctx.value(e);
+      out.add_flow(e, u);
       out.add_flow_slope(e, op, 1.0 + k);
       out.add_flow_slope(e, om, -(1.0 + k));
       out.add_flow_slope(e, oe, -k);
       out.add_flow_slope(e, e, -1.0);
+      // The low-pass's loss with the present wave for the arriving one (second order when quiet).
+      out.add_power(0, q * u * u);
+      out.add_power_slope(0, op, 2.0 * q * u * (1.0 + k));
+      out.add_power_slope(0, om, -2.0 * q * u * (1.0 + k));
+      out.add_power_slope(0, oe, -2.0 * q * u * k);
+      out.add_power_slope(0, e, -2.0 * q * u);
       // w(t − τ) ≈ w(t) − τ·ẇ(t): the line's own series L and shunt C, to first order in τ.
-      const double tau = p_.delay_s;
+      const double tau = pure_delay_s();
       out.add_mass(e, op, tau * (1.0 + k));
       out.add_mass(e, om, -tau * (1.0 + k));
       out.add_mass(e, oe, -tau * k);
     } else {
-      out.add_flow(e, past->value(other, back) - ctx.value(e));
+      const double u = past->value(other, back) - ctx.value(e), u_rate = past->rate(other, back);
+      out.add_flow(e, u);
       out.add_flow_slope(e, e, -1.0);
-      out.add_flow_time_rate(e, past->rate(other, back));
+      out.add_flow_time_rate(e, u_rate);
+      out.add_power(0, q * u * u);
+      out.add_power_slope(0, e, -2.0 * q * u);
+      out.add_power_time_rate(0, 2.0 * q * u * u_rate);
     }
   }
 }
@@ -134,9 +154,12 @@ void TransmissionLine::history_values(const ElementContext& ctx, double* values,
 double TransmissionLine::stored_energy_J(const ElementContext& ctx) const {
   const double z = p_.characteristic_impedance_ohm, tau = p_.delay_s;
   if (const DelayedValues* past = ctx.past()) {
-    // A wave w/2 carries (w/2)²/Z0 watts; what left either end within the last delay is in transit.
-    const double t = ctx.time_s();
-    return (past->integral_of_square(0, t - tau, t) + past->integral_of_square(1, t - tau, t)) / (4.0 * z);
+    // A wave w/2 carries (w/2)²/Z0 watts; what left either end within the last pure delay is in
+    // transit, and each low-pass holds τ_hf·e²/(4·Z0) (its loss is then (u − e)²/(4·Z0) ≥ 0).
+    const double t = ctx.time_s(), tp = pure_delay_s(), ea = ctx.value(4), eb = ctx.value(5);
+    return (past->integral_of_square(0, t - tp, t) + past->integral_of_square(1, t - tp, t) +
+            p_.high_frequency_loss_time_s * (ea * ea + eb * eb)) /
+           (4.0 * z);
   }
   const double va = ctx.value(0) - ctx.value(1), vb = ctx.value(2) - ctx.value(3);
   const double i = (va - vb) / p_.loop_resistance_ohm;

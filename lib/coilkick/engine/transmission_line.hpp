@@ -1,14 +1,19 @@
 #pragma once
 // A two-conductor line (a cable's pair) by the method of characteristics: each end is the line's
-// characteristic impedance Z0 in series with the wave that left the other end one delay τ
-// earlier. A lossless line of that Z0 and τ obeys the telegrapher's equations exactly; the
-// conductors' resistance is lumped, half at each end (docs/derivations.md, "A cable by its
-// travelling waves", states the model, its energy and where it is exact enough).
+// characteristic impedance Z0 in series with the wave that left the other end one delay
+// earlier. A lossless line of that Z0 and delay obeys the telegrapher's equations exactly; the
+// conductors' resistance is lumped, half at each end, and the cable's loss of high frequencies
+// is a first-order low-pass of time constant τ_hf on each arriving wave, which takes τ_hf of the
+// delay (the pure delay is τ − τ_hf, so a slow wave still arrives τ late).
+// docs/derivations.md, "A cable by its travelling waves", states the model, its energy and where
+// it is exact enough.
 //
 // Terminals: a_plus, a_minus (end a), b_plus, b_minus (end b). The port current of an end flows
-// into its plus terminal and out of its minus terminal. History channels: w_a, w_b, the wave each
-// end launches (twice its voltage, v' + Z0·i at the lossless line's end). Channel "heat": the
-// conductors' loss. Stores the energy of the waves in transit (or ½·L·I² + ½·C·V² at DC).
+// into its plus terminal and out of its minus terminal. Internal states: incoming_a, incoming_b,
+// the arriving waves after the low-pass. History channels: w_a, w_b, the wave each end launches
+// (v' + Z0·i at the lossless line's end). Channel "heat": the conductors' loss and the low-pass's
+// loss, (w_arriving − e)²/(4·Z0) per end. Stores the energy of the waves in transit and in the
+// low-passes, τ_hf·e²/(4·Z0) per end (½·L·I² + ½·C·V² at DC).
 // At its DC operating point the line is its loop resistance between the ends.
 #include "coilkick/engine/element.hpp"
 
@@ -18,9 +23,9 @@ struct TransmissionLineParameters {
   double characteristic_impedance_ohm = 0.0;  // √(L′/C′)
   double delay_s = 0.0;                       // length·√(L′·C′)
   double loop_resistance_ohm = 0.0;           // both conductors, end to end (> 0: DC point)
-  // The arriving wave passes a first-order low-pass of this time constant: the cable's loss of
-  // high frequencies (skin effect, dielectric). Without it a lossless line keeps every harmonic
-  // and rings from the integrator's own errors.
+  // The arriving wave passes a first-order low-pass of this time constant (0 < τ_hf < delay):
+  // the cable's loss of high frequencies (skin effect, dielectric). Without it a lossless line
+  // keeps every harmonic and rings from the integrator's own errors.
   double high_frequency_loss_time_s = 0.0;
 };
 
@@ -34,13 +39,14 @@ class TransmissionLine final : public Element {
   void load(const ElementContext& ctx, Stamper& out) const override;
   double stored_energy_J(const ElementContext& ctx) const override;
   int history_channel_count() const override { return 2; }
-  double shortest_delay_s() const override { return p_.delay_s; }
+  double shortest_delay_s() const override { return pure_delay_s(); }
   void history_values(const ElementContext& ctx, double* values, double* rates) const override;
   const TransmissionLineParameters& parameters() const { return p_; }
 
  private:
   TransmissionLineParameters p_;
   double end_resistance_ohm() const { return 0.5 * p_.loop_resistance_ohm; }
+  double pure_delay_s() const { return p_.delay_s - p_.high_frequency_loss_time_s; }
   // Port current at end k (0: a, 1: b) and its explicit time rate, from the past's incoming wave.
   void port_current(const ElementContext& ctx, int end, double* current_A, double* time_rate_A_per_s) const;
 };
