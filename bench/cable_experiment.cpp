@@ -34,6 +34,7 @@ int main(int argc, char** argv) {
     for (double t : ts) b[std::min(59, int(t / 1e-4))]++;
     for (int k = 0; k < 60; ++k) printf("%d ", b[k]);
     printf("\n");
+    { std::vector<int> f(100, 0); for (double t : ts) if (t >= 1e-4 && t < 2e-4) f[std::min(99, int((t - 1e-4) / 1e-6))]++; for (int k = 0; k < 100; ++k) printf("%d ", f[k]); printf(" <- per us from 100 us\n"); }
     auto va = r.node_voltage_V("coil_a");
     {
       auto vb = r.node_voltage_V("coil_b");
@@ -46,6 +47,7 @@ int main(int argc, char** argv) {
     int shown = 0;
     for (size_t k = 1; k < ts.size() && shown < 40; ++k) if (ts[k] - ts[k-1] < 0.2e-6) { printf("t %.6e dt %.3e sw %.9f coil_a %.9f\n", ts[k], ts[k]-ts[k-1], v[k], va[k]); ++shown; }
   }
+  if (cable) { auto a = r.node_voltage_V("coil_a"), b = r.node_voltage_V("coil_b"); double m = 0; for (int k = 0; k < a.size(); ++k) m = std::max(m, std::abs(a[k] - b[k])); printf("coil-end peak %.5f V\n", m); }
   printf("steps %ld rejected %ld time %.3f s  i_end %.6e  vmax %.4f balance %.2e\n", r.statistics().accepted_steps, r.statistics().rejected_steps, dt, i[i.size()-1], v.maxCoeff(), r.energy().balance_error);
 }
 // buckets

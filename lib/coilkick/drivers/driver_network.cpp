@@ -12,6 +12,7 @@
 #include "coilkick/devices/diode.hpp"
 #include "coilkick/devices/mosfet.hpp"
 #include "coilkick/engine/closest_name.hpp"
+#include "coilkick/engine/transmission_line.hpp"
 
 namespace coilkick::drivers {
 namespace {
@@ -178,7 +179,20 @@ struct Builder {
     engine::CoilParameters p{cs.inductance_H, out.coil_resistance_ohm, cs.core_loss_resistance_ohm};
     // Coil current flows from the supply side to the switched end (low side) or from the
     // switched end to ground (high side): positive in the on-state either way.
-    const std::string a = out.high_side ? "switch" : "supply", k = out.high_side ? Network::ground : "switch";
+    const std::string board_a = out.high_side ? "switch" : "supply", board_k = out.high_side ? Network::ground : "switch";
+    // Field wiring: the coil at the cable's far end, its terminals "coil_in" (where its current
+    // enters) and "coil_out"; the clamp and the switch stay on the board.
+    const std::string a = s.cable.present() ? "coil_in" : board_a, k = s.cable.present() ? "coil_out" : board_k;
+    if (s.cable.present()) {
+      const auto& cb = s.cable;
+      const double delay = cb.delay_s();
+      out.network.add(std::make_shared<engine::TransmissionLine>(
+          "cable", board_a, board_k, a, k,
+          engine::TransmissionLineParameters{cb.characteristic_impedance_ohm(), delay, cb.loop_resistance_ohm(),
+                                             cb.high_frequency_loss_fraction * delay}));
+    }
+    out.coil_in_node = a;
+    out.coil_out_node = k;
     if (s.relay.armature_model) {
       out.relay_calibration = &relay::calibrate_relay_cached(relay_datasheet(s));
       relay::ArmatureCoilParameters ap = out.relay_calibration->parameters;

@@ -5,10 +5,11 @@
 // find them:
 //   nodes: "supply", "logic", "logic_out", "base" (switch base or gate), "switch" (the switch's
 //          collector/drain, i.e. the coil's switched end), "clamp_mid", "snubber_mid";
+//          with a cable (DriverSpec::cable) "coil_in"/"coil_out", the coil's terminals at its far end;
 //   elements: "coil" (a fixed coil, or with the armature model an armature coil with states
 //          "coil.gap" and "coil.velocity"), "switch" (or "switch.input"/"switch.output" for a Darlington),
 //          "base_resistor", "clamp_diode", "clamp_zener", "clamp_resistor", "clamp_tvs",
-//          "snubber_resistor", "snubber_capacitor", "level_shifter", "pullup_resistor" ...
+//          "snubber_resistor", "snubber_capacitor", "level_shifter", "pullup_resistor", "cable" ...
 #include <optional>
 #include <string>
 #include <vector>
@@ -23,6 +24,9 @@ struct BuiltDriver {
   engine::Network network;
   bool high_side = false;
   bool mosfet = false;
+  // The coil's terminals: its current enters at coil_in_node. On the board "supply"/"switch"
+  // (low side) or "switch"/ground (high side); at a cable's far end "coil_in"/"coil_out".
+  std::string coil_in_node, coil_out_node;
   // Switch voltage = v(switch_high_node) − v(switch_low_node).
   std::string switch_high_node, switch_low_node;
   std::vector<std::string> switch_elements;  // their heat is the switch's energy

@@ -174,6 +174,12 @@ double release_current_A(const CoilSpec& c) {
   return std::nan("");
 }
 
+double CableSpec::characteristic_impedance_ohm() const {
+  return std::sqrt(inductance_per_metre_H_per_m / capacitance_per_metre_F_per_m);
+}
+
+double CableSpec::delay_s() const { return length_m * std::sqrt(inductance_per_metre_H_per_m * capacitance_per_metre_F_per_m); }
+
 void check_driver_spec(const DriverSpec& s) {
   using engine::require_non_negative;
   using engine::require_positive;
@@ -186,6 +192,13 @@ void check_driver_spec(const DriverSpec& s) {
   if (s.supply.source_inductance_H > 0.0 && s.supply.source_resistance_ohm == 0.0 && s.supply.bulk_capacitance_F == 0.0) {
     // An inductance alone in series with the rail: nothing limits or damps it against the node strays.
     throw std::invalid_argument("supply: source_inductance_H needs source_resistance_ohm or bulk_capacitance_F too");
+  }
+  require_non_negative("cable", "length_m", s.cable.length_m);
+  if (s.cable.present()) {
+    require_positive("cable", "loop_resistance_per_metre_ohm_per_m", s.cable.loop_resistance_per_metre_ohm_per_m);
+    require_positive("cable", "inductance_per_metre_H_per_m", s.cable.inductance_per_metre_H_per_m);
+    require_positive("cable", "capacitance_per_metre_F_per_m", s.cable.capacitance_per_metre_F_per_m);
+    engine::require_open_range("cable", "high_frequency_loss_fraction", s.cable.high_frequency_loss_fraction, 0.0, 1.0);
   }
   require_positive("drive", "high_level_V", s.drive.high_level_V);
   require_positive("drive", "output_resistance_ohm", s.drive.output_resistance_ohm);
@@ -222,6 +235,10 @@ void check_driver_spec(const DriverSpec& s) {
   at_most("supply", "source_inductance_H", s.supply.source_inductance_H, 1.0);
   at_most("supply", "bulk_capacitance_F", s.supply.bulk_capacitance_F, 10.0);
   at_most("supply", "bulk_capacitor_esr_ohm", s.supply.bulk_capacitor_esr_ohm, 1e3);
+  at_most("cable", "length_m", s.cable.length_m, 10e3);
+  at_most("cable", "loop_resistance_per_metre_ohm_per_m", s.cable.loop_resistance_per_metre_ohm_per_m, 10.0);
+  at_most("cable", "inductance_per_metre_H_per_m", s.cable.inductance_per_metre_H_per_m, 1e-4);
+  at_most("cable", "capacitance_per_metre_F_per_m", s.cable.capacitance_per_metre_F_per_m, 1e-8);
   at_most("drive", "high_level_V", s.drive.high_level_V, 30.0);
   at_most("coil", "inductance_H", s.coil.inductance_H, 1000.0);
   at_most("coil", "resistance_at_20C_ohm", s.coil.resistance_at_20C_ohm, 1e7);

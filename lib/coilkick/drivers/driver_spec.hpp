@@ -33,6 +33,29 @@ struct SupplySpec {
   }
 };
 
+// Field wiring: a two-core cable between the board's coil terminals and the coil, as a line of
+// characteristic impedance √(L′/C′) and delay length·√(L′·C′) with its loop resistance
+// (engine/transmission_line.hpp). length_m = 0: the coil sits on the board. Defaults: a common
+// 2 × 0.75 mm² PVC control cable — loop resistance twice IEC 60228's class-5 conductor limit at
+// 20 °C (26.0 Ω/km, Table 3, from memory); L′ and C′ typical of the class, from memory, and
+// consistent with the two-wire line's closed forms (docs/derivations.md, "A cable by its
+// travelling waves").
+struct CableSpec {
+  double length_m = 0.0;
+  double loop_resistance_per_metre_ohm_per_m = 0.052;
+  double inductance_per_metre_H_per_m = 0.55e-6;
+  double capacitance_per_metre_F_per_m = 80e-12;
+  // The cable's loss of high frequencies as a first-order low-pass on each arriving wave, its
+  // time constant this fraction of the delay (0 < f < 1). It smooths fronts the way skin and
+  // dielectric loss do and keeps the run from resolving every harmonic; the design metrics move
+  // by < 0.1 % when it is halved (tests/drivers/test_cable.cpp).
+  double high_frequency_loss_fraction = 0.1;
+  bool present() const { return length_m > 0.0; }
+  double characteristic_impedance_ohm() const;
+  double delay_s() const;
+  double loop_resistance_ohm() const { return loop_resistance_per_metre_ohm_per_m * length_m; }
+};
+
 struct DriveSpec {
   double high_level_V = 3.3;            // logic output high level
   double output_resistance_ohm = 50.0;  // logic output resistance
@@ -183,6 +206,7 @@ struct ExtraPart {
 struct DriverSpec {
   std::string name = "driver";
   SupplySpec supply;
+  CableSpec cable;
   DriveSpec drive;
   SwitchSpec switch_;
   CoilSpec coil;

@@ -39,7 +39,8 @@ const std::vector<std::string>& metric_names() {
       "coil_voltage_on_V", "logic_pin_current_A",
       // switch-off
       "switch_voltage_peak_V", "switch_voltage_peak_time_s", "switch_voltage_rating_V", "switch_voltage_margin",
-      "clamp_current_peak_A", "clamp_energy_J", "coil_resistance_energy_J", "switch_energy_J", "switch_breakdown_energy_J", "extra_parts_energy_J",
+      "coil_end_peak_V",
+      "clamp_current_peak_A", "clamp_energy_J", "coil_resistance_energy_J", "switch_energy_J", "switch_breakdown_energy_J", "extra_parts_energy_J", "cable_energy_J",
       "energy_balance_error", "release_time_s", "current_decay_time_10pct_s", "switch_off_delay_s",
       "ringing_frequency_Hz", "clamp_average_power_W",
       // the supply rail (0 for an ideal supply)

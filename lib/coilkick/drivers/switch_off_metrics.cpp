@@ -87,6 +87,7 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
   m.set("switch_voltage_rating_V", rating);
   m.set("switch_voltage_margin", peak.value / rating);
   m.set("clamp_current_peak_A", b.clamp_current_element.empty() ? kNaN : r.event("clamp_peak").value);
+  m.set("coil_end_peak_V", r.event("coil_end_peak").value);
 
   // Energies over the switch-off: only where the off-state blocks (see the header).
   const Eigen::VectorXd x_off = r.sample(t_off);
@@ -100,6 +101,7 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
   m.set("switch_energy_J", energy(b.switch_elements));
   m.set("switch_breakdown_energy_J", energy(b.switch_elements, "breakdown_heat"));
   m.set("extra_parts_energy_J", b.extra_elements.empty() ? 0.0 : energy(b.extra_elements));
+  m.set("cable_energy_J", spec.cable.present() ? energy({"cable"}) : 0.0);
   m.set("energy_balance_error", off.blocks ? energy_balance_error(r, t_off, x_off, x_end) : kNaN);
   for (const auto& element : b.clamp_part_elements) out.clamp_part_energy_J.push_back(energy({element}));
 

@@ -28,6 +28,9 @@ std::vector<EventSpec> watched_events(const DriverSpec& spec, const BuiltDriver&
                             EventSpec::crossing("decay10", p_coil, 0.1 * i0, Direction::falling, t_off),
                             EventSpec::crossing("off_delay", p_vsw, 0.9 * vs, Direction::rising, t_off)};
   if (!std::isnan(i_rel)) ev.push_back(EventSpec::crossing("release", p_coil, i_rel, Direction::falling, t_off));
+  // The coil's own terminals, in the sense its voltage reverses at switch-off (at a cable's far end
+  // this is not the switch's spike).
+  ev.push_back(EventSpec::maximum("coil_end_peak", Probe::voltage_between(c, b.coil_out_node, b.coil_in_node), t_off));
   if (b.armature) {
     ev.push_back(EventSpec::crossing("contact_open", Probe::state(c, "coil.gap"), b.armature->mechanics.make_gap_m,
                                      Direction::rising, t_off));

@@ -27,6 +27,9 @@ const std::vector<UnitSpelling>& units() {
       {Dimension::ratio, {"%"}},
       {Dimension::dimensionless, {}},
       {Dimension::length, {"m"}},  // after "ohm", which also ends in m
+      {Dimension::resistance_per_length, {"ohm/m", "\xCE\xA9/m", "\xE2\x84\xA6/m"}},
+      {Dimension::inductance_per_length, {"H/m"}},
+      {Dimension::capacitance_per_length, {"F/m"}},
   };
   return u;
 }
@@ -70,6 +73,9 @@ const char* dimension_name(Dimension d) {
     case Dimension::ratio: return "a ratio";
     case Dimension::dimensionless: return "a plain number";
     case Dimension::length: return "a length";
+    case Dimension::resistance_per_length: return "a resistance per metre";
+    case Dimension::inductance_per_length: return "an inductance per metre";
+    case Dimension::capacitance_per_length: return "a capacitance per metre";
   }
   return "?";
 }

@@ -79,7 +79,7 @@ class Reader {
         read_extra_parts(v);
         continue;
       }
-      static const std::vector<std::string> sections{"supply", "drive", "hold", "repeat", "switch", "coil", "clamp", "relay", "analysis", "tolerances"};
+      static const std::vector<std::string> sections{"supply", "cable", "drive", "hold", "repeat", "switch", "coil", "clamp", "relay", "analysis", "tolerances"};
       if (std::find(sections.begin(), sections.end(), key) == sections.end()) {
         std::vector<std::string> top = sections;
         top.push_back("name");
