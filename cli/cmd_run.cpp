@@ -97,6 +97,7 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
     section(out, "Switch-off (times from the start of the switch-off edge)",
             {{"peak switch voltage", "switch_voltage_peak_V"}, {"  at", "switch_voltage_peak_time_s"},
              {"switch voltage rating", "switch_voltage_rating_V"}, {"peak over rating", "switch_voltage_margin"},
+             {"peak voltage across the coil", "coil_end_peak_V"},
              {"clamp peak current", "clamp_current_peak_A"}, {"energy into the clamp", "clamp_energy_J"},
              {"energy into the coil resistance", "coil_resistance_energy_J"}, {"energy into the switch", "switch_energy_J"},
              {"  of it in breakdown", "switch_breakdown_energy_J"},
@@ -116,7 +117,7 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
                {"clamp energy per period", "hold_clamp_energy_per_period_J"}},
               r.metrics);
     }
-    if (!d.supply.rail_is_ideal() || !d.extra_parts.empty()) {
+    if (!d.supply.rail_is_ideal() || !d.extra_parts.empty() || d.cable.present()) {
       out << "\n";
       std::vector<Line> lines;
       if (!d.supply.rail_is_ideal()) {
@@ -124,7 +125,8 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
                  {"energy returned to the supply", "supply_energy_returned_J"}};
       }
       if (!d.extra_parts.empty()) lines.push_back({"energy into the extra parts", "extra_parts_energy_J"});
-      section(out, "Supply rail and extra parts (against the on-state)", lines, r.metrics);
+      if (d.cable.present()) lines.push_back({"energy into the cable", "cable_energy_J"});
+      section(out, "Supply rail, cable and extra parts (against the on-state)", lines, r.metrics);
     }
     if (d.relay.armature_model) {
       out << "\n";

@@ -217,9 +217,9 @@ class TransientRun {
     if (options_.maximum_step_s > 0.0) dt_ = std::min(dt_, options_.maximum_step_s);
     // An element reading its past one delay back must find it recorded, in few pieces.
     if (circuit_.has_history()) {
-      const double cap = circuit_.longest_step_reading_past_s(t_, std::getenv("PIECES") ? std::atoi(std::getenv("PIECES")) : kPastPiecesPerStep);
+      const double cap = circuit_.longest_step_reading_past_s(t_, kPastPiecesPerStep);
       // Quiet waves and a step longer than the delay: the lines' quasi-static form, uncapped.
-      const bool qs = !std::getenv("NOQS") && dt_ > circuit_.shortest_delay_s() &&
+      const bool qs = dt_ > circuit_.shortest_delay_s() &&
                       circuit_.history_quiet(options_.voltage_tolerance_V, options_.relative_tolerance);
       if (qs != w_.quasi_static) {
         w_.quasi_static = qs;
