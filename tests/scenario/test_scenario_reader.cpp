@@ -26,6 +26,12 @@ TEST_CASE("quantities: SI prefixes and units, checked against the expected dimen
   CHECK(parse_quantity("60 degC", Dimension::temperature) == 60.0);
   CHECK(parse_quantity("10 %", Dimension::ratio) == rel(0.1));
   CHECK(parse_quantity("1e-3", Dimension::time) == 1e-3);  // SI base unit implied
+  CHECK(parse_quantity("52 mohm/m", Dimension::resistance_per_length) == rel(0.052));
+  CHECK(parse_quantity("0.55 uH/m", Dimension::inductance_per_length) == rel(0.55e-6));
+  CHECK(parse_quantity("80 pF/m", Dimension::capacitance_per_length) == rel(80e-12));
+  CHECK(parse_quantity("60 m", Dimension::length) == 60.0);
+  CHECK_THROWS_WITH_AS(parse_quantity("0.55 uH", Dimension::inductance_per_length),
+                       doctest::Contains("is an inductance, but an inductance per metre (H/m)"), std::invalid_argument);
   CHECK_THROWS_WITH_AS(parse_quantity("30 pF", Dimension::inductance), doctest::Contains("is a capacitance, but an inductance"),
                        std::invalid_argument);
   CHECK_THROWS_WITH_AS(parse_quantity("3 furlongs", Dimension::time), doctest::Contains("unknown unit"), std::invalid_argument);
@@ -176,6 +182,12 @@ TEST_CASE("bad scenario inputs: one clear message with file:line:column each") {
       {"a hold and a repetition", 0,
        "[hold]\npull_in_time = \"20 ms\"\npwm_frequency = \"20 kHz\"\npwm_duty = 0.5\n[repeat]\nperiod = \"1 s\"\non_time = \"0.5 s\"\ncount = 3", 25,
        "a drive is a hold or a repetition, not both"},
+      {"negative cable length", 0, "[cable]\nlength = \"-3 m\"", 22, "key 'cable.length': cable.length must be"},
+      {"cable capacitance not per metre", 0, "[cable]\nlength = \"60 m\"\ncapacitance_per_metre = \"80 pF\"", 23,
+       "is a capacitance, but a capacitance per metre (F/m)"},
+      {"misspelt cable key", 0, "[cable]\nlenght = \"60 m\"", 22, "did you mean 'cable.length'?"},
+      {"cable loss fraction of the whole delay", 0, "[cable]\nlength = \"60 m\"\nhigh_frequency_loss_fraction = 1.5", 23,
+       "key 'cable.high_frequency_loss_fraction'"},
       {"hold with a frequency for the duty", 0, "[hold]\npull_in_time = \"20 ms\"\npwm_frequency = \"20 kHz\"\npwm_duty = \"5 Hz\"", 24,
        "is a frequency, but a ratio"},
   };
