@@ -114,7 +114,7 @@ Circuit::Circuit(const Network& network)
         throw std::invalid_argument("element '" + e->name() + "': internal state '" + s.name +
                                     "' cannot be a node voltage");
       }
-      states_.push_back({e->name() + "." + s.name, s.unit, s.kind, false, s.absolute_tolerance, s.operating_point_guess});
+      states_.push_back({e->name() + "." + s.name, s.unit, s.kind, false, s.absolute_tolerance, s.operating_point_guess, s.node_scale});
       ++next;
     }
   }
@@ -257,8 +257,17 @@ void Circuit::record_history(const DenseStep& step, KinkTolerance kink_tolerance
     const double jump = std::abs(w.history_rates_after[k] - before[k]);
     kink = kink || jump > tolerance * (1.0 / shortest_delay_s_ + kNoise / shorter);
   }
-  history_->set_last_rates_after(w.history_rates_after.data());
-  if (kink) history_->mark_kink();
+  if (kink) {
+    history_->set_last_rates_after(w.history_rates_after.data());
+    history_->mark_kink();
+  } else {
+    // No kink: one rate on both sides. A rate that jumps by noise at every point is a kink to a
+    // line's high-frequency low-pass, whose error from it (~τ_hf·jump) does not shrink with the
+    // step (measured: rejections at every step). The shorter piece takes the longer one's rate:
+    // it moves by ~jump·(its length)/8, about the tolerance at most by the kink test above.
+    if (before_piece >= step.t1 - step.t0) std::copy(before, before + w.history_values.size(), w.history_rates_after.begin());
+    history_->set_last_rates(w.history_rates_after.data(), w.history_rates_after.data());
+  }
   // The step's end, its rates before it (and, until the next step, after it).
   step.at(step.t1, w.history_x.data(), w.history_rate.data());
   history_point(step.t1, step.x1.data(), w.history_rate.data(), 0.5 * (step.t0 + step.t1), w, w.history_rates_before);

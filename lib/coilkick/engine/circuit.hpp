@@ -31,6 +31,7 @@ struct StateInfo {
   bool is_energy = false;
   double absolute_tolerance = 0.0;  // only for element internal states that declare one
   double operating_point_guess = 0.0;
+  bool node_scale = false;          // InternalStateSpec::node_scale
 };
 
 struct PowerChannelInfo {

@@ -31,6 +31,11 @@ void DelayHistory::append(double t_s, const double* values, const double* rates_
   rates_after_.insert(rates_after_.end(), rates_after, rates_after + n);
 }
 
+void DelayHistory::set_last_rates(const double* before, const double* after) {
+  std::copy(before, before + channels_, rates_before_.end() - channels_);
+  std::copy(after, after + channels_, rates_after_.end() - channels_);
+}
+
 void DelayHistory::set_last_rates_after(const double* rates) {
   std::copy(rates, rates + channels_, rates_after_.end() - channels_);
 }

@@ -24,6 +24,7 @@ class DelayHistory {
   // The last point's rates before it, and its rates after it (set once the step after it is known).
   const double* last_rates_before() const { return rates_before_.data() + rates_before_.size() - static_cast<std::size_t>(channels_); }
   void set_last_rates_after(const double* rates);
+  void set_last_rates(const double* before, const double* after);
   // The last point is a kink (a source's corner, or an arriving kink): the rates on its two sides
   // differ. A kink reaches the line's other end one delay later, where a step must land on it —
   // a step over it would integrate a forcing whose slope jumps inside the step, which its error

@@ -30,6 +30,9 @@ struct InternalStateSpec {
   double absolute_tolerance = 0.0;  // error tolerance in that unit (> 0)
   StateKind kind = StateKind::internal;
   double operating_point_guess = 0.0;  // where the DC Newton iteration starts (e.g. a closed armature's gap)
+  // A voltage that is a sum of node-scale parts which may cancel (a line's wave, v + Z0·i): its
+  // error is judged against the circuit's largest node voltage too, not only its own size.
+  bool node_scale = false;
 };
 
 // Energy channel: power an element turns into heat (`dissipated`) or delivers into the network

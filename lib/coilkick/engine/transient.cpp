@@ -83,7 +83,7 @@ class TransientRun {
         initial_(initial),
         options_(options),
         n_(static_cast<Eigen::Index>(circuit.state_count())),
-        atol_(absolute_tolerances(circuit, options)),
+        atol_(absolute_tolerances(circuit, options, initial.values.data())),
         w_(circuit.make_workspace()),
         sys_{circuit, w_, stats_, initial.time_s, {}, std::numeric_limits<double>::quiet_NaN(), {}, {}, {}},
         stepper_(make_rosenbrock_step(options.step_method, static_cast<int>(n_), circuit.circuit_state_count())),
@@ -327,12 +327,19 @@ class TransientRun {
 
 }  // namespace
 
-std::vector<double> absolute_tolerances(const Circuit& c, const TransientOptions& o) {
+std::vector<double> absolute_tolerances(const Circuit& c, const TransientOptions& o, const double* x0) {
+  double node_scale = 0.0;
+  if (x0) {
+    for (std::size_t i = 0; i < c.states().size(); ++i) {
+      if (c.states()[i].kind == StateKind::node_voltage) node_scale = std::max(node_scale, std::abs(x0[i]));
+    }
+  }
   std::vector<double> a;
   for (const auto& s : c.states()) {
     if (s.is_energy) a.push_back(o.energy_tolerance_J);
     else if (s.kind == StateKind::node_voltage) a.push_back(o.voltage_tolerance_V);
     else if (s.kind == StateKind::branch_current) a.push_back(o.current_tolerance_A);
+    else if (s.node_scale) a.push_back(std::max(s.absolute_tolerance, o.voltage_tolerance_V + o.relative_tolerance * node_scale));
     else a.push_back(s.absolute_tolerance);
   }
   return a;

@@ -44,8 +44,10 @@ struct TransientOptions {
   std::function<void(double)> progress;
 };
 
-// The absolute error allowed on each state (Circuit::states() order) under these options.
-std::vector<double> absolute_tolerances(const Circuit& c, const TransientOptions& o);
+// The absolute error allowed on each state (Circuit::states() order) under these options. With
+// the run's initial state x0, a node-scale state (InternalStateSpec::node_scale) is allowed
+// voltage_tolerance + relative_tolerance·(largest node voltage in x0) at least.
+std::vector<double> absolute_tolerances(const Circuit& c, const TransientOptions& o, const double* x0 = nullptr);
 
 // Throws std::invalid_argument for bad options or state, SimulationError for solver failures.
 TransientResult simulate(const Circuit& circuit, const CircuitState& initial,

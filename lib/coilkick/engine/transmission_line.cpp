@@ -23,7 +23,7 @@ std::vector<PowerChannelSpec> TransmissionLine::power_channels() const {
 
 
 std::vector<InternalStateSpec> TransmissionLine::internal_states() const {
-  return {{"incoming_a", "V", 1e-6, StateKind::internal}, {"incoming_b", "V", 1e-6, StateKind::internal}};
+  return {{"incoming_a", "V", 1e-6, StateKind::internal, 0.0, true}, {"incoming_b", "V", 1e-6, StateKind::internal, 0.0, true}};
 }
 
 void TransmissionLine::port_current(const ElementContext& ctx, int end, double* current_A, double* time_rate_A_per_s) const {
