@@ -109,6 +109,7 @@ case "$cmd" in
     "$BUILD_DIR/bin/engine_bench" --benchmark_min_time=0.2
     "$BUILD_DIR/bin/device_bench" --benchmark_min_time=0.2
     "$BUILD_DIR/bin/hold_bench"
+    "$BUILD_DIR/bin/cable_bench"
     "$BUILD_DIR/bin/fit_bench"
     PYTHONPATH="$BUILD_DIR/python" "$PYTHON" bench/throughput.py
     COILKICK_BUILD_DIR="$BUILD_DIR" PYTHONPATH="$BUILD_DIR/python" "$PYTHON" bench/reference_transient.py
