@@ -6,8 +6,10 @@
 
 #include "../approx.hpp"
 
+#include <algorithm>
 #include <cmath>
 
+#include "coilkick/drivers/faults.hpp"
 #include "coilkick/drivers/switch_off.hpp"
 #include "coilkick/engine/transmission_line.hpp"
 #include "driver_fixture.hpp"
@@ -124,4 +126,35 @@ TEST_CASE("halving the cable's high-frequency loss moves the switch peak and rel
     CHECK(b.metrics.get(m) == rel(a.metrics.get(m)).epsilon(1e-3));
   }
   CHECK(b.metrics.get("coil_end_peak_V") == rel(a.metrics.get("coil_end_peak_V")).epsilon(1e-2));
+}
+
+TEST_CASE("faults with a cable: the coil end reads the board's potentials less the cores' drops, and a broken or shorted cable is found") {
+  // Ohm's law along each core (half the loop resistance) for a meter at the coil; a core broken at
+  // the coil, or the cores shorted there, leave the coil without current (IEC 61810-1's "operate"
+  // never happens: the relay never operates).
+  DriverSpec s = test_support::relay_case(true);
+  s.clamp.kind = ClampKind::diode;
+  s.cable.length_m = 200.0;
+  const FaultReport rep = analyse_faults(s, test_support::catalogue());
+  const double core_ohm = 0.5 * 200.0 * 0.052, i = rep.healthy.coil_current_on_A;
+  auto reading = [](const FaultCase& f, const std::string& node) {
+    for (const auto& r : f.readings) {
+      if (r.node == node) return r;
+    }
+    FAIL("no reading of node " << node);
+    return NodeReading{};
+  };
+  const double v_switch = reading(rep.healthy, "switch").on_V;
+  // 1e-6: DC solutions to the operating point's tolerance.
+  CHECK(reading(rep.healthy, "coil_in").on_V == rel(12.0 - i * core_ohm).epsilon(1e-6));
+  CHECK(reading(rep.healthy, "coil_out").on_V == rel(v_switch + i * core_ohm).epsilon(1e-6));
+  int found = 0;
+  for (const auto& f : rep.faults) {
+    if (f.part != "cable") continue;
+    ++found;
+    CAPTURE(f.label());
+    CHECK(std::abs(f.coil_current_on_A) < 1e-3 * i);
+    CHECK(std::find(f.symptoms.begin(), f.symptoms.end(), "relay never operates") != f.symptoms.end());
+  }
+  CHECK(found == 2);
 }

@@ -13,6 +13,7 @@
 #include "coilkick/engine/errors.hpp"
 #include "coilkick/engine/operating_point.hpp"
 #include "coilkick/engine/rewired_element.hpp"
+#include "coilkick/engine/transmission_line.hpp"
 #include "coilkick/relay/armature_operating_point.hpp"
 
 namespace coilkick::drivers {
@@ -60,6 +61,22 @@ struct Evaluated {
   bool coil_present = true;
 };
 
+// At DC a cable is its two cores, each half the loop resistance: the far end's terminals then
+// read the board's potentials less the cores' drops, as a meter at the coil would (the line
+// element carries only the pair's own voltage, so its far end would float against ground).
+engine::Network with_cables_as_cores(const engine::Network& n) {
+  engine::Network out = n;
+  for (const auto& e : n.elements()) {
+    const auto* line = dynamic_cast<const engine::TransmissionLine*>(e.get());
+    if (!line) continue;
+    const auto& t = e->terminals();
+    const double core_ohm = 0.5 * line->parameters().loop_resistance_ohm;
+    out.replace(e->name(), std::make_shared<engine::Resistor>(e->name(), t[0], t[2], core_ohm));
+    out.add_resistor(e->name() + ".return_core", t[1], t[3], core_ohm);
+  }
+  return out;
+}
+
 // DC readings and, where the coil carries current, the switch-off.
 FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::string& part, const std::string& fault,
                    bool run_switch_off) {
@@ -67,10 +84,11 @@ FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::stri
   fc.part = part;
   fc.fault = fault;
   try {
-    const engine::Circuit c(b.network);
+    const engine::Network dc = with_cables_as_cores(b.network);
+    const engine::Circuit c(dc);
     const double t_late = spec.drive.switch_off_at_s + spec.drive.fall_time_s + 1.0;
-    const auto on = relay::operating_point_with_armatures_closed(b.network, c, 0.0);
-    const auto off = relay::operating_point_with_armatures_closed(b.network, c, t_late);
+    const auto on = relay::operating_point_with_armatures_closed(dc, c, 0.0);
+    const auto off = relay::operating_point_with_armatures_closed(dc, c, t_late);
     for (const auto& n : c.node_names()) {
       if (n == "logic") continue;  // the logic output's internal source node
       fc.readings.push_back({n, c.node_voltage_V(n, 0.0, on.values.data()), c.node_voltage_V(n, t_late, off.values.data())});
@@ -242,6 +260,19 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
       coil_faults(n, std::make_shared<relay::ArmatureCoil>(n, t[0], t[1], p));
     }
   }
+  if (spec.cable.present()) {
+    // Field wiring: one core broken at the coil's end, or the two cores shorted there.
+    Injector open(healthy), shorted(healthy);
+    for (const auto& e : healthy.network.elements()) {
+      if (e->name() != "coil") continue;
+      open.out.network.replace("coil", std::make_shared<engine::RewiredElement>(
+                                           e, std::vector<std::string>{"cable.break", e->terminals()[1]}));
+    }
+    open.resistor_across("cable.break", healthy.coil_in_node, "cable.break", kOpen_ohm);
+    add_case("cable", "open (one core, at the coil)", open);
+    shorted.resistor_across("cable.short", healthy.coil_in_node, healthy.coil_out_node, kShort_ohm);
+    add_case("cable", "shorted (at the coil)", shorted);
+  }
   {
     Injector low(healthy);
     low.out.network.set_source_waveform("supply", engine::Waveform::constant(kLowSupply * spec.supply.voltage_V));
@@ -250,7 +281,8 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
   for (const auto& [id, built] : cases) {
     DriverSpec s = spec;
     if (id.first == "supply") s.supply.voltage_V *= kLowSupply;
-    FaultCase f = evaluate(s, built, id.first, id.second, id.second != "open" || id.first != "coil");
+    const bool coil_open = (id.first == "coil" && id.second == "open") || (id.first == "cable" && id.second.rfind("open", 0) == 0);
+    FaultCase f = evaluate(s, built, id.first, id.second, !coil_open);
     classify(f, rep.healthy, s, built, parts);
     rep.faults.push_back(std::move(f));
   }

@@ -4,7 +4,8 @@
 // Single faults of every part: a resistor open; a clamp diode, Zener or TVS open or shorted; a
 // snubber capacitor open or shorted; a transistor with collector–emitter (drain–source) shorted,
 // its base (gate) connection open, or its collector–base junction leaky; the coil open or with
-// 30 % of its turns shorted; the supply low (75 %). For each: the DC node voltages with the
+// 30 % of its turns shorted; with a cable, one core broken at the coil or the cores shorted
+// there; the supply low (75 %). DC readings take a cable as its two cores (half the loop each). For each: the DC node voltages with the
 // drive on and off, the coil current, the on-state heat in each part, and — if the coil carries
 // current — the switch-off metrics and rating checks. Faults are grouped by what a user sees:
 // "relay never operates", "relay never releases", "relay releases slowly", "driver part
