@@ -9,24 +9,12 @@
 #include <cstdio>
 #include <string>
 
+#include "best_of.hpp"
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/drivers/switch_off.hpp"
 #include "coilkick/scenario/scenario.hpp"
 
 using namespace coilkick;
-
-namespace {
-template <class F>
-double best_of(int n, F&& f) {
-  double best = INFINITY;
-  for (int k = 0; k < n; ++k) {
-    const auto t0 = std::chrono::steady_clock::now();
-    f();
-    best = std::min(best, std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count());
-  }
-  return best;
-}
-}  // namespace
 
 int main() {
   const auto parts = catalogue::load_default_catalogue();

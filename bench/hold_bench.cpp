@@ -8,6 +8,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "best_of.hpp"
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/drivers/driver_network.hpp"
 #include "coilkick/drivers/hold.hpp"
@@ -35,16 +36,6 @@ DriverSpec held_coil() {
   return s;
 }
 
-template <class F>
-double best_of(int n, F&& f) {
-  double best = INFINITY;
-  for (int k = 0; k < n; ++k) {
-    const auto t0 = std::chrono::steady_clock::now();
-    f();
-    best = std::min(best, std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count());
-  }
-  return best;
-}
 }  // namespace
 
 int main() {
