@@ -55,7 +55,8 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
   out << std::left << std::setw(18) << "clamp" << std::setw(34) << "parts" << std::right << std::setw(11) << "peak"
       << std::setw(8) << "margin" << std::setw(11) << "release" << std::setw(11) << "to 10 %" << std::setw(11) << "clamp E"
       << std::setw(11) << "switch E";
-  const bool contacts = d.relay.armature_model, hold = d.has_periodic_drive();
+  const bool contacts = d.relay.armature_model, hold = d.has_periodic_drive(), cable = d.cable.present();
+  if (cable) out << std::setw(11) << "coil end";
   if (contacts) out << std::setw(11) << "opens" << std::setw(11) << "speed";
   if (hold) out << std::setw(11) << "hold I" << std::setw(9) << "I/I_rel" << std::setw(11) << "clamp P" << std::setw(11) << "switch P";
   out << "  checks\n";
@@ -76,6 +77,7 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
         << std::setw(11) << metric_text("x_s", m.get("release_time_s")) << std::setw(11)
         << metric_text("x_s", m.get("current_decay_time_10pct_s")) << std::setw(11) << metric_text("x_J", m.get("clamp_energy_J"))
         << std::setw(11) << metric_text("x_J", m.get("switch_energy_J"));
+    if (cable) out << std::setw(11) << metric_text("x_V", m.get("coil_end_peak_V"));
     if (contacts) {
       out << std::setw(11) << metric_text("x_s", m.get("contact_open_time_s")) << std::setw(11)
           << metric_text("x_m_per_s", m.get("armature_speed_at_contact_open_m_per_s"));
@@ -88,6 +90,10 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
           << metric_text("x_W", m.get("hold_switch_average_power_W"));
     }
     out << "  " << (flags.empty() ? "all pass" : flags) << "\n";
+  }
+  if (cable) {
+    out << "\ncoil end: peak across the coil's own terminals at the cable's far end (a fast front doubles there; "
+           "the clamp holds only the board's terminals).";
   }
   if (contacts) {
     out << "\nopens: the make contact separates (armature model); speed: armature speed there. "

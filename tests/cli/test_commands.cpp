@@ -101,6 +101,20 @@ TEST_CASE("compare: every applicable clamp of the scenario, CSV and SVG written"
   CHECK(chart.str().find(kCautionLine) != std::string::npos);  // the chart's footer
 }
 
+TEST_CASE("compare and run on a coil at the end of a cable: the coil's own peak is shown beside the switch's") {
+  CommonOptions o;
+  o.file = scenario_path("greenhouse_valve_cable.toml");
+  const std::string csv = scratch("compare_cable.csv", ""), svg = scratch("compare_cable.svg", "");
+  std::ostringstream out;
+  CHECK(cmd_compare(o, csv, svg, out) == 0);
+  CHECK(out.str().find("coil end") != std::string::npos);
+  std::ostringstream run_out;
+  CHECK(cmd_run(o, "", false, run_out) == 0);
+  CHECK(run_out.str().find("peak voltage across the coil") != std::string::npos);
+  CHECK(run_out.str().find("energy into the cable") != std::string::npos);
+  CHECK(run_out.str().find("Caution") != std::string::npos);
+}
+
 TEST_CASE("sweep: CSV with one row per grid point") {
   CommonOptions o;
   o.file = scratch("sweep.toml", kPwlScenario);
