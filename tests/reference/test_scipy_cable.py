@@ -104,8 +104,8 @@ def test_a_cable_as_a_line_agrees_with_an_independent_ladder_solved_by_scipy(ref
     m = coilkick.run(scenario()).metrics
     # On-state: the same DC equations (the cable is its loop resistance), measured 3e-12 apart.
     assert m["coil_current_at_switch_off_A"] == pytest.approx(reference["i0"], rel=1e-9)
-    # Measured against this ladder (N = 40; 20 sections move each value by less than a tenth of
-    # the difference, and scipy at rtol 1e-9 moves none by 1e-10): release time 4.5e-6, clamp
+    # Measured against this ladder (N = 40; 20 sections move the release time and the energy by a
+    # tenth of the difference, the peak by a third; scipy at rtol 1e-9 moves none by 1e-10): release time 4.5e-6, clamp
     # energy 5.4e-5 (the two cable models lose the fronts' energy differently: the line's
     # high-frequency low-pass against the ladder's dispersion), switch peak 2.6e-4 (the front's
     # shape). Each tolerance is about four times the measured difference.
