@@ -145,8 +145,8 @@ def build(scenario, samples=200, seed=1, progress=None):
         compare_rows.append({
             "kind": r.kind, "parts": r.parts, "error": r.error, "overall": r.result.overall if r.result else "error",
             "cells": [(n, m.get(n, float("nan")), _si(m.get(n, float("nan")), _unit(n))) for n in
-                      ("switch_voltage_peak_V", "switch_voltage_margin", "release_time_s", "contact_open_time_s",
-                       "clamp_energy_J", "clamp_current_peak_A")],
+                      ("switch_voltage_peak_V", "switch_voltage_margin", "coil_end_peak_V", "release_time_s",
+                       "contact_open_time_s", "clamp_energy_J", "clamp_current_peak_A")],
             "failed": [c["name"] for c in r.result.checks if c["status"] == "fail"] if r.result else [],
         })
     data["comparison"] = compare_rows
