@@ -141,8 +141,9 @@ class Circuit {
   // f(x) carries its error times the stiffness, which the interpolated past would feed back into
   // the line at every passage (measured: a wave ringing up from the tolerance's noise). Where the
   // rates on the two sides of the previous point differ by more than a channel may drift over one
-  // delay (absolute + relative·|value|), that point is a kink, which next_corner_after_s reports
-  // one delay later.
+  // delay (absolute + relative·|value|) and by more than ten times the tolerance over the shorter
+  // neighbouring step (the polynomials' own noise), that point is a kink, which
+  // next_corner_after_s reports one delay later; elsewhere both sides take one rate (the past is C¹).
   struct KinkTolerance {
     double absolute = 0.0, relative = 0.0;
   };

@@ -26,12 +26,11 @@ std::vector<InternalStateSpec> TransmissionLine::internal_states() const {
   return {{"incoming_a", "V", 1e-6, StateKind::internal, 0.0, true}, {"incoming_b", "V", 1e-6, StateKind::internal, 0.0, true}};
 }
 
-void TransmissionLine::port_current(const ElementContext& ctx, int end, double* current_A, double* time_rate_A_per_s) const {
+double TransmissionLine::port_current_A(const ElementContext& ctx, int end) const {
   const int plus = 2 * end, minus = plus + 1;
   const double v = ctx.value(plus) - ctx.value(minus);
   const double g = 1.0 / (p_.characteristic_impedance_ohm + end_resistance_ohm());
-  *current_A = g * (v - ctx.value(4 + end));
-  *time_rate_A_per_s = 0.0;
+  return g * (v - ctx.value(4 + end));
 }
 
 void TransmissionLine::load(const ElementContext& ctx, Stamper& out) const {
@@ -79,8 +78,7 @@ void TransmissionLine::load(const ElementContext& ctx, Stamper& out) const {
   const double back = ctx.time_s() - pure_delay_s(), q = 0.25 / z;
   for (int end = 0; end < 2; ++end) {
     const int plus = 2 * end, minus = plus + 1, e = 4 + end;
-    double i = 0.0, unused = 0.0;
-    port_current(ctx, end, &i, &unused);
+    const double i = port_current_A(ctx, end);
     out.add_flow(plus, -i);
     out.add_flow(minus, i);
     out.add_flow_slope(plus, plus, -g);
@@ -142,8 +140,7 @@ void TransmissionLine::history_values(const ElementContext& ctx, double* values,
   const double g = 1.0 / (z + rs);
   for (int end = 0; end < 2; ++end) {
     const int plus = 2 * end, minus = plus + 1;
-    double i = 0.0, unused = 0.0;
-    port_current(ctx, end, &i, &unused);
+    const double i = port_current_A(ctx, end);
     const double v = ctx.value(plus) - ctx.value(minus);
     const double v_rate = ctx.rate(plus) - ctx.rate(minus);
     values[end] = v + (z - rs) * i;

@@ -47,8 +47,8 @@ class TransmissionLine final : public Element {
   TransmissionLineParameters p_;
   double end_resistance_ohm() const { return 0.5 * p_.loop_resistance_ohm; }
   double pure_delay_s() const { return p_.delay_s - p_.high_frequency_loss_time_s; }
-  // Port current at end k (0: a, 1: b) and its explicit time rate, from the past's incoming wave.
-  void port_current(const ElementContext& ctx, int end, double* current_A, double* time_rate_A_per_s) const;
+  // Port current at end k (0: a, 1: b), into its plus terminal, behind the arriving wave (state).
+  double port_current_A(const ElementContext& ctx, int end) const;
 };
 
 }  // namespace coilkick::engine
