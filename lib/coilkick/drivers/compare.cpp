@@ -24,6 +24,7 @@ std::string describe_clamp_parts(const ClampSpec& c) {
       break;
     case ClampKind::tvs_across_switch: o << c.tvs_part; break;
     case ClampKind::active_clamp: o << c.active_clamp_zener_part << " + " << c.diode_part; break;
+    case ClampKind::common_pin: o << c.diode_part << " to the common pin"; break;
   }
   if (c.add_rc_snubber_across_coil && c.kind != ClampKind::rc_across_coil) {
     o << " + RC " << format_si(c.snubber_resistance_ohm, "ohm") << "/" << format_si(c.snubber_capacitance_F, "F");

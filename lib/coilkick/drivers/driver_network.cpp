@@ -20,10 +20,12 @@ namespace {
 using engine::Network;
 
 struct Builder {
-  const DriverSpec& s;
+  const DriverSpec& s;  // one channel's view (channel_driver_spec)
   const catalogue::Catalogue& parts;
   BuiltDriver out;
   devices::ModelLevel level() const { return s.analysis.model_level; }
+  // A name of this channel's own (node or element): plain in the first channel, "<name>." before it in the others.
+  std::string n(const std::string& local) const { return out.local(local); }
 
   Overrides with_temperature(Overrides o) const {
     if (!o.count("temperature")) o["temperature"] = s.analysis.device_temperature_C;
@@ -122,40 +124,40 @@ struct Builder {
       }
       throw std::invalid_argument("switch.part: '" + sw.part + "' is a " + rec.family + ", which does not fit topology " + top);
     };
-    const std::string c = "switch", b = "base";
+    const std::string c = n("switch"), b = n("base"), sw_el = n("switch");
     switch (sw.topology) {
       case Topology::low_side_npn:
         require({"npn"});
-        out.network.add(devices::make_bjt("switch", c, b, Network::ground, catalogue::bjt_parameters(rec, carrying_coil_current(sw.overrides)), level()));
+        out.network.add(devices::make_bjt(sw_el, c, b, Network::ground, catalogue::bjt_parameters(rec, carrying_coil_current(sw.overrides)), level()));
         break;
       case Topology::low_side_nmos:
         require({"nmos"});
         out.mosfet = true;
-        out.network.add(devices::make_mosfet("switch", c, b, Network::ground, catalogue::mosfet_parameters(rec, carrying_coil_current(sw.overrides)), level()));
+        out.network.add(devices::make_mosfet(sw_el, c, b, Network::ground, catalogue::mosfet_parameters(rec, carrying_coil_current(sw.overrides)), level()));
         break;
       case Topology::low_side_darlington: {
         require({"darlington_npn"});
-        devices::add_darlington(out.network, "switch", c, b, Network::ground,
+        devices::add_darlington(out.network, sw_el, c, b, Network::ground,
                                 catalogue::darlington_parameters(rec, carrying_coil_current(sw.overrides)), level());
-        out.switch_elements = {"switch.input", "switch.output", "switch.input_resistor", "switch.output_resistor"};
+        out.switch_elements = {n("switch.input"), n("switch.output"), n("switch.input_resistor"), n("switch.output_resistor")};
         break;
       }
       case Topology::high_side_pnp:
         require({"pnp"});
         out.high_side = true;
-        out.network.add(devices::make_bjt("switch", c, b, "supply", catalogue::bjt_parameters(rec, carrying_coil_current(sw.overrides)), level()));
+        out.network.add(devices::make_bjt(sw_el, c, b, "supply", catalogue::bjt_parameters(rec, carrying_coil_current(sw.overrides)), level()));
         break;
       case Topology::high_side_pmos:
         require({"pmos"});
         out.high_side = true;
         out.mosfet = true;
-        out.network.add(devices::make_mosfet("switch", c, b, "supply", catalogue::mosfet_parameters(rec, carrying_coil_current(sw.overrides)), level()));
+        out.network.add(devices::make_mosfet(sw_el, c, b, "supply", catalogue::mosfet_parameters(rec, carrying_coil_current(sw.overrides)), level()));
         break;
     }
-    if (out.switch_elements.empty()) out.switch_elements = {"switch"};
-    out.switch_control_terminal_element = sw.topology == Topology::low_side_darlington ? "switch.input" : "switch";
+    if (out.switch_elements.empty()) out.switch_elements = {sw_el};
+    out.switch_control_terminal_element = sw.topology == Topology::low_side_darlington ? n("switch.input") : sw_el;
     if (!out.high_side) {
-      resistor("base_resistor", "logic_out", b, sw.base_resistor_ohm, false);
+      resistor(n("base_resistor"), n("logic_out"), b, sw.base_resistor_ohm, false);
       out.switch_high_node = c;
       out.switch_low_node = Network::ground;
       return;
@@ -164,11 +166,11 @@ struct Builder {
     // base (gate) resistor; the pull-up holds the switch off.
     const auto& ls = part(sw.level_shifter_part, "switch.level_shifter_part");
     if (ls.family != "npn") throw std::invalid_argument("switch.level_shifter_part: '" + ls.name + "' is a " + ls.family + ", an NPN is needed");
-    out.network.add(devices::make_bjt("level_shifter", "shifter_collector", "shifter_base", Network::ground,
+    out.network.add(devices::make_bjt(n("level_shifter"), n("shifter_collector"), n("shifter_base"), Network::ground,
                                       catalogue::bjt_parameters(ls, with_temperature(sw.level_shifter_overrides)), level()));
-    resistor("shifter_base_resistor", "logic_out", "shifter_base", sw.level_shifter_base_resistor_ohm, false);
-    resistor("base_resistor", b, "shifter_collector", sw.base_resistor_ohm, false);
-    resistor("pullup_resistor", b, "supply", sw.pullup_resistor_ohm, false);
+    resistor(n("shifter_base_resistor"), n("logic_out"), n("shifter_base"), sw.level_shifter_base_resistor_ohm, false);
+    resistor(n("base_resistor"), b, n("shifter_collector"), sw.base_resistor_ohm, false);
+    resistor(n("pullup_resistor"), b, "supply", sw.pullup_resistor_ohm, false);
     out.switch_high_node = "supply";
     out.switch_low_node = c;
   }
@@ -179,7 +181,7 @@ struct Builder {
     engine::CoilParameters p{cs.inductance_H, out.coil_resistance_ohm, cs.core_loss_resistance_ohm};
     // Coil current flows from the supply side to the switched end (low side) or from the
     // switched end to ground (high side): positive in the on-state either way.
-    const std::string board_a = out.high_side ? "switch" : "supply", board_k = out.high_side ? Network::ground : "switch";
+    const std::string board_a = out.high_side ? n("switch") : "supply", board_k = out.high_side ? Network::ground : n("switch");
     // Field wiring: the coil at the cable's far end, its terminals "coil_in" (where its current
     // enters) and "coil_out"; the clamp and the switch stay on the board.
     const std::string a = s.cable.present() ? "coil_in" : board_a, k = s.cable.present() ? "coil_out" : board_k;
@@ -207,13 +209,13 @@ struct Builder {
       }
       ap.core_loss_resistance_ohm = cs.core_loss_resistance_ohm;
       out.armature = ap;
-      out.network.add(std::make_shared<relay::ArmatureCoil>("coil", a, k, ap));
+      out.network.add(std::make_shared<relay::ArmatureCoil>(n("coil"), a, k, ap));
     } else {
-      out.network.add_coil("coil", a, k, p);
+      out.network.add_coil(n("coil"), a, k, p);
     }
-    if (cs.winding_capacitance_F > 0.0) out.network.add_capacitor("winding_capacitance", a, k, cs.winding_capacitance_F);
+    if (cs.winding_capacitance_F > 0.0) out.network.add_capacitor(n("winding_capacitance"), a, k, cs.winding_capacitance_F);
     if (s.switch_.board_stray_capacitance_F > 0.0) {
-      out.network.add_capacitor("board_stray", "switch", Network::ground, s.switch_.board_stray_capacitance_F);
+      out.network.add_capacitor(n("board_stray"), n("switch"), Network::ground, s.switch_.board_stray_capacitance_F);
     }
   }
 
@@ -221,7 +223,7 @@ struct Builder {
     const auto& cl = s.clamp;
     // "Across the coil" joins the switched end to the coil's other end (supply or ground);
     // "across the switch" joins it to the switch's other end.
-    const std::string sw = "switch";
+    const std::string sw = n("switch"), mid = n("clamp_mid");
     const std::string coil_far = out.high_side ? Network::ground : "supply";
     const std::string switch_far = out.high_side ? "supply" : Network::ground;
     // Diode orientation: conducts from the switched end towards the coil's far end (low side),
@@ -232,54 +234,58 @@ struct Builder {
       case ClampKind::none:
         break;
       case ClampKind::diode:
-        diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part",
+        diode(n("clamp_diode"), cl.diode_part, cl.diode_overrides, "clamp.diode_part",
               across_coil_anode(sw, coil_far), across_coil_cathode(sw, coil_far), forward_diode());
         break;
       case ClampKind::diode_zener:
         // switched end -> diode -> clamp_mid -> Zener (reverse) -> far end (low side); mirrored high side.
         if (!out.high_side) {
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", sw, "clamp_mid", forward_diode());
-          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", coil_far, "clamp_mid", breakdown_clamp(true));
+          diode(n("clamp_diode"), cl.diode_part, cl.diode_overrides, "clamp.diode_part", sw, mid, forward_diode());
+          diode(n("clamp_zener"), cl.zener_part, cl.zener_overrides, "clamp.zener_part", coil_far, mid, breakdown_clamp(true));
         } else {
-          diode("clamp_zener", cl.zener_part, cl.zener_overrides, "clamp.zener_part", "clamp_mid", coil_far, breakdown_clamp(true));
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", sw, forward_diode());
+          diode(n("clamp_zener"), cl.zener_part, cl.zener_overrides, "clamp.zener_part", mid, coil_far, breakdown_clamp(true));
+          diode(n("clamp_diode"), cl.diode_part, cl.diode_overrides, "clamp.diode_part", mid, sw, forward_diode());
         }
         break;
       case ClampKind::diode_resistor:
         if (!out.high_side) {
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", sw, "clamp_mid", forward_diode());
-          resistor("clamp_resistor", "clamp_mid", coil_far, cl.resistor_ohm, true);
+          diode(n("clamp_diode"), cl.diode_part, cl.diode_overrides, "clamp.diode_part", sw, mid, forward_diode());
+          resistor(n("clamp_resistor"), mid, coil_far, cl.resistor_ohm, true);
         } else {
-          resistor("clamp_resistor", coil_far, "clamp_mid", cl.resistor_ohm, true);
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", sw, forward_diode());
+          resistor(n("clamp_resistor"), coil_far, mid, cl.resistor_ohm, true);
+          diode(n("clamp_diode"), cl.diode_part, cl.diode_overrides, "clamp.diode_part", mid, sw, forward_diode());
         }
         break;
       case ClampKind::rc_across_coil:
-        snubber(sw, coil_far, "snubber");
+        snubber(sw, coil_far, n("snubber"));
         break;
       case ClampKind::rc_across_switch:
-        snubber(sw, switch_far, "snubber");
+        snubber(sw, switch_far, n("snubber"));
         break;
       case ClampKind::tvs_across_switch:
         // Reverse-biased across the switch: cathode on the switch's positive end.
-        if (!out.high_side) diode("clamp_tvs", cl.tvs_part, cl.tvs_overrides, "clamp.tvs_part", Network::ground, sw, breakdown_clamp(true));
-        else diode("clamp_tvs", cl.tvs_part, cl.tvs_overrides, "clamp.tvs_part", sw, "supply", breakdown_clamp(true));
+        if (!out.high_side) diode(n("clamp_tvs"), cl.tvs_part, cl.tvs_overrides, "clamp.tvs_part", Network::ground, sw, breakdown_clamp(true));
+        else diode(n("clamp_tvs"), cl.tvs_part, cl.tvs_overrides, "clamp.tvs_part", sw, "supply", breakdown_clamp(true));
         break;
       case ClampKind::active_clamp:
         // Zener from the switched end to the control terminal, with a blocking diode so the
         // Zener never conducts forward in the on-state.
         if (!out.high_side) {
-          diode("clamp_zener", cl.active_clamp_zener_part, cl.active_clamp_zener_overrides,
-                "clamp.active_clamp_zener_part", "clamp_mid", sw, breakdown_clamp(false));
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "clamp_mid", "base", forward_diode());
+          diode(n("clamp_zener"), cl.active_clamp_zener_part, cl.active_clamp_zener_overrides,
+                "clamp.active_clamp_zener_part", mid, sw, breakdown_clamp(false));
+          diode(n("clamp_diode"), cl.diode_part, cl.diode_overrides, "clamp.diode_part", mid, n("base"), forward_diode());
         } else {
-          diode("clamp_diode", cl.diode_part, cl.diode_overrides, "clamp.diode_part", "base", "clamp_mid", forward_diode());
-          diode("clamp_zener", cl.active_clamp_zener_part, cl.active_clamp_zener_overrides,
-                "clamp.active_clamp_zener_part", sw, "clamp_mid", breakdown_clamp(false));
+          diode(n("clamp_diode"), cl.diode_part, cl.diode_overrides, "clamp.diode_part", n("base"), mid, forward_diode());
+          diode(n("clamp_zener"), cl.active_clamp_zener_part, cl.active_clamp_zener_overrides,
+                "clamp.active_clamp_zener_part", sw, mid, breakdown_clamp(false));
         }
         break;
+      case ClampKind::common_pin:
+        // To the board's common pin (its Zener is the board's, built once: common_clamp()).
+        diode(n("clamp_diode"), cl.diode_part, cl.diode_overrides, "clamp.diode_part", sw, common_pin_node(s), forward_diode());
+        break;
     }
-    if (cl.add_rc_snubber_across_coil && cl.kind != ClampKind::rc_across_coil) snubber(sw, coil_far, "extra_snubber");
+    if (cl.add_rc_snubber_across_coil && cl.kind != ClampKind::rc_across_coil) snubber(sw, coil_far, n("extra_snubber"));
     if (!out.clamp_elements.empty()) out.clamp_current_element = out.clamp_elements.front();
   }
 
@@ -349,6 +355,27 @@ struct Builder {
     }
   }
 
+  // The logic output driving this channel's switch: a source behind its output resistance.
+  void logic() {
+    const auto& d = s.drive;
+    out.network.add_voltage_source(n("logic"), n("logic"), engine::Waveform::edge(d.high_level_V, 0.0, d.switch_off_at_s, d.fall_time_s));
+    resistor(n("logic_output"), n("logic"), n("logic_out"), d.output_resistance_ohm, false);
+  }
+
+  // The board's common clamp pin's Zener (CommonClampSpec), cathode at the pin, anode at the rail.
+  void common_clamp() {
+    const auto& cc = s.common_clamp;
+    if (cc.zener_part.empty() || !uses_common_pin(s)) return;
+    const auto& rec = part(cc.zener_part, "common_clamp.zener_part");
+    if (rec.family != "zener" && rec.family != "tvs") {
+      throw std::invalid_argument("common_clamp.zener_part: part '" + rec.name + "' is a " + rec.family + "; a Zener or TVS is needed here");
+    }
+    out.network.add(devices::make_diode("common_zener", "supply", "common_pin",
+                                        catalogue::diode_parameters(rec, carrying_coil_current(cc.zener_overrides)), level()));
+    out.common_clamp_element = "common_zener";
+    out.common_clamp_part = &rec;
+  }
+
   void snubber(const std::string& near, const std::string& far, const std::string& prefix) {
     const std::string mid = prefix + "_mid";
     resistor(prefix + "_resistor", near, mid, s.clamp.snubber_resistance_ohm, true);
@@ -359,17 +386,37 @@ struct Builder {
 
 }  // namespace
 
+std::string common_pin_node(const DriverSpec& s) { return s.common_clamp.zener_part.empty() ? "supply" : "common_pin"; }
+
+std::string BuiltDriver::local(const std::string& name) const { return prefix + name; }
+
 BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalogue& parts) {
   check_driver_spec(spec);
   Builder b{spec, parts, {}};
-  auto& net = b.out.network;
   b.supply();
-  const auto& d = spec.drive;
-  net.add_voltage_source("logic", "logic", engine::Waveform::edge(d.high_level_V, 0.0, d.switch_off_at_s, d.fall_time_s));
-  net.add_resistor("logic_output", "logic", "logic_out", d.output_resistance_ohm);
+  b.logic();
   b.switch_stage();
   b.coil();
   b.clamp();
+  // Further channels: each built alone under its prefix, its parts then joined to the board.
+  for (std::size_t k = 1; k <= spec.channels.size(); ++k) {
+    const DriverSpec one = channel_driver_spec(spec, k);
+    Builder cb{one, parts, {}};
+    cb.out.prefix = spec.channels[k - 1].name + ".";
+    try {
+      cb.logic();
+      cb.switch_stage();
+      cb.coil();
+      cb.clamp();
+    } catch (const std::invalid_argument& e) {
+      throw std::invalid_argument("channel '" + spec.channels[k - 1].name + "': " + e.what());
+    }
+    for (const auto& v : cb.out.network.voltage_sources()) b.out.network.add_voltage_source(v.name, v.node, v.voltage_V);
+    for (const auto& e : cb.out.network.elements()) b.out.network.add(e);
+    cb.out.network = engine::Network{};
+    b.out.channels.push_back(std::move(cb.out));
+  }
+  b.common_clamp();
   b.extra_parts();
   return std::move(b.out);
 }

@@ -4,7 +4,8 @@
 // capacitance, and the clamp. Node and element names are fixed so that metrics and reports can
 // find them:
 //   nodes: "supply", "logic", "logic_out", "base" (switch base or gate), "switch" (the switch's
-//          collector/drain, i.e. the coil's switched end), "clamp_mid", "snubber_mid";
+//          collector/drain, i.e. the coil's switched end), "clamp_mid", "snubber_mid", "common_pin";
+//          a further channel's (DriverSpec::channels) the same behind "<name>." ("fan.switch");
 //          with a cable (DriverSpec::cable) "coil_in"/"coil_out", the coil's terminals at its far end;
 //   elements: "coil" (a fixed coil, or with the armature model an armature coil with states
 //          "coil.gap" and "coil.velocity"), "switch" (or "switch.input"/"switch.output" for a Darlington),
@@ -21,7 +22,12 @@
 namespace coilkick::drivers {
 
 struct BuiltDriver {
-  engine::Network network;
+  engine::Network network;  // the whole board (empty in the views of further channels)
+  // This channel's own names are `local(name)`: the first channel's plain, a further channel's
+  // behind "<name>." (DriverSpec::channels): nodes "fan.switch", elements "fan.coil", state
+  // "fan.coil.current", the transient's events "fan.peak".
+  std::string prefix;
+  std::string local(const std::string& name) const;
   bool high_side = false;
   bool mosfet = false;
   // The coil's terminals: its current enters at coil_in_node. On the board "supply"/"switch"
@@ -42,7 +48,15 @@ struct BuiltDriver {
   // and the element's parameters as built (hot winding resistance). Null/empty otherwise.
   const relay::RelayCalibration* relay_calibration = nullptr;
   std::optional<relay::ArmatureCoilParameters> armature;
+  // The further channels (their views: names, parts; no network), in DriverSpec::channels order.
+  std::vector<BuiltDriver> channels;
+  // The common clamp pin's Zener ("common_zener" between "supply" and "common_pin"), if any.
+  std::string common_clamp_element;
+  const catalogue::PartRecord* common_clamp_part = nullptr;
 };
+
+// Where a common_pin clamp's diode ends: "common_pin" with a common Zener, else the rail.
+std::string common_pin_node(const DriverSpec& s);
 
 // Throws std::invalid_argument naming the field for an impossible combination (e.g. an NPN
 // part on a MOSFET topology), and the catalogue's errors for unknown parts.

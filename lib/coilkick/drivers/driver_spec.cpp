@@ -1,5 +1,7 @@
 #include "coilkick/drivers/driver_spec.hpp"
 
+#include <algorithm>
+#include <cctype>
 #include <cmath>
 #include <stdexcept>
 
@@ -27,7 +29,7 @@ const std::vector<std::pair<std::string, ClampKind>>& clamp_kinds() {
       {"none", ClampKind::none}, {"diode", ClampKind::diode}, {"diode_zener", ClampKind::diode_zener},
       {"diode_resistor", ClampKind::diode_resistor}, {"rc_across_coil", ClampKind::rc_across_coil},
       {"rc_across_switch", ClampKind::rc_across_switch}, {"tvs_across_switch", ClampKind::tvs_across_switch},
-      {"active_clamp", ClampKind::active_clamp}};
+      {"active_clamp", ClampKind::active_clamp}, {"common_pin", ClampKind::common_pin}};
   return k;
 }
 template <class E>
@@ -65,7 +67,9 @@ std::string to_string(ClampKind k) { return name_of(clamp_kinds(), k); }
 const std::vector<ClampKind>& all_clamp_kinds() {
   static const std::vector<ClampKind> k = [] {
     std::vector<ClampKind> v;
-    for (const auto& [n, c] : clamp_kinds()) v.push_back(c);
+    for (const auto& [n, c] : clamp_kinds()) {
+      if (c != ClampKind::common_pin) v.push_back(c);
+    }
     return v;
   }();
   return k;
@@ -180,7 +184,72 @@ double CableSpec::characteristic_impedance_ohm() const {
 
 double CableSpec::delay_s() const { return length_m * std::sqrt(inductance_per_metre_H_per_m * capacitance_per_metre_F_per_m); }
 
+bool uses_common_pin(const DriverSpec& s) {
+  if (s.clamp.kind == ClampKind::common_pin) return true;
+  return std::any_of(s.channels.begin(), s.channels.end(), [](const ChannelSpec& c) { return c.clamp.kind == ClampKind::common_pin; });
+}
+
+DriverSpec channel_driver_spec(const DriverSpec& s, std::size_t k) {
+  DriverSpec one = s;
+  one.channels.clear();
+  if (k == 0) return one;
+  const ChannelSpec& ch = s.channels.at(k - 1);
+  one.drive = ch.drive;
+  one.switch_ = ch.switch_;
+  one.coil = ch.coil;
+  one.clamp = ch.clamp;
+  return one;
+}
+
+double last_edge_end_s(const DriverSpec& s) {
+  double t = s.drive.switch_off_at_s + s.drive.fall_time_s;
+  for (const auto& ch : s.channels) t = std::max(t, ch.drive.switch_off_at_s + ch.drive.fall_time_s);
+  return t;
+}
+
+namespace {
+// Several channels (DriverSpec::channels): unique names that can prefix node names, and what
+// the first version of channels does not combine with.
+void check_channels(const DriverSpec& s) {
+  std::vector<std::string> seen;
+  for (const auto& ch : s.channels) {
+    const std::string owner = "channel '" + ch.name + "'";
+    if (ch.name.empty()) throw std::invalid_argument("channel: every channel needs a name");
+    for (char c : ch.name) {
+      if (!(std::isalnum(static_cast<unsigned char>(c)) || c == '_')) {
+        throw std::invalid_argument(owner + ": a channel name is letters, digits and '_' (it prefixes node names)");
+      }
+    }
+    if (std::find(seen.begin(), seen.end(), ch.name) != seen.end()) throw std::invalid_argument(owner + ": the name is given twice");
+    seen.push_back(ch.name);
+  }
+  for (std::size_t k = 0; k <= s.channels.size(); ++k) {
+    const DriverSpec one = channel_driver_spec(s, k);
+    const std::string owner = k == 0 ? "clamp" : "channel '" + s.channels[k - 1].name + "': clamp";
+    if (one.clamp.kind != ClampKind::common_pin) continue;
+    if (one.switch_.topology == Topology::high_side_pnp || one.switch_.topology == Topology::high_side_pmos) {
+      throw std::invalid_argument(owner + ": kind common_pin is for low-side switches (the pin is above the coils)");
+    }
+  }
+  if (s.channels.empty()) return;
+  auto refuse = [](bool has, const char* what) {
+    if (has) throw std::invalid_argument(std::string("channel: several channels do not yet combine with ") + what);
+  };
+  refuse(s.cable.present(), "a cable (each coil's own pair and the shared return core are not modelled yet)");
+  refuse(s.relay.armature_model, "the relay armature model");
+  refuse(s.has_periodic_drive(), "a hold or a repetition");
+}
+}  // namespace
+
 void check_driver_spec(const DriverSpec& s) {
+  check_channels(s);
+  for (std::size_t k = 1; k <= s.channels.size(); ++k) {
+    try {
+      check_driver_spec(channel_driver_spec(s, k));
+    } catch (const std::invalid_argument& e) {
+      throw std::invalid_argument("channel '" + s.channels[k - 1].name + "': " + e.what());
+    }
+  }
   using engine::require_non_negative;
   using engine::require_positive;
   require_positive("supply", "voltage_V", s.supply.voltage_V);

@@ -148,10 +148,12 @@ struct RelaySpec {
 };
 
 enum class ClampKind {
-  none, diode, diode_zener, diode_resistor, rc_across_coil, rc_across_switch, tvs_across_switch, active_clamp
+  none, diode, diode_zener, diode_resistor, rc_across_coil, rc_across_switch, tvs_across_switch, active_clamp,
+  common_pin  // a diode from the switched end to the board's common clamp pin (CommonClampSpec)
 };
 ClampKind parse_clamp_kind(const std::string& word);
 std::string to_string(ClampKind k);
+// The clamps a comparison tries: every kind but common_pin (the board's wiring, not one channel's choice).
 const std::vector<ClampKind>& all_clamp_kinds();
 
 struct ClampSpec {
@@ -203,6 +205,28 @@ struct ExtraPart {
   Overrides overrides;
 };
 
+// The board's common clamp pin, as on a driver array: every channel whose clamp is `common_pin`
+// has its diode from its switched end to this pin, and the pin goes to the rail through one
+// shared Zener (or TVS) — or straight to the rail without one (plain flyback diodes). Low-side
+// channels only.
+struct CommonClampSpec {
+  std::string zener_part;  // catalogue Zener or TVS, cathode at the pin; empty: the pin is the rail
+  Overrides zener_overrides;
+};
+
+// One more coil on the same board (DriverSpec::channels): its own drive edge, switch, coil and
+// clamp, sharing the supply (and its impedance and bulk capacitor) and the common clamp pin with
+// the top-level channel. Its fields start as the top-level channel's and the scenario replaces
+// what it names. Its nodes and elements are the top-level ones' names behind "<name>."
+// ("fan.switch", "fan.coil").
+struct ChannelSpec {
+  std::string name;
+  DriveSpec drive;
+  SwitchSpec switch_;
+  CoilSpec coil;
+  ClampSpec clamp;
+};
+
 struct DriverSpec {
   std::string name = "driver";
   SupplySpec supply;
@@ -214,6 +238,9 @@ struct DriverSpec {
   RelaySpec relay;
   AnalysisSpec analysis;
   std::vector<ExtraPart> extra_parts;
+  // Further channels on the board; the top-level drive/switch/coil/clamp are the first channel.
+  std::vector<ChannelSpec> channels;
+  CommonClampSpec common_clamp;
   HoldSpec hold;
   RepeatSpec repeat;
   // A hold or a repetition: the drive before the final switch-off is periodic (drivers/hold.hpp).
@@ -222,7 +249,16 @@ struct DriverSpec {
   HoldSpec periodic_drive() const;
 };
 
-// Throws std::invalid_argument naming the field (e.g. "coil.inductance_H must be > 0").
+// Channel k of the board (0: the top-level one) as a driver of its own: the top-level spec with
+// that channel's drive, switch, coil and clamp, and no further channels.
+DriverSpec channel_driver_spec(const DriverSpec& s, std::size_t k);
+// Some channel's clamp is common_pin (the common Zener is built only then).
+bool uses_common_pin(const DriverSpec& s);
+// Every channel's switch-off edge has ended by then.
+double last_edge_end_s(const DriverSpec& s);
+
+// Throws std::invalid_argument naming the field (e.g. "coil.inductance_H must be > 0"; in a
+// further channel "channel 'fan': coil.inductance_H ...").
 void check_driver_spec(const DriverSpec& s);
 
 // Hot-coil resistance (IEC 60028) and the release current (from current or voltage).

@@ -45,6 +45,8 @@ const std::vector<std::string>& metric_names() {
       "ringing_frequency_Hz", "clamp_average_power_W",
       // the supply rail (0 for an ideal supply)
       "supply_rail_peak_rise_V", "supply_rail_dip_V", "supply_energy_returned_J",
+      // the board's common clamp pin (NaN without its Zener)
+      "common_clamp_energy_J", "common_clamp_current_peak_A",
       // peak-and-hold drive (NaN without it)
       "hold_pull_in_time_s", "hold_pull_in_current_A", "hold_duty", "hold_average_current_A", "hold_ripple_A",
       "hold_minimum_current_A", "hold_current_margin", "hold_clamp_average_power_W", "hold_switch_average_power_W",

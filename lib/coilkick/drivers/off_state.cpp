@@ -9,9 +9,8 @@
 
 namespace coilkick::drivers {
 
-OffState solve_off_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, double on_coil_current_A) {
-  OffState s;
-  const double t = spec.drive.switch_off_at_s + spec.drive.fall_time_s;  // the drive has reached its low level
+engine::CircuitState solve_off_point(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c) {
+  const double t = last_edge_end_s(spec);  // every drive has reached its low level
   // Relays released is the usual off-state; where the coil stays energised (a shorted switch) the
   // armature stays operated, and Newton is started from that side instead.
   engine::CircuitState off;
@@ -25,8 +24,19 @@ OffState solve_off_state(const DriverSpec& spec, const BuiltDriver& b, const eng
       throw released_failed;
     }
   }
+  return off;
+}
+
+OffState solve_off_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, double on_coil_current_A) {
+  return read_off_state(spec, b, b.network, c, solve_off_point(spec, b, c), on_coil_current_A);
+}
+
+OffState read_off_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Network& board, const engine::Circuit& c,
+                        const engine::CircuitState& off, double on_coil_current_A) {
+  OffState s;
+  const double t = off.time_s;
   const double* x = off.values.data();
-  s.coil_current_A = x[c.state_index("coil.current")];
+  s.coil_current_A = x[c.state_index(b.local("coil.current"))];
   if (std::abs(s.coil_current_A) < kBlockingCurrentFraction * std::abs(on_coil_current_A)) return s;
   s.blocks = false;
   // Name the part that carries it: the switch or clamp element with the largest current.
@@ -39,7 +49,7 @@ OffState solve_off_state(const DriverSpec& spec, const BuiltDriver& b, const eng
     const int e = c.element_index(name);
     const double i = std::abs(c.terminal_currents_A(e, t, x, w)[0]);
     if (i > most) {
-      const auto& terms = b.network.element(name).terminals();
+      const auto& terms = board.element(name).terminals();
       most = i;
       who = name;
       across = std::abs(c.node_voltage_V(terms[0], t, x) - c.node_voltage_V(terms[terms.size() > 2 ? 2 : 1], t, x));

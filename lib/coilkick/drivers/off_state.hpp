@@ -8,6 +8,7 @@
 
 #include "coilkick/drivers/driver_network.hpp"
 #include "coilkick/drivers/driver_spec.hpp"
+#include "coilkick/engine/state.hpp"
 #include "coilkick/engine/circuit.hpp"
 
 namespace coilkick::drivers {
@@ -23,5 +24,10 @@ struct OffState {
 
 // Throws engine::SimulationError if the operating point cannot be solved.
 OffState solve_off_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, double on_coil_current_A);
+// The board's off-state: the DC point once every channel's drive is low (relays released).
+engine::CircuitState solve_off_point(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c);
+// One channel's reading of it (`b` may be a further channel's view; `board` the whole network).
+OffState read_off_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Network& board, const engine::Circuit& c,
+                        const engine::CircuitState& off, double on_coil_current_A);
 
 }  // namespace coilkick::drivers

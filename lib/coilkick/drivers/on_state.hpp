@@ -23,5 +23,7 @@ double switch_voltage_V(const BuiltDriver& b, const engine::Circuit& c, double t
 
 // Throws engine::SimulationError if the operating point cannot be solved.
 OnState solve_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c);
+// One channel's reading of the board's on-state (`b` may be a further channel's view).
+OnState read_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, const engine::CircuitState& state);
 
 }  // namespace coilkick::drivers

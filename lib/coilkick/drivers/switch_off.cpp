@@ -1,5 +1,8 @@
 #include "coilkick/drivers/switch_off.hpp"
 
+#include <algorithm>
+#include <cmath>
+
 #include "coilkick/drivers/off_state.hpp"
 #include "coilkick/drivers/on_state.hpp"
 #include "coilkick/drivers/switch_off_checks.hpp"
@@ -14,27 +17,59 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Cat
 
 SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b) {
   const engine::Circuit circuit(b.network);
-  const OnState on = solve_on_state(spec, b, circuit);
-  const OffState off = solve_off_state(spec, b, circuit, on.coil_current_A);
+  // Every channel reads the board's on-state and off-state (one DC point each).
+  std::vector<ChannelRun> channels;
+  channels.push_back({channel_driver_spec(spec, 0), &b, solve_on_state(spec, b, circuit), {}});
+  const engine::CircuitState off_point = solve_off_point(spec, b, circuit);
+  for (std::size_t k = 0; k < b.channels.size(); ++k) {
+    const DriverSpec one = channel_driver_spec(spec, k + 1);
+    channels.push_back({one, &b.channels[k], read_on_state(one, b.channels[k], circuit, channels.front().on.state), {}});
+  }
+  for (auto& ch : channels) ch.off = read_off_state(ch.spec, *ch.built, b.network, circuit, off_point, ch.on.coil_current_A);
+  const OnState& on = channels.front().on;
+  const OffState& off = channels.front().off;
+
   SwitchOffResult out;
   // With a hold the switch-off starts from the PWM's steady state instead of the DC on-state —
   // where the driver blocks at all (otherwise off_state_blocks fails and says why; a hold of a
-  // coil that never de-energises has no steady period to speak of).
-  OnState start = on;
+  // coil that never de-energises has no steady period to speak of). (One channel only.)
+  engine::CircuitState start = on.state;
   if (spec.has_periodic_drive() && off.blocks) {
     out.hold = std::make_shared<const HoldResult>(solve_hold(spec, b));
-    start.state = out.hold->final_start;
-    start.coil_current_A = start.state.values[circuit.state_index("coil.current")];
+    start = out.hold->final_start;
+    channels.front().on.state = start;
+    channels.front().on.coil_current_A = start.values[circuit.state_index("coil.current")];
   }
-  const SwitchOffTransient run = run_switch_off_transient(spec, b, circuit, start, off);
-  SwitchOffMeasures measures = measure_switch_off(spec, b, start, off, *run.result);
-  set_hold_metrics(spec, out.hold.get(), measures.metrics);
+  const SwitchOffTransient run = run_switch_off_transient(channels, circuit, start);
 
   out.spec = spec;
   out.transient = run.result;
-  out.metrics = measures.metrics;
-  out.waveforms = switch_off_waveforms(b, *run.result);
-  out.checks = switch_off_checks(spec, b, measures, off, run.decay_observed, on.control_voltage_V, out.hold.get());
+  bool all_block = true;
+  double slowest_decay_s = 0.0;
+  for (const auto& ch : channels) {
+    SwitchOffMeasures measures = measure_switch_off(ch.spec, *ch.built, ch.on, ch.off, *run.result);
+    ChannelResult r;
+    r.name = ch.built->prefix.empty() ? "" : ch.built->prefix.substr(0, ch.built->prefix.size() - 1);
+    r.metrics = measures.metrics;
+    r.waveforms = switch_off_waveforms(*ch.built, *run.result);
+    r.checks = switch_off_checks(ch.spec, *ch.built, measures, ch.off, run.decay_observed, ch.on.control_voltage_V,
+                                 &ch == &channels.front() ? out.hold.get() : nullptr);
+    all_block = all_block && ch.off.blocks;
+    slowest_decay_s = std::max(slowest_decay_s, r.metrics.get("current_decay_time_10pct_s"));
+    if (&ch == &channels.front()) set_hold_metrics(spec, out.hold.get(), r.metrics);
+    out.channels.push_back(std::move(r));
+  }
+  // The board's metrics and checks: the common clamp pin, from the first edge on.
+  double first_edge = spec.drive.switch_off_at_s;
+  for (const auto& ch : channels) first_edge = std::min(first_edge, ch.spec.drive.switch_off_at_s);
+  for (auto& r : out.channels) measure_common_clamp(b, *run.result, first_edge, all_block, r.metrics);
+  const auto common_checks = common_clamp_checks(b, out.channels.front().metrics, slowest_decay_s);
+  out.channels.front().checks.insert(out.channels.front().checks.end(), common_checks.begin(), common_checks.end());
+
+  out.metrics = out.channels.front().metrics;
+  out.checks = out.channels.front().checks;
+  out.waveforms = out.channels.front().waveforms;
+  if (out.channels.size() == 1) out.channels.clear();
   return out;
 }
 

@@ -8,8 +8,11 @@
 //  3. transient: the drive's falling edge at drive.switch_off_at_s, events, stop rule (switch_off_transient.hpp);
 //  4. metrics and waveforms (switch_off_metrics.hpp);
 //  5. rating checks (switch_off_checks.hpp).
-// Every time metric is measured from the start of the drive's switch-off edge.
+// Every time metric is measured from the start of the drive's switch-off edge (each channel's own).
+// A board of several channels (DriverSpec::channels) runs as one circuit: one on-state, one
+// off-state, one transient in which every channel's edge falls; each channel is measured on it.
 #include <memory>
+#include <string>
 #include <vector>
 
 #include "coilkick/catalogue/catalogue.hpp"
@@ -23,11 +26,22 @@
 
 namespace coilkick::drivers {
 
+// One channel of a board of several (DriverSpec::channels).
+struct ChannelResult {
+  std::string name;  // "" for the first (top-level) channel
+  Metrics metrics;   // the channel's own, and the board's (rail, common clamp) as in every channel
+  std::vector<RatingCheck> checks;
+  SwitchOffWaveforms waveforms;
+};
+
 struct SwitchOffResult {
   DriverSpec spec;
+  // The first channel's (with one channel: the driver's), with the board's metrics and checks.
   Metrics metrics;
   std::vector<RatingCheck> checks;
   SwitchOffWaveforms waveforms;
+  // With further channels: every channel, the first one first (empty with one channel).
+  std::vector<ChannelResult> channels;
   std::shared_ptr<const engine::TransientResult> transient;  // everything else (all nodes, energies)
   std::shared_ptr<const HoldResult> hold;                    // with a hold drive (null otherwise)
 };

@@ -274,4 +274,25 @@ std::vector<RatingCheck> switch_off_checks(const DriverSpec& spec, const BuiltDr
   return k.out;
 }
 
+std::vector<RatingCheck> common_clamp_checks(const BuiltDriver& board, const Metrics& m, double conduction_s) {
+  std::vector<RatingCheck> out;
+  const auto* part = board.common_clamp_part;
+  if (!part) return out;
+  const double e = m.get("common_clamp_energy_J");
+  const std::string tag = ":" + part->name;
+  if (part->has_rating("peak_pulse_power") && !std::isnan(conduction_s) && conduction_s > 0.0) {
+    const double lim = part->rating("peak_pulse_power");
+    out.push_back(graded("common_clamp_pulse_power" + tag, e / conduction_s, 0.8 * lim, lim, "W",
+                         "the common Zener's average power while the slowest coil decays to 10 % against 80 % of its peak pulse power rating " +
+                             si(lim, "W")));
+  }
+  if (part->has_rating("pulse_energy")) {
+    const double lim = part->rating("pulse_energy");
+    out.push_back(graded("common_clamp_energy" + tag, e, 0.8 * lim, lim, "J",
+                         "the common Zener's heat from every channel's switch-off in the run against 80 % of its pulse energy rating " +
+                             si(lim, "J")));
+  }
+  return out;
+}
+
 }  // namespace coilkick::drivers

@@ -21,4 +21,8 @@ std::vector<RatingCheck> switch_off_checks(const DriverSpec& spec, const BuiltDr
                                            const OffState& off, bool decay_observed, double gate_source_on_V,
                                            const HoldResult* hold = nullptr);
 
+// The board's common clamp Zener (BuiltDriver::common_clamp_part) against its pulse ratings; its
+// conduction taken as the slowest channel's decay to 10 %. Empty without one.
+std::vector<RatingCheck> common_clamp_checks(const BuiltDriver& board, const Metrics& m, double conduction_s);
+
 }  // namespace coilkick::drivers

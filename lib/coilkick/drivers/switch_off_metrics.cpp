@@ -79,15 +79,16 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
   m.set("coil_voltage_on_V", on.coil_voltage_V);
   m.set("logic_pin_current_A", on.logic_pin_current_A);
 
-  const auto& peak = r.event("peak");
+  auto event = [&](const char* name) -> const engine::EventOutcome& { return r.event(b.local(name)); };
+  const auto& peak = event("peak");
   m.set("switch_voltage_peak_V", peak.value);
   m.set("switch_voltage_peak_time_s", since_off(peak));
   const char* rating_key = b.mosfet ? "drain_source_voltage" : "collector_emitter_voltage";
   const double rating = b.switch_part->has_rating(rating_key) ? b.switch_part->rating(rating_key) : kNaN;
   m.set("switch_voltage_rating_V", rating);
   m.set("switch_voltage_margin", peak.value / rating);
-  m.set("clamp_current_peak_A", b.clamp_current_element.empty() ? kNaN : r.event("clamp_peak").value);
-  m.set("coil_end_peak_V", r.event("coil_end_peak").value);
+  m.set("clamp_current_peak_A", b.clamp_current_element.empty() ? kNaN : event("clamp_peak").value);
+  m.set("coil_end_peak_V", event("coil_end_peak").value);
 
   // Energies over the switch-off: only where the off-state blocks (see the header).
   const Eigen::VectorXd x_off = r.sample(t_off);
@@ -97,7 +98,7 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
   };
   const double e_clamp = b.clamp_elements.empty() ? 0.0 : energy(b.clamp_elements);
   m.set("clamp_energy_J", e_clamp);
-  m.set("coil_resistance_energy_J", energy({"coil"}));
+  m.set("coil_resistance_energy_J", energy({b.local("coil")}));
   m.set("switch_energy_J", energy(b.switch_elements));
   m.set("switch_breakdown_energy_J", energy(b.switch_elements, "breakdown_heat"));
   m.set("extra_parts_energy_J", b.extra_elements.empty() ? 0.0 : energy(b.extra_elements));
@@ -118,9 +119,9 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
     m.set("supply_rail_dip_V", dip);
     m.set("supply_energy_returned_J", off.blocks ? -supply_energy_between(c, x_off, x_end) : kNaN);
   }
-  m.set("release_time_s", std::isnan(i_rel) ? kNaN : since_off(r.event("release")));
-  m.set("current_decay_time_10pct_s", since_off(r.event("decay10")));
-  m.set("switch_off_delay_s", since_off(r.event("off_delay")));
+  m.set("release_time_s", std::isnan(i_rel) ? kNaN : since_off(event("release")));
+  m.set("current_decay_time_10pct_s", since_off(event("decay10")));
+  m.set("switch_off_delay_s", since_off(event("off_delay")));
   {
     // Ringing: after the peak, v_sw − V_s falls through zero and comes back up half a period later.
     double f = kNaN;
@@ -136,10 +137,10 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
     // Contact opening (armature model): time from the switch-off edge, armature speed there.
     double t_open = kNaN, speed = kNaN, t_operate = kNaN;
     if (b.armature) {
-      const auto& e = r.event("contact_open");
+      const auto& e = event("contact_open");
       if (e.time_s) {
         t_open = *e.time_s - t_off;
-        speed = r.sample(*e.time_s)[c.state_index("coil.velocity")];
+        speed = r.sample(*e.time_s)[c.state_index(b.local("coil.velocity"))];
       }
       // A driver whose off-state keeps the coil energised never releases the relay: there is no
       // switch-on to time.
@@ -152,6 +153,17 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
   return out;
 }
 
+void measure_common_clamp(const BuiltDriver& board, const engine::TransientResult& r, double t_off_s, bool blocks, Metrics& m) {
+  double e = kNaN, i_pk = kNaN;
+  if (!board.common_clamp_element.empty()) {
+    i_pk = r.event("common_clamp_peak").value;
+    const Eigen::VectorXd x_end = r.states().row(r.states().rows() - 1).transpose();
+    if (blocks) e = heat_between(r.circuit(), r.sample(t_off_s), x_end, {board.common_clamp_element});
+  }
+  m.set("common_clamp_energy_J", e);
+  m.set("common_clamp_current_peak_A", i_pk);
+}
+
 SwitchOffWaveforms switch_off_waveforms(const BuiltDriver& b, const engine::TransientResult& r) {
   const auto& c = r.circuit();
   const auto n = static_cast<Eigen::Index>(r.times_s().size());
@@ -161,8 +173,8 @@ SwitchOffWaveforms switch_off_waveforms(const BuiltDriver& b, const engine::Tran
   for (Eigen::Index k = 0; k < n; ++k) {
     wf.switch_voltage_V[k] = switch_voltage_V(b, c, r.times_s()[static_cast<std::size_t>(k)], r.states().row(k).data());
   }
-  wf.coil_current_A = r.state("coil.current");
-  if (b.armature) wf.armature_gap_m = r.state("coil.gap");
+  wf.coil_current_A = r.state(b.local("coil.current"));
+  if (b.armature) wf.armature_gap_m = r.state(b.local("coil.gap"));
   wf.clamp_current_A = b.clamp_current_element.empty() ? Eigen::VectorXd::Zero(n) : r.element_current_A(b.clamp_current_element, 0);
   return wf;
 }

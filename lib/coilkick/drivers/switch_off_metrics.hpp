@@ -32,6 +32,11 @@ struct SwitchOffMeasures {
 SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& b, const OnState& on, const OffState& off,
                                      const engine::TransientResult& r);
 
+// The board's common clamp pin (BuiltDriver::common_clamp_element): its Zener's heat from t_off_s
+// to the end (every channel that switches off in the run) and its peak current; NaN without one
+// (energy NaN too where the off-state does not block).
+void measure_common_clamp(const BuiltDriver& board, const engine::TransientResult& r, double t_off_s, bool blocks, Metrics& m);
+
 SwitchOffWaveforms switch_off_waveforms(const BuiltDriver& b, const engine::TransientResult& r);
 
 }  // namespace coilkick::drivers

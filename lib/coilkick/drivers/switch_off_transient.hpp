@@ -1,6 +1,6 @@
 #pragma once
-// Stage 3 of a switch-off: the transient from the on-state through the drive's falling edge —
-// what it watches (events) and when it stops.
+// Stage 3 of a switch-off: the transient from the on-state through the drive's falling edge (every
+// channel's, on a board of several) — what it watches (events) and when it stops.
 //
 // Stop rule. With analysis.stop_when_decayed the run ends once the energy left in the coil and
 // at the switch node is a small fraction of ½·L·I0² (never before the drive's edge is over, and
@@ -32,5 +32,19 @@ struct SwitchOffTransient {
 // Throws engine::SimulationError if the integration fails.
 SwitchOffTransient run_switch_off_transient(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c,
                                             const OnState& on, const OffState& off);
+
+// One channel of a board (DriverSpec::channels): its own view of the spec (channel_driver_spec),
+// of the built network (BuiltDriver::channels), its on- and off-state readings.
+struct ChannelRun {
+  DriverSpec spec;
+  const BuiltDriver* built;
+  OnState on;
+  OffState off;
+};
+// The board's switch-off from `start`: every channel's events (named built->local(...)), the
+// board's (rail, common clamp); the run ends once every channel has decayed. The first channel's
+// analysis settings apply. decay_observed: in every channel.
+SwitchOffTransient run_switch_off_transient(const std::vector<ChannelRun>& channels, const engine::Circuit& c,
+                                            const engine::CircuitState& start);
 
 }  // namespace coilkick::drivers
