@@ -76,6 +76,27 @@ void DefineResults(py::module_& m) {
             return py::array_t<double>(static_cast<py::ssize_t>(v.size()), v.data());
           },
           py::arg("node"), "voltage of a node (V) at time_s (a copy); nodes: supply, logic, base, switch ...")
+      .def_property_readonly(
+          "channels",
+          [](const PyRun& p) {
+            py::list l;
+            for (const auto& ch : p.r->channels) {
+              py::dict d;
+              d["name"] = ch.name.empty() ? "first" : ch.name;
+              d["metrics"] = metrics_dict(ch.metrics);
+              d["checks"] = checks_list(ch.checks);
+              d["overall"] = drivers::to_string(drivers::overall_status(ch.checks));
+              d["time_s"] = py::array_t<double>(ch.waveforms.time_s.size(), ch.waveforms.time_s.data());
+              d["switch_voltage_V"] = py::array_t<double>(ch.waveforms.switch_voltage_V.size(), ch.waveforms.switch_voltage_V.data());
+              d["coil_current_A"] = py::array_t<double>(ch.waveforms.coil_current_A.size(), ch.waveforms.coil_current_A.data());
+              l.append(d);
+            }
+            return l;
+          },
+          "a board of several channels (scenario [[channel]]): one dict per channel, the first (top-level) channel "
+          "first — 'name', 'metrics', 'checks', 'overall', waveforms 'time_s', 'switch_voltage_V', 'coil_current_A' "
+          "(copies); empty with one channel. metrics/checks/overall above are the first channel's with the board's, "
+          "checks every channel's")
       .def_property_readonly("node_names", [](const PyRun& p) { return p.r->transient->circuit().node_names(); })
       .def_property_readonly("switch_off_at_s", [](const PyRun& p) { return p.r->spec.drive.switch_off_at_s; },
                              "start of the switch-off edge (s)")

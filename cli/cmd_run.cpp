@@ -43,6 +43,12 @@ void write_waveforms(const drivers::SwitchOffResult& r, const std::string& path)
   const auto& t = *r.transient;
   const auto& c = t.circuit();
   f << csv_caution_comment() << "time_s,switch_voltage_V,coil_current_A,clamp_current_A";
+  // Further channels: their own switch voltage and coil current (every node's voltage follows).
+  std::vector<const drivers::ChannelResult*> more;
+  for (std::size_t k = 1; k < r.channels.size(); ++k) {
+    more.push_back(&r.channels[k]);
+    f << "," << r.channels[k].name << ".switch_voltage_V," << r.channels[k].name << ".coil_current_A";
+  }
   std::vector<std::string> nodes = c.node_names();
   for (const auto& n : nodes) f << ",node_" << n << "_V";
   f << "\n";
@@ -50,10 +56,35 @@ void write_waveforms(const drivers::SwitchOffResult& r, const std::string& path)
   for (Eigen::Index i = 0; i < w.time_s.size(); ++i) {
     f << csv_number(w.time_s[i]) << "," << csv_number(w.switch_voltage_V[i]) << "," << csv_number(w.coil_current_A[i]) << ","
       << csv_number(w.clamp_current_A[i]);
+    for (const auto* ch : more) f << "," << csv_number(ch->waveforms.switch_voltage_V[i]) << "," << csv_number(ch->waveforms.coil_current_A[i]);
     const double* x = t.states().row(i).data();
     for (const auto& n : nodes) f << "," << csv_number(c.node_voltage_V(n, w.time_s[i], x));
     f << "\n";
   }
+}
+
+std::string channel_label(const drivers::ChannelResult& ch) { return ch.name.empty() ? "first" : ch.name; }
+
+// A board of several channels: one line per channel, then the common clamp pin.
+void channel_table(std::ostream& out, const drivers::SwitchOffResult& r) {
+  out << "Channels (each from its own switch-off edge; the first channel is the top-level tables)\n";
+  const std::vector<std::pair<const char*, const char*>> cols{{"coil current", "coil_current_at_switch_off_A"},
+                                                              {"switch peak", "switch_voltage_peak_V"},
+                                                              {"coil peak", "coil_end_peak_V"},
+                                                              {"clamp energy", "clamp_energy_J"},
+                                                              {"release", "release_time_s"},
+                                                              {"to 10 %", "current_decay_time_10pct_s"}};
+  out << "  " << std::left << std::setw(14) << "channel";
+  for (const auto& [label, metric] : cols) out << std::setw(14) << label;
+  out << "checks\n";
+  for (const auto& ch : r.channels) {
+    out << "  " << std::setw(14) << channel_label(ch);
+    for (const auto& [label, metric] : cols) out << std::setw(14) << metric_text(metric, ch.metrics.get(metric));
+    out << status_word(drivers::overall_status(ch.checks)) << "\n";
+  }
+  out << "  the common clamp pin's Zener: " << metric_text("common_clamp_energy_J", r.metrics.get("common_clamp_energy_J"))
+      << " (common_clamp_energy_J), peak " << metric_text("common_clamp_current_peak_A", r.metrics.get("common_clamp_current_peak_A"))
+      << " (common_clamp_current_peak_A)\n";
 }
 
 }  // namespace
@@ -63,7 +94,8 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
   const auto& d = l.scenario.driver;
   const auto r = drivers::simulate_switch_off(d, l.parts);
   if (!waveforms_csv.empty()) write_waveforms(r, waveforms_csv);
-  const auto status = drivers::overall_status(r.checks);
+  const auto& checks = r.checks;
+  const auto status = drivers::overall_status(checks);
   if (o.json) {
     nlohmann::json j{{"scenario", d.name},
                      {"file", o.file},
@@ -73,11 +105,19 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
                      {"clamp_parts", drivers::describe_clamp_parts(d.clamp)},
                      {"model_level", devices::to_string(d.analysis.model_level)},
                      {"metrics", metrics_json(r.metrics)},
-                     {"checks", checks_json(r.checks)},
+                     {"checks", checks_json(checks)},
                      {"overall", drivers::to_string(status)},
                      {"solver", {{"accepted_steps", r.transient->statistics().accepted_steps},
                                  {"rejected_steps", r.transient->statistics().rejected_steps}}},
                      {"caution", kCaution}};
+    if (!r.channels.empty()) {
+      nlohmann::json a = nlohmann::json::array();
+      for (const auto& ch : r.channels) {
+        a.push_back({{"name", channel_label(ch)}, {"metrics", metrics_json(ch.metrics)}, {"checks", checks_json(ch.checks)},
+                     {"overall", drivers::to_string(drivers::overall_status(ch.checks))}});
+      }
+      j["channels"] = a;
+    }
     if (d.relay.armature_model) {
       nlohmann::json a = nlohmann::json::array();
       for (const auto& t : relay::calibrate_relay_cached(drivers::relay_datasheet(d)).targets) {
@@ -90,6 +130,7 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
     out << "coilkick run — " << d.name << " (" << o.file << ")\n"
         << drivers::to_string(d.switch_.topology) << " with " << d.switch_.part << ", clamp " << drivers::to_string(d.clamp.kind)
         << " (" << drivers::describe_clamp_parts(d.clamp) << "), " << devices::to_string(d.analysis.model_level) << " models\n\n";
+    if (!r.channels.empty()) out << "The first channel in full (the others below, under Channels)\n\n";
     section(out, "On-state", {{"coil current", "coil_current_at_switch_off_A"}, {"drive current (base/gate)", "drive_current_A"},
                               {"forced gain", "forced_beta"}, {"switch voltage", "switch_saturation_voltage_V"},
                               {"coil voltage", "coil_voltage_on_V"}, {"logic pin current", "logic_pin_current_A"}}, r.metrics);
@@ -115,6 +156,14 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
                {"  over the release current", "hold_current_margin"}, {"clamp average power", "hold_clamp_average_power_W"},
                {"switch average power", "hold_switch_average_power_W"}, {"supply energy per period", "hold_supply_energy_per_period_J"},
                {"clamp energy per period", "hold_clamp_energy_per_period_J"}},
+              r.metrics);
+    }
+    if (!r.channels.empty()) {
+      out << "\n";
+      channel_table(out, r);
+    } else if (drivers::uses_common_pin(d) && !d.common_clamp.zener_part.empty()) {
+      out << "\n";
+      section(out, "The common clamp pin", {{"energy into its Zener", "common_clamp_energy_J"}, {"its peak current", "common_clamp_current_peak_A"}},
               r.metrics);
     }
     if (!d.supply.rail_is_ideal() || !d.extra_parts.empty() || d.cable.present()) {
@@ -143,7 +192,7 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
       }
     }
     out << "\nRating checks\n";
-    for (const auto& c : r.checks) {
+    for (const auto& c : checks) {
       out << "  " << status_word(c.status) << "  " << std::left << std::setw(36) << c.name << " " << std::setw(12)
           << metric_text("x_" + c.unit, c.value) << " limit " << std::setw(12) << metric_text("x_" + c.unit, c.limit);
       if (!std::isnan(c.fail_limit)) out << "(fails beyond " << metric_text("x_" + c.unit, c.fail_limit) << ") ";

@@ -242,14 +242,20 @@ void check_channels(const DriverSpec& s) {
 }  // namespace
 
 void check_driver_spec(const DriverSpec& s) {
-  check_channels(s);
-  for (std::size_t k = 1; k <= s.channels.size(); ++k) {
-    try {
-      check_driver_spec(channel_driver_spec(s, k));
-    } catch (const std::invalid_argument& e) {
-      throw std::invalid_argument("channel '" + s.channels[k - 1].name + "': " + e.what());
+  if (!s.channels.empty()) {
+    // The first channel (and the board) as a driver of its own, then what channels add.
+    check_driver_spec(channel_driver_spec(s, 0));
+    check_channels(s);
+    for (std::size_t k = 1; k <= s.channels.size(); ++k) {
+      try {
+        check_driver_spec(channel_driver_spec(s, k));
+      } catch (const std::invalid_argument& e) {
+        throw std::invalid_argument("channel '" + s.channels[k - 1].name + "': " + e.what());
+      }
     }
+    return;
   }
+  check_channels(s);
   using engine::require_non_negative;
   using engine::require_positive;
   require_positive("supply", "voltage_V", s.supply.voltage_V);

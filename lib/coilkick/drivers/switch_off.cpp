@@ -67,7 +67,16 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   out.channels.front().checks.insert(out.channels.front().checks.end(), common_checks.begin(), common_checks.end());
 
   out.metrics = out.channels.front().metrics;
+  // Every check of the board: the first channel's and the board's as they are, a further
+  // channel's behind its name ("pump: switch_voltage"; the run's accuracy once).
   out.checks = out.channels.front().checks;
+  for (std::size_t k = 1; k < out.channels.size(); ++k) {
+    for (auto c : out.channels[k].checks) {
+      if (c.name == "accuracy") continue;
+      c.name = out.channels[k].name + ": " + c.name;
+      out.checks.push_back(std::move(c));
+    }
+  }
   out.waveforms = out.channels.front().waveforms;
   if (out.channels.size() == 1) out.channels.clear();
   return out;

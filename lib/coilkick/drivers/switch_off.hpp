@@ -36,8 +36,10 @@ struct ChannelResult {
 
 struct SwitchOffResult {
   DriverSpec spec;
-  // The first channel's (with one channel: the driver's), with the board's metrics and checks.
+  // The first channel's metrics (with one channel: the driver's), with the board's.
   Metrics metrics;
+  // Every check: the first channel's, the board's, and a further channel's behind its name
+  // ("pump: switch_voltage").
   std::vector<RatingCheck> checks;
   SwitchOffWaveforms waveforms;
   // With further channels: every channel, the first one first (empty with one channel).

@@ -4,6 +4,7 @@
 #include <cctype>
 #include <cmath>
 #include <limits>
+#include <map>
 #include <filesystem>
 #include <fstream>
 #include <functional>
@@ -79,11 +80,17 @@ class Reader {
         read_extra_parts(v);
         continue;
       }
-      static const std::vector<std::string> sections{"supply", "cable", "drive", "hold", "repeat", "switch", "coil", "clamp", "relay", "analysis", "tolerances"};
+      if (key == "channel") {
+        channels = &v;  // read once the first channel is complete: they start from it
+        continue;
+      }
+      static const std::vector<std::string> sections{"supply", "cable", "drive", "hold", "repeat", "switch", "coil", "clamp",
+                                                     "common_clamp", "relay", "analysis", "tolerances"};
       if (std::find(sections.begin(), sections.end(), key) == sections.end()) {
         std::vector<std::string> top = sections;
         top.push_back("name");
         top.push_back("extra_part");
+        top.push_back("channel");
         fail(where(file_, v), key, "unknown section or key" + engine::did_you_mean(key, top));
       }
       if (!v.is_table()) fail(where(file_, v), key, std::string("must be a table [") + key + "], not " + type_name(v));
@@ -99,8 +106,73 @@ class Reader {
     require_keys(doc);
     check_ranges();
     if (s_.driver.relay.armature_model) drivers::freeze_relay_datasheet(s_.driver);
+    if (channels) read_channels(*channels);
     validate_spec();
     return s_;
+  }
+
+  // [[channel]] tables: a name, and [channel.drive], [channel.switch], [channel.coil],
+  // [channel.clamp] with the top-level tables' keys, each replacing the first channel's value.
+  // Each is read by a reader of its own that starts from the first channel; its keys' positions
+  // are kept as "channel.<name>.<key>".
+  void read_channels(const toml::node& v) {
+    if (!v.is_array_of_tables()) fail(where(file_, v), "channel", std::string("must be an array of tables [[channel]], not ") + type_name(v));
+    for (const auto& item : *v.as_array()) {
+      const auto& t = *item.as_table();
+      const SourceLocation at_table = where(file_, item);
+      const auto* name = t.get("name");
+      if (!name) fail(at_table, "channel.name", "is required in every [[channel]]");
+      if (!name->is_string()) fail(where(file_, *name), "channel.name", std::string("must be a string, not ") + type_name(*name));
+      drivers::ChannelSpec ch;
+      ch.name = *name->value<std::string>();
+      const std::string prefix = "channel." + ch.name;
+      if (s_.locations.count(prefix)) fail(where(file_, *name), "channel.name", "'" + ch.name + "' is given twice (channel names are unique)");
+      s_.locations[prefix] = at_table;
+      Reader sub(file_, parts_);
+      sub.s_ = s_;
+      sub.s_.driver.channels.clear();
+      sub.inherited_ = seen_;
+      try {
+        sub.read_channel(t);
+      } catch (const ScenarioError& e) {
+        throw ScenarioError(std::string(e.what()) + " (in the [[channel]] named '" + ch.name + "')");
+      }
+      ch.drive = sub.s_.driver.drive;
+      ch.switch_ = sub.s_.driver.switch_;
+      ch.coil = sub.s_.driver.coil;
+      ch.clamp = sub.s_.driver.clamp;
+      for (const auto& key : sub.seen_) {
+        channel_seen_[ch.name].insert(key);
+        if (sub.s_.locations.count(key)) s_.locations[prefix + "." + key] = sub.s_.locations.at(key);
+      }
+      s_.driver.channels.push_back(ch);
+    }
+  }
+
+  void read_channel(const toml::table& t) {
+    static const std::vector<std::string> sections{"drive", "switch", "coil", "clamp"};
+    if (const auto* coil = t.get("coil"); coil && coil->is_table()) {
+      if (const auto* p = coil->as_table()->get("part")) {
+        // A channel's coil part replaces the first channel's coil (its thresholds too).
+        read_coil_part(*p);
+      }
+    }
+    for (const auto& [k, v] : t) {
+      const std::string key(k.str());
+      if (key == "name") continue;
+      if (std::find(sections.begin(), sections.end(), key) == sections.end()) {
+        std::vector<std::string> known = sections;
+        known.push_back("name");
+        fail(where(file_, v), "channel." + key, "a channel takes name, [channel.drive], [channel.switch], [channel.coil] and "
+                                                "[channel.clamp] (the board's supply, analysis ... are shared)" + engine::did_you_mean(key, known));
+      }
+      if (!v.is_table()) fail(where(file_, v), "channel." + key, std::string("must be a table [channel.") + key + "], not " + type_name(v));
+      s_.locations[key] = where(file_, v);
+      read_table(key, *v.as_table());
+    }
+    for (const auto& [prefix, node] : pending_overrides_) read_overrides(prefix, *node);
+    resolve_thresholds();
+    require_clamp_parts();
   }
 
  private:
@@ -108,6 +180,9 @@ class Reader {
   const catalogue::Catalogue& parts_;
   Scenario s_;
   std::set<std::string> seen_;
+  std::set<std::string> inherited_;  // a channel's reader: the keys the first channel gave
+  std::map<std::string, std::set<std::string>> channel_seen_;  // by channel name: the keys it gave
+  const toml::node* channels = nullptr;
   std::vector<std::pair<std::string, const toml::table*>> pending_overrides_;
 
   SourceLocation at(const std::string& key) const {
@@ -276,7 +351,7 @@ class Reader {
       if (!done && v.is_table()) {
         // [clamp.zener] etc. hold only their overrides table.
         const std::vector<std::string> holders{"clamp.diode", "clamp.zener", "clamp.tvs", "clamp.active_clamp_zener",
-                                               "supply.reverse_polarity_diode"};
+                                               "supply.reverse_polarity_diode", "common_clamp.zener"};
         if (std::find(holders.begin(), holders.end(), key) != holders.end()) {
           s_.locations[key] = loc;
           read_table(key, *v.as_table());
@@ -355,7 +430,7 @@ class Reader {
   }
 
   void require(const std::string& key, const std::string& why = "") {
-    if (!seen_.count(key)) fail(at(key), key, "is required" + (why.empty() ? "" : " " + why));
+    if (!seen_.count(key) && !inherited_.count(key)) fail(at(key), key, "is required" + (why.empty() ? "" : " " + why));
   }
 
   void require_keys(const toml::table&) {
@@ -367,10 +442,16 @@ class Reader {
     require("switch.topology");
     require("switch.part");
     require("clamp.kind");
+    require_clamp_parts();
+  }
+
+  // The parts and values the chosen clamp kind uses, and a high-side switch's pull-up.
+  void require_clamp_parts() {
     using drivers::ClampKind;
     const auto k = s_.driver.clamp.kind;
     const std::string why = "for clamp.kind = " + drivers::to_string(k);
-    if (k == ClampKind::diode || k == ClampKind::diode_zener || k == ClampKind::diode_resistor || k == ClampKind::active_clamp) {
+    if (k == ClampKind::diode || k == ClampKind::diode_zener || k == ClampKind::diode_resistor || k == ClampKind::active_clamp ||
+        k == ClampKind::common_pin) {
       require("clamp.diode_part", why);
     }
     if (k == ClampKind::diode_zener) require("clamp.zener_part", why);
@@ -417,12 +498,25 @@ class Reader {
   }
 
   // Runs the driver checks and the network builder; maps their messages to the key's location.
+  // A further channel's message ("channel 'fan': coil: ...") points at that channel's key.
   void validate_spec() {
     try {
       drivers::check_driver_spec(s_.driver);
       (void)drivers::build_driver_network(s_.driver, parts_);
     } catch (const std::invalid_argument& e) {
       const std::string msg = e.what();
+      const std::string lead = "channel '";
+      if (msg.rfind(lead, 0) == 0 && msg.find("': ") != std::string::npos) {
+        const auto close = msg.find("': ");
+        const std::string name = msg.substr(lead.size(), close - lead.size()), rest = msg.substr(close + 3);
+        const std::string table = "channel." + name;
+        if (channel_seen_.count(name)) {
+          const std::string key = key_of_message(rest, s_, channel_seen_.at(name));
+          const bool own = !key.empty() && s_.locations.count(table + "." + key);
+          const SourceLocation loc = own ? s_.locations.at(table + "." + key) : at(table);
+          throw ScenarioError(loc.str() + ": " + (own ? "key '" + table + "." + key + "': " : "key '" + table + "': ") + with_file_keys(rest));
+        }
+      }
       const std::string key = key_of_message(msg, s_, seen_);
       const SourceLocation loc = key.empty() ? SourceLocation{file_, 1, 1} : at(key);
       throw ScenarioError(loc.str() + ": " + (key.empty() ? "" : "key '" + key + "': ") + with_file_keys(msg));

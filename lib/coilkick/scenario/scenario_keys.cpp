@@ -105,6 +105,7 @@ const std::vector<TextKey>& text_table() {
       {"clamp.zener_part", [](Scenario& s, const std::string& v) { s.driver.clamp.zener_part = v; }},
       {"clamp.tvs_part", [](Scenario& s, const std::string& v) { s.driver.clamp.tvs_part = v; }},
       {"clamp.active_clamp_zener_part", [](Scenario& s, const std::string& v) { s.driver.clamp.active_clamp_zener_part = v; }},
+      {"common_clamp.zener_part", [](Scenario& s, const std::string& v) { s.driver.common_clamp.zener_part = v; }},
       {"analysis.device_models", [](Scenario& s, const std::string& v) { s.driver.analysis.model_level = devices::parse_model_level(v); }},
       // The older spelling of analysis.device_models, still read so that existing files run.
       {"analysis.model_level", [](Scenario& s, const std::string& v) { s.driver.analysis.model_level = devices::parse_model_level(v); }},
@@ -138,6 +139,8 @@ const std::vector<OverrideTable>& override_tables() {
        [](const Scenario& s) { return s.driver.clamp.tvs_part; }},
       {"clamp.active_clamp_zener.overrides", [](Scenario& s) -> drivers::Overrides& { return s.driver.clamp.active_clamp_zener_overrides; },
        [](const Scenario& s) { return s.driver.clamp.active_clamp_zener_part; }},
+      {"common_clamp.zener.overrides", [](Scenario& s) -> drivers::Overrides& { return s.driver.common_clamp.zener_overrides; },
+       [](const Scenario& s) { return s.driver.common_clamp.zener_part; }},
   };
   return t;
 }
