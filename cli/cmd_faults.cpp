@@ -23,7 +23,7 @@ nlohmann::json case_json(const drivers::FaultCase& c) {
   for (const auto& r : c.readings) readings[r.node] = {{"on_V", number_json(r.on_V)}, {"off_V", number_json(r.off_V)}};
   nlohmann::json heat = nlohmann::json::object();
   for (const auto& [el, p] : c.on_state_heat_W) heat[el] = number_json(p);
-  nlohmann::json j{{"part", c.part}, {"fault", c.fault}, {"readings", readings},
+  nlohmann::json j{{"part", c.part}, {"fault", c.fault}, {"channel", c.channel.empty() ? "first" : c.channel}, {"readings", readings},
                    {"coil_current_on_A", number_json(c.coil_current_on_A)}, {"coil_current_off_A", number_json(c.coil_current_off_A)},
                    {"supply_current_on_A", number_json(c.supply_current_on_A)}, {"on_state_heat_W", heat},
                    {"symptoms", c.symptoms}, {"reasons", c.reasons}, {"error", c.error}};
@@ -74,9 +74,10 @@ int cmd_faults(const CommonOptions& o, const std::string& csv_path, std::ostream
           << metric_text("x_V", r.on_V) << std::setw(12) << metric_text("x_V", fon) << std::setw(13) << metric_text("x_V", r.off_V)
           << std::setw(12) << metric_text("x_V", foff) << "\n";
     }
-    out << "    coil current: " << metric_text("x_A", c.coil_current_on_A) << " on, " << metric_text("x_A", c.coil_current_off_A)
-        << " off (healthy " << metric_text("x_A", rep.healthy.coil_current_on_A) << " / "
-        << metric_text("x_A", rep.healthy.coil_current_off_A) << ")\n";
+    const auto& h = rep.healthy_for(c.channel);
+    out << "    " << (c.channel.empty() ? "" : c.channel + " ") << "coil current: " << metric_text("x_A", c.coil_current_on_A) << " on, "
+        << metric_text("x_A", c.coil_current_off_A) << " off (healthy " << metric_text("x_A", h.coil_current_on_A) << " / "
+        << metric_text("x_A", h.coil_current_off_A) << ")\n";
   };
   for (const auto& sym : drivers::symptom_names()) {
     auto it = rep.by_symptom.find(sym);

@@ -398,8 +398,22 @@ BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalo
   b.switch_stage();
   b.coil();
   b.clamp();
-  // Further channels: each built alone under its prefix, its parts then joined to the board.
+  // Further channels: each built alone under its prefix, its parts then joined to the board. A
+  // channel's name must not be a name of the board's ("switch": its nodes would read as the
+  // first channel's Darlington's).
+  std::set<std::string> taken;
+  for (const auto& e : b.out.network.elements()) {
+    taken.insert(e->name());
+    taken.insert(e->terminals().begin(), e->terminals().end());
+  }
+  for (const auto& v : b.out.network.voltage_sources()) taken.insert(v.name);
   for (std::size_t k = 1; k <= spec.channels.size(); ++k) {
+    const std::string& name = spec.channels[k - 1].name;
+    for (const auto& t : taken) {
+      if (t == name || t.rfind(name + ".", 0) == 0) {
+        throw std::invalid_argument("channel '" + name + "': the name is a node or part name of the board; choose another");
+      }
+    }
     const DriverSpec one = channel_driver_spec(spec, k);
     Builder cb{one, parts, {}};
     cb.out.prefix = spec.channels[k - 1].name + ".";

@@ -77,12 +77,24 @@ engine::Network with_cables_as_cores(const engine::Network& n) {
   return out;
 }
 
-// DC readings and, where the coil carries current, the switch-off.
+// The channel a part belongs to (DriverSpec::channels): k for a part named behind a further
+// channel's name, 0 for the first channel's and the board's.
+std::size_t channel_of(const DriverSpec& spec, const std::string& element) {
+  for (std::size_t k = 0; k < spec.channels.size(); ++k) {
+    if (element.rfind(spec.channels[k].name + ".", 0) == 0) return k + 1;
+  }
+  return 0;
+}
+std::string channel_prefix(const DriverSpec& spec, std::size_t k) { return k == 0 ? "" : spec.channels[k - 1].name + "."; }
+
+// DC readings and, where the coil carries current, the switch-off — as channel k sees them (its
+// coil's current, its metrics and checks).
 FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::string& part, const std::string& fault,
-                   bool run_switch_off) {
+                   bool run_switch_off, std::size_t k = 0) {
   FaultCase fc;
   fc.part = part;
   fc.fault = fault;
+  fc.channel = k == 0 ? "" : spec.channels[k - 1].name;
   try {
     const engine::Network dc = with_cables_as_cores(b.network);
     const engine::Circuit c(dc);
@@ -90,11 +102,11 @@ FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::stri
     const auto on = relay::operating_point_with_armatures_closed(dc, c, 0.0);
     const auto off = relay::operating_point_with_armatures_closed(dc, c, t_late);
     for (const auto& n : c.node_names()) {
-      if (n == "logic") continue;  // the logic output's internal source node
+      if (n == "logic" || n.size() > 6 && n.compare(n.size() - 6, 6, ".logic") == 0) continue;  // logic outputs' internal source nodes
       fc.readings.push_back({n, c.node_voltage_V(n, 0.0, on.values.data()), c.node_voltage_V(n, t_late, off.values.data())});
     }
     engine::Workspace w = c.make_workspace();
-    const int coil = c.element_index("coil");
+    const int coil = c.element_index(channel_prefix(spec, k) + "coil");
     fc.coil_current_on_A = c.terminal_currents_A(coil, 0.0, on.values.data(), w)[0];
     fc.coil_current_off_A = c.terminal_currents_A(coil, t_late, off.values.data(), w)[0];
     c.evaluate(0.0, 0.0, on.values.data(), w, false);
@@ -108,8 +120,8 @@ FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::stri
     if (run_switch_off && std::abs(fc.coil_current_on_A) > 1e-6) {
       auto r = simulate_switch_off(spec, b);
       fc.switch_off_run = true;
-      fc.switch_off = r.metrics;
-      fc.checks = r.checks;
+      fc.switch_off = k == 0 ? r.metrics : r.channels[k].metrics;
+      fc.checks = k == 0 ? r.checks : r.channels[k].checks;
     }
   } catch (const engine::SimulationError& e) {
     fc.error = std::string("simulation failed: ") + e.what();
@@ -117,10 +129,15 @@ FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::stri
   return fc;
 }
 
-double power_limit(const BuiltDriver& b, const catalogue::Catalogue& parts, const DriverSpec& spec, const std::string& element) {
+// The power rating of a part of channel k (`element` its name, the channel's prefix removed).
+double power_limit(const BuiltDriver& board, const catalogue::Catalogue& parts, const DriverSpec& board_spec, std::string element) {
+  const std::size_t k = channel_of(board_spec, element);
+  const BuiltDriver& b = k == 0 ? board : board.channels[k - 1];
+  const DriverSpec spec = channel_driver_spec(board_spec, k);
+  element = element.substr(channel_prefix(board_spec, k).size());
   auto rating = [&](const catalogue::PartRecord* p) { return p && p->has_rating("power") ? p->rating("power") : NAN; };
   for (const auto& sw : b.switch_elements) {
-    if (sw == element && b.switch_part) return rating(b.switch_part);
+    if (sw == b.local(element) && b.switch_part) return rating(b.switch_part);
   }
   if (element == "level_shifter") return rating(&parts.part(spec.switch_.level_shifter_part));
   const auto& cl = spec.clamp;
@@ -133,8 +150,10 @@ double power_limit(const BuiltDriver& b, const catalogue::Catalogue& parts, cons
   return NAN;
 }
 
-void classify(FaultCase& f, const FaultCase& h, const DriverSpec& spec, const BuiltDriver& b, const catalogue::Catalogue& parts) {
+void classify(FaultCase& f, const FaultCase& h, const DriverSpec& board_spec, const BuiltDriver& b, const catalogue::Catalogue& parts) {
   if (!f.error.empty()) return;
+  const DriverSpec spec = channel_driver_spec(board_spec, channel_of(board_spec, f.channel + "."));
+  const std::string coil = f.channel.empty() ? "coil" : f.channel + ".coil";
   const double r_hot = coil_resistance_ohm(spec.coil);
   double i_op = spec.coil.operate_current_A;
   if (std::isnan(i_op) && !std::isnan(spec.coil.operate_voltage_V)) i_op = spec.coil.operate_voltage_V / r_hot;
@@ -159,7 +178,7 @@ void classify(FaultCase& f, const FaultCase& h, const DriverSpec& spec, const Bu
   }
   std::string hot;
   for (const auto& [el, p] : f.on_state_heat_W) {
-    const double lim = power_limit(b, parts, spec, el);
+    const double lim = power_limit(b, parts, board_spec, el);
     if (std::isfinite(lim) && p > lim) hot += (hot.empty() ? "" : "; ") + el + " dissipates " + fmt(p, "W") + " (limit " + fmt(lim, "W") + ")";
   }
   auto heat_of = [](const FaultCase& c, const std::string& el) {
@@ -168,9 +187,9 @@ void classify(FaultCase& f, const FaultCase& h, const DriverSpec& spec, const Bu
     }
     return 0.0;
   };
-  if (heat_of(f, "coil") > 1.3 * heat_of(h, "coil")) {
-    hot += (hot.empty() ? "" : "; ") + std::string("coil dissipates ") + fmt(heat_of(f, "coil"), "W") + " against " +
-           fmt(heat_of(h, "coil"), "W") + " healthy";
+  if (heat_of(f, coil) > 1.3 * heat_of(h, coil)) {
+    hot += (hot.empty() ? "" : "; ") + coil + " dissipates " + fmt(heat_of(f, coil), "W") + " against " +
+           fmt(heat_of(h, coil), "W") + " healthy";
   }
   if (std::abs(f.supply_current_on_A) > 2.0 * std::abs(h.supply_current_on_A) + 1e-3) {
     hot += (hot.empty() ? "" : "; ") + std::string("supply current ") + fmt(f.supply_current_on_A, "A") + " against " +
@@ -188,6 +207,13 @@ void classify(FaultCase& f, const FaultCase& h, const DriverSpec& spec, const Bu
 
 }  // namespace
 
+const FaultCase& FaultReport::healthy_for(const std::string& channel) const {
+  for (const auto& h : healthy_channels) {
+    if (h.channel == channel) return h;
+  }
+  return healthy;
+}
+
 const std::vector<std::string>& symptom_names() {
   static const std::vector<std::string> n{"relay never operates", "relay never releases", "relay releases slowly",
                                           "driver part overheats", "no visible symptom"};
@@ -199,6 +225,7 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
   FaultReport rep;
   rep.healthy = evaluate(spec, healthy, "none", "healthy", true);
   if (!rep.healthy.error.empty()) throw engine::SimulationError("healthy driver: " + rep.healthy.error);
+  for (std::size_t k = 1; k <= spec.channels.size(); ++k) rep.healthy_channels.push_back(evaluate(spec, healthy, "none", "healthy", true, k));
 
   std::vector<std::pair<std::pair<std::string, std::string>, BuiltDriver>> cases;
   auto add_case = [&](const std::string& part, const std::string& fault, Injector& inj) { cases.push_back({{part, fault}, inj.out}); };
@@ -217,7 +244,8 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
     // Capacitors that are parts on the board (not the winding's or the layout's parasitics).
     const bool board_capacitor = n.find("snubber_capacitor") != std::string::npos || n == "bulk_capacitor" || extra.count(n);
     if (dynamic_cast<const engine::Resistor*>(e.get())) {
-      if (n == "logic_output" || n.rfind("switch.", 0) == 0) continue;  // inside the logic chip / the Darlington
+      const std::string own = n.substr(channel_prefix(spec, channel_of(spec, n)).size());
+      if (own == "logic_output" || own.rfind("switch.", 0) == 0) continue;  // inside the logic chip / the Darlington
       Injector i(healthy);
       i.resistor_in_place(n, kOpen_ohm);
       add_case(n, "open", i);
@@ -233,7 +261,8 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
       shorted.resistor_in_place(n, kShort_ohm);
       add_case(n, "open", open);
       add_case(n, "shorted", shorted);
-    } else if (is_transistor(*e) && (n == "switch" || n == "switch.output" || n == "level_shifter" || extra.count(n))) {
+    } else if (const std::string own = n.substr(channel_prefix(spec, channel_of(spec, n)).size());
+               is_transistor(*e) && (own == "switch" || own == "switch.output" || own == "level_shifter" || extra.count(n))) {
       const bool mos = dynamic_cast<const devices::PhysicalMosfet*>(e.get()) || dynamic_cast<const devices::PwlMosfet*>(e.get());
       Injector ce(healthy), base(healthy), leak(healthy);
       ce.resistor_across(n + ".short", t[0], t[2], kShort_ohm);
@@ -242,7 +271,7 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
       add_case(n, mos ? "gate open" : "base open", base);
       leak.resistor_across(n + ".leak", t[0], t[1], kLeak_ohm);
       add_case(n, mos ? "drain-gate leaky" : "collector-base junction leaky", leak);
-    } else if (dynamic_cast<const engine::Coil*>(e.get()) && n != "coil") {
+    } else if (dynamic_cast<const engine::Coil*>(e.get()) && n != channel_prefix(spec, channel_of(spec, n)) + "coil") {
       // An extra inductor or the supply's inductance: its winding opens.
       Injector open(healthy);
       open.resistor_in_place(n, kOpen_ohm);
@@ -281,9 +310,11 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
   for (const auto& [id, built] : cases) {
     DriverSpec s = spec;
     if (id.first == "supply") s.supply.voltage_V *= kLowSupply;
-    const bool coil_open = (id.first == "coil" && id.second == "open") || (id.first == "cable" && id.second.rfind("open", 0) == 0);
-    FaultCase f = evaluate(s, built, id.first, id.second, !coil_open);
-    classify(f, rep.healthy, s, built, parts);
+    const std::size_t k = channel_of(spec, id.first);
+    const bool coil_open = (id.first == channel_prefix(spec, k) + "coil" && id.second == "open") ||
+                           (id.first == "cable" && id.second.rfind("open", 0) == 0);
+    FaultCase f = evaluate(s, built, id.first, id.second, !coil_open, k);
+    classify(f, rep.healthy_for(f.channel), s, built, parts);
     rep.faults.push_back(std::move(f));
   }
   for (std::size_t k = 0; k < rep.faults.size(); ++k) {

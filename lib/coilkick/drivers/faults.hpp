@@ -5,7 +5,8 @@
 // snubber capacitor open or shorted; a transistor with collector–emitter (drain–source) shorted,
 // its base (gate) connection open, or its collector–base junction leaky; the coil open or with
 // 30 % of its turns shorted; with a cable, one core broken at the coil or the cores shorted
-// there; the supply low (75 %). DC readings take a cable as its two cores (half the loop each). For each: the DC node voltages with the
+// there; the supply low (75 %). On a board of several channels each fault is judged on the
+// channel whose part failed (a board part's on the first channel). DC readings take a cable as its two cores (half the loop each). For each: the DC node voltages with the
 // drive on and off, the coil current, the on-state heat in each part, and — if the coil carries
 // current — the switch-off metrics and rating checks. Faults are grouped by what a user sees:
 // "relay never operates", "relay never releases", "relay releases slowly", "driver part
@@ -31,6 +32,9 @@ struct FaultCase {
   std::string part;     // element, e.g. "base_resistor", "clamp_diode", "switch", "coil", "supply"
   std::string fault;    // "open", "shorted", "collector-emitter shorted", "base open", ...
   std::string label() const { return part + " " + fault; }
+  // The channel whose coil the currents, metrics, checks and symptoms are about: "" the first
+  // (and the board's parts), else a further channel's name (DriverSpec::channels).
+  std::string channel;
   std::vector<NodeReading> readings;
   double coil_current_on_A = 0.0, coil_current_off_A = 0.0;
   double supply_current_on_A = 0.0;
@@ -45,6 +49,8 @@ struct FaultCase {
 
 struct FaultReport {
   FaultCase healthy;
+  std::vector<FaultCase> healthy_channels;  // the further channels' healthy readings, in order
+  const FaultCase& healthy_for(const std::string& channel) const;
   std::vector<FaultCase> faults;
   std::map<std::string, std::vector<int>> by_symptom;  // symptom -> indices into faults
 };
