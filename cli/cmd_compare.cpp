@@ -11,6 +11,24 @@
 
 namespace coilkick::cli {
 
+namespace {
+
+// On a board of several channels a column reads the whole board: the highest peak and the slowest
+// release of any channel, energies summed over the channels (and the common pin's Zener).
+enum class Across { highest, sum };
+double board_value(const drivers::Metrics& m, const std::vector<std::string>& further, const std::string& name, Across how) {
+  double v = m.get(name);
+  for (const auto& ch : further) {
+    const double x = m.get(ch + "." + name);
+    if (how == Across::sum) v += x;
+    else if (std::isnan(v) || x > v) v = x;
+  }
+  if (how == Across::sum && name == "clamp_energy_J" && !std::isnan(m.get("common_clamp_energy_J"))) v += m.get("common_clamp_energy_J");
+  return v;
+}
+
+}  // namespace
+
 int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::string& plot_path, std::ostream& out) {
   const Loaded l = load(o);
   const auto& d = l.scenario.driver;
@@ -19,12 +37,13 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
     std::ofstream f(csv_path);
     if (!f) throw std::invalid_argument("--csv: cannot write '" + csv_path + "'");
     f << csv_caution_comment() << "clamp_kind,parts,overall,error";
-    for (const auto& n : drivers::metric_names()) f << "," << n;
+    const auto names = drivers::metric_names(drivers::further_channel_names(l.scenario.driver));
+    for (const auto& n : names) f << "," << n;
     f << "\n";
     for (const auto& r : rows) {
       f << drivers::to_string(r.kind) << ",\"" << r.parts << "\"," << (r.result ? drivers::to_string(drivers::overall_status(r.result->checks)) : "error")
         << ",\"" << r.error << "\"";
-      for (const auto& n : drivers::metric_names()) f << "," << (r.result ? csv_number(r.result->metrics.get(n)) : "");
+      for (const auto& n : names) f << "," << (r.result ? csv_number(r.result->metrics.get(n)) : "");
       f << "\n";
     }
   }
@@ -56,6 +75,7 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
       << std::setw(8) << "margin" << std::setw(11) << "release" << std::setw(11) << "to 10 %" << std::setw(11) << "clamp E"
       << std::setw(11) << "switch E";
   const bool contacts = d.relay.armature_model, hold = d.has_periodic_drive(), cable = d.cable.present();
+  const auto further = drivers::further_channel_names(d);
   if (cable) out << std::setw(11) << "coil end";
   if (contacts) out << std::setw(11) << "opens" << std::setw(11) << "speed";
   if (hold) out << std::setw(11) << "hold I" << std::setw(9) << "I/I_rel" << std::setw(11) << "clamp P" << std::setw(11) << "switch P";
@@ -67,16 +87,17 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
       continue;
     }
     const auto& m = r.result->metrics;
+    auto board = [&](const char* name, Across how) { return board_value(m, further, name, how); };
     std::string flags;
     for (const auto& c : r.result->checks) {
       if (c.status != drivers::CheckStatus::pass) flags += (flags.empty() ? "" : ", ") + c.name + " " + drivers::to_string(c.status);
     }
-    const double margin = m.get("switch_voltage_margin");
-    out << std::setw(11) << metric_text("x_V", m.get("switch_voltage_peak_V")) << std::setw(8)
+    const double margin = board("switch_voltage_margin", Across::highest);
+    out << std::setw(11) << metric_text("x_V", board("switch_voltage_peak_V", Across::highest)) << std::setw(8)
         << (std::isnan(margin) ? std::string("-") : std::to_string(static_cast<int>(std::lround(100 * margin))) + "%")
-        << std::setw(11) << metric_text("x_s", m.get("release_time_s")) << std::setw(11)
-        << metric_text("x_s", m.get("current_decay_time_10pct_s")) << std::setw(11) << metric_text("x_J", m.get("clamp_energy_J"))
-        << std::setw(11) << metric_text("x_J", m.get("switch_energy_J"));
+        << std::setw(11) << metric_text("x_s", board("release_time_s", Across::highest)) << std::setw(11)
+        << metric_text("x_s", board("current_decay_time_10pct_s", Across::highest)) << std::setw(11)
+        << metric_text("x_J", board("clamp_energy_J", Across::sum)) << std::setw(11) << metric_text("x_J", board("switch_energy_J", Across::sum));
     if (cable) out << std::setw(11) << metric_text("x_V", m.get("coil_end_peak_V"));
     if (contacts) {
       out << std::setw(11) << metric_text("x_s", m.get("contact_open_time_s")) << std::setw(11)
@@ -90,6 +111,10 @@ int cmd_compare(const CommonOptions& o, const std::string& csv_path, const std::
           << metric_text("x_W", m.get("hold_switch_average_power_W"));
     }
     out << "  " << (flags.empty() ? "all pass" : flags) << "\n";
+  }
+  if (!further.empty()) {
+    out << "\nA board of " << further.size() + 1 << " channels, each with the row's clamp: peak and margin the highest of any channel, "
+           "release and to 10 % the slowest, energies summed over the channels (clamp E with the common pin's Zener).";
   }
   if (cable) {
     out << "\ncoil end: peak across the coil's own terminals at the cable's far end (a fast front doubles there; "

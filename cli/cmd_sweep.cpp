@@ -13,16 +13,17 @@ namespace coilkick::cli {
 namespace {
 
 // The table as CSV: the caution comment, a header, one row per point.
-void write_csv(std::ostream& csv, const std::vector<analyses::SweepAxis>& axes, const std::vector<analyses::SweepPoint>& points) {
+void write_csv(std::ostream& csv, const std::vector<analyses::SweepAxis>& axes, const std::vector<analyses::SweepPoint>& points,
+               const std::vector<std::string>& names) {
   csv << csv_caution_comment();
   for (const auto& a : axes) csv << a.key << ",";
   csv << "overall,error";
-  for (const auto& n : drivers::metric_names()) csv << "," << n;
+  for (const auto& n : names) csv << "," << n;
   csv << "\n";
   for (const auto& p : points) {
     for (double v : p.values) csv << csv_number(v) << ",";
     csv << (p.run.ok() ? drivers::to_string(p.run.status) : "error") << ",\"" << p.run.error << "\"";
-    for (const auto& n : drivers::metric_names()) csv << "," << (p.run.ok() ? csv_number(p.run.metrics.get(n)) : "");
+    for (const auto& n : names) csv << "," << (p.run.ok() ? csv_number(p.run.metrics.get(n)) : "");
     csv << "\n";
   }
 }
@@ -68,11 +69,11 @@ int cmd_sweep(const CommonOptions& o, const std::vector<std::string>& vary, cons
     std::ofstream file(output);
     if (!file) throw std::invalid_argument("--output: cannot write '" + output + "'");
     if (o.json) file << sweep_json(l, o, axes, points).dump(2) << "\n";
-    else write_csv(file, axes, points);
+    else write_csv(file, axes, points, drivers::metric_names(drivers::further_channel_names(l.scenario.driver)));
   } else if (o.json) {
     out << sweep_json(l, o, axes, points).dump(2) << "\n";
   } else {
-    write_csv(out, axes, points);
+    write_csv(out, axes, points, drivers::metric_names(drivers::further_channel_names(l.scenario.driver)));
   }
   if (!o.quiet && failed) {
     std::cerr << "coilkick sweep: " << failed << " of " << points.size() << " points failed; their rows carry the error\n";

@@ -114,6 +114,27 @@ scenario::Scenario apply_spreads(const scenario::Scenario& s, const std::vector<
     else if (n == "tvs_breakdown_voltage_V") d.clamp.tvs_overrides["breakdown_voltage"] = v;
     else throw std::logic_error("unknown spread " + n);
   }
+  // A board of several channels: every channel moves with the first (one batch of coils and parts
+  // in one enclosure on one rail) — coils by the same factor, at the same temperature, parts of the
+  // same kind to the same value.
+  const auto& d0 = s.driver;
+  for (auto& ch : d.channels) {
+    ch.coil.resistance_at_20C_ohm *= d.coil.resistance_at_20C_ohm / d0.coil.resistance_at_20C_ohm;
+    ch.coil.inductance_H *= d.coil.inductance_H / d0.coil.inductance_H;
+    if (d.coil.temperature_C != d0.coil.temperature_C) ch.coil.temperature_C = d.coil.temperature_C;
+    if (ch.switch_.part == d.switch_.part) {
+      for (const char* k : {"forward_beta", "threshold_voltage"}) {
+        if (d.switch_.overrides.count(k)) ch.switch_.overrides[k] = d.switch_.overrides.at(k);
+      }
+    }
+    auto same = [](const std::string& part, drivers::Overrides& o, const std::string& first_part, const drivers::Overrides& first) {
+      if (part == first_part && first.count("breakdown_voltage")) o["breakdown_voltage"] = first.at("breakdown_voltage");
+    };
+    same(ch.clamp.zener_part, ch.clamp.zener_overrides, d.clamp.zener_part, d.clamp.zener_overrides);
+    same(ch.clamp.active_clamp_zener_part, ch.clamp.active_clamp_zener_overrides, d.clamp.active_clamp_zener_part,
+         d.clamp.active_clamp_zener_overrides);
+    same(ch.clamp.tvs_part, ch.clamp.tvs_overrides, d.clamp.tvs_part, d.clamp.tvs_overrides);
+  }
   (void)parts;
   return r;
 }
@@ -188,7 +209,7 @@ ToleranceResult run_tolerance(const scenario::Scenario& s, const catalogue::Cata
       r.worst_release_run = i;
     }
   }
-  for (const auto& name : drivers::metric_names()) {
+  for (const auto& name : drivers::metric_names(drivers::further_channel_names(s.driver))) {
     auto it = values.find(name);
     if (it == values.end()) continue;
     const auto& v = it->second;

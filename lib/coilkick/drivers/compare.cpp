@@ -38,6 +38,7 @@ std::vector<ComparisonRow> compare_clamps(const DriverSpec& spec, const catalogu
   for (const auto kind : kinds) {
     DriverSpec s = spec;
     s.clamp.kind = kind;
+    for (auto& ch : s.channels) ch.clamp.kind = kind;  // a board: every channel the same clamp
     ComparisonRow row;
     row.kind = kind;
     row.parts = describe_clamp_parts(s.clamp);

@@ -184,6 +184,12 @@ double CableSpec::characteristic_impedance_ohm() const {
 
 double CableSpec::delay_s() const { return length_m * std::sqrt(inductance_per_metre_H_per_m * capacitance_per_metre_F_per_m); }
 
+std::vector<std::string> further_channel_names(const DriverSpec& s) {
+  std::vector<std::string> out;
+  for (const auto& c : s.channels) out.push_back(c.name);
+  return out;
+}
+
 bool uses_common_pin(const DriverSpec& s) {
   if (s.clamp.kind == ClampKind::common_pin) return true;
   return std::any_of(s.channels.begin(), s.channels.end(), [](const ChannelSpec& c) { return c.clamp.kind == ClampKind::common_pin; });

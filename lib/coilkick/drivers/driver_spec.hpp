@@ -252,6 +252,8 @@ struct DriverSpec {
 // Channel k of the board (0: the top-level one) as a driver of its own: the top-level spec with
 // that channel's drive, switch, coil and clamp, and no further channels.
 DriverSpec channel_driver_spec(const DriverSpec& s, std::size_t k);
+// The further channels' names, in order.
+std::vector<std::string> further_channel_names(const DriverSpec& s);
 // Some channel's clamp is common_pin (the common Zener is built only then).
 bool uses_common_pin(const DriverSpec& s);
 // Every channel's switch-off edge has ended by then.

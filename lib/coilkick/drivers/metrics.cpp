@@ -56,4 +56,26 @@ const std::vector<std::string>& metric_names() {
   return n;
 }
 
+bool is_board_metric(const std::string& name) {
+  for (const char* b : {"supply_rail_peak_rise_V", "supply_rail_dip_V", "supply_energy_returned_J", "common_clamp_energy_J",
+                        "common_clamp_current_peak_A", "energy_balance_error"}) {
+    if (name == b) return true;
+  }
+  return false;
+}
+
+std::vector<std::string> metric_names(const std::vector<std::string>& further_channels) {
+  std::vector<std::string> out = metric_names();
+  for (const auto& ch : further_channels) {
+    for (const auto& n : metric_names()) {
+      if (is_board_metric(n) || n.rfind("hold_", 0) == 0 || n == "contact_open_time_s" ||
+          n == "armature_speed_at_contact_open_m_per_s" || n == "operate_time_s") {
+        continue;
+      }
+      out.push_back(ch + "." + n);
+    }
+  }
+  return out;
+}
+
 }  // namespace coilkick::drivers

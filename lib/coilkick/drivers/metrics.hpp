@@ -19,5 +19,11 @@ class Metrics {
 
 // The metric names, in report order.
 const std::vector<std::string>& metric_names();
+// A board of several channels (DriverSpec::channels): metric_names(), then for each further
+// channel its own metrics behind its name ("pump.release_time_s"; not the board's — supply rail,
+// common clamp, energy balance — which the first names carry, nor hold or armature metrics,
+// which a board does not have).
+std::vector<std::string> metric_names(const std::vector<std::string>& further_channels);
+bool is_board_metric(const std::string& name);
 
 }  // namespace coilkick::drivers

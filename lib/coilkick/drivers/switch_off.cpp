@@ -66,7 +66,16 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   const auto common_checks = common_clamp_checks(b, out.channels.front().metrics, slowest_decay_s);
   out.channels.front().checks.insert(out.channels.front().checks.end(), common_checks.begin(), common_checks.end());
 
+  // The first channel's metrics with the board's, then every further channel's behind its name.
   out.metrics = out.channels.front().metrics;
+  for (std::size_t k = 1; k < out.channels.size(); ++k) {
+    std::vector<std::string> further;
+    for (std::size_t j = 1; j < out.channels.size(); ++j) further.push_back(out.channels[j].name);
+    const std::string prefix = out.channels[k].name + ".";
+    for (const auto& name : metric_names(further)) {
+      if (name.rfind(prefix, 0) == 0) out.metrics.set(name, out.channels[k].metrics.get(name.substr(prefix.size())));
+    }
+  }
   // Every check of the board: the first channel's and the board's as they are, a further
   // channel's behind its name ("pump: switch_voltage"; the run's accuracy once).
   out.checks = out.channels.front().checks;

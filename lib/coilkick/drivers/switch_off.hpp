@@ -36,7 +36,8 @@ struct ChannelResult {
 
 struct SwitchOffResult {
   DriverSpec spec;
-  // The first channel's metrics (with one channel: the driver's), with the board's.
+  // The first channel's metrics (with one channel: the driver's) with the board's, then every
+  // further channel's behind its name ("pump.release_time_s"; metric_names(further channels)).
   Metrics metrics;
   // Every check: the first channel's, the board's, and a further channel's behind its name
   // ("pump: switch_voltage").

@@ -555,6 +555,7 @@ std::vector<drivers::ClampKind> applicable_clamp_kinds(const Scenario& s) {
   auto has = [&](const char* key) { return s.locations.count(key) > 0; };
   std::vector<ClampKind> k{ClampKind::none};
   if (has("clamp.diode_part")) k.push_back(ClampKind::diode);
+  if (has("clamp.diode_part") && drivers::uses_common_pin(s.driver)) k.push_back(ClampKind::common_pin);
   if (has("clamp.diode_part") && has("clamp.zener_part")) k.push_back(ClampKind::diode_zener);
   if (has("clamp.diode_part") && has("clamp.resistor")) k.push_back(ClampKind::diode_resistor);
   if (has("clamp.snubber_resistance") && has("clamp.snubber_capacitance")) {

@@ -1,6 +1,7 @@
 #include "coilkick/scenario/scenario_keys.hpp"
 
 #include <cmath>
+#include <optional>
 
 #include "coilkick/catalogue/part_parameters.hpp"
 #include "coilkick/engine/closest_name.hpp"
@@ -192,8 +193,50 @@ namespace {
 }
 }  // namespace
 
+namespace {
+// "channel.<name>.<section>.<key>": a further channel's key (DriverSpec::channels) — its index and
+// the key within the channel ("coil.inductance"); nullopt for any other key.
+std::optional<std::pair<std::size_t, std::string>> channel_key(const Scenario& s, const std::string& key) {
+  const std::string lead = "channel.";
+  if (key.rfind(lead, 0) != 0) return std::nullopt;
+  const auto dot = key.find('.', lead.size());
+  const std::string name = key.substr(lead.size(), dot == std::string::npos ? std::string::npos : dot - lead.size());
+  std::vector<std::string> names;
+  for (std::size_t k = 0; k < s.driver.channels.size(); ++k) {
+    if (s.driver.channels[k].name != name) {
+      names.push_back(s.driver.channels[k].name);
+      continue;
+    }
+    const std::string rest = dot == std::string::npos ? "" : key.substr(dot + 1);
+    for (const char* section : {"drive.", "switch.", "coil.", "clamp."}) {
+      if (rest.rfind(section, 0) == 0) return std::make_pair(k, rest);
+    }
+    throw ScenarioError("key '" + key + "': a channel's numeric keys are its drive, switch, coil and clamp keys "
+                        "(e.g. channel." + name + ".coil.inductance)");
+  }
+  throw ScenarioError("key '" + key + "': no channel named '" + name + "'" + engine::did_you_mean(name, names));
+}
+
+// A scenario whose first channel is further channel k (for reading or writing its keys).
+Scenario channel_view(const Scenario& s, std::size_t k) {
+  Scenario v = s;
+  v.driver = drivers::channel_driver_spec(s.driver, k + 1);
+  return v;
+}
+}  // namespace
+
 void set_numeric_key(Scenario& s, const std::string& key, double value, const catalogue::Catalogue& parts) {
   if (!std::isfinite(value)) throw ScenarioError("key '" + key + "': value must be finite");
+  if (const auto ck = channel_key(s, key)) {
+    Scenario v = channel_view(s, ck->first);
+    set_numeric_key(v, ck->second, value, parts);
+    auto& ch = s.driver.channels[ck->first];
+    ch.drive = v.driver.drive;
+    ch.switch_ = v.driver.switch_;
+    ch.coil = v.driver.coil;
+    ch.clamp = v.driver.clamp;
+    return;
+  }
   for (const auto& n : numeric_table()) {
     if (key == n.key) {
       n.ref(s) = value;
@@ -225,6 +268,7 @@ void set_numeric_key(Scenario& s, const std::string& key, double value, const ca
 }
 
 double numeric_key_value(const Scenario& s, const std::string& key) {
+  if (const auto ck = channel_key(s, key)) return numeric_key_value(channel_view(s, ck->first), ck->second);
   Scenario c = s;  // the tables hand out references into a scenario they may write
   for (const auto& n : numeric_table()) {
     if (key == n.key) return n.ref(c);
