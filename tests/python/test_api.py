@@ -200,3 +200,29 @@ def test_extra_parts_and_supply_keys_from_a_dict(relay_dict):
     assert df["switch_voltage_peak_V"].is_monotonic_increasing
     with pytest.raises(coilkick.ScenarioError, match="did you mean 'extra_part.own_resistor.value'"):
         coilkick.sweep(s, {"extra_part.own_resistor.valu": [1.0]})
+
+
+def test_board_of_channels_from_a_dict(relay_dict):
+    # Two more coils on the relay's board with their own clamps (copies of the first's) on an ideal
+    # rail: nothing joins them, so the "fast" channel (half the inductance) releases as that driver
+    # alone does — to 1e-5 (both runs at the engine's default tolerance 1e-6, on different steps).
+    d = dict(relay_dict)
+    d["channel"] = [{"name": "fast", "coil": {"inductance": "300 mH"}},
+                    {"name": "late", "drive": {"switch_off_at": "200 us"}}]
+    r = coilkick.run(coilkick.scenario_from_dict(d))
+    assert [c.name for c in r.channels] == ["first", "fast", "late"]
+    assert r.channels[1].metrics.release_time_s == r.metrics["fast.release_time_s"]
+    assert len(r.channels[2].coil_current_A) == len(r.time_s)
+    alone = dict(relay_dict)
+    alone["coil"] = dict(relay_dict["coil"], inductance="300 mH")
+    ra = coilkick.run(coilkick.scenario_from_dict(alone))
+    assert r.channels[1].metrics.release_time_s == pytest.approx(ra.metrics.release_time_s, rel=1e-5)
+    assert any(c.name.startswith("late: ") for c in r.checks)
+    df = coilkick.sweep(coilkick.scenario_from_dict(d), {"channel.fast.coil.inductance": [0.2, 0.3, 0.4]})
+    assert (df["error"] == "").all()
+    assert df["fast.release_time_s"].is_monotonic_increasing  # more inductance, slower release
+    # The first channel is untouched (to 1e-5: the runs step differently with the other coil).
+    assert df["release_time_s"].max() == pytest.approx(df["release_time_s"].min(), rel=1e-5)
+    with pytest.raises(coilkick.ScenarioError, match="named 'fast'"):
+        d["channel"][0]["coil"] = {"inductance": "30 pF"}
+        coilkick.scenario_from_dict(d)

@@ -188,6 +188,25 @@ TEST_CASE("bad scenario inputs: one clear message with file:line:column each") {
       {"misspelt cable key", 0, "[cable]\nlenght = \"60 m\"", 22, "did you mean 'cable.length'?"},
       {"cable loss fraction of the whole delay", 0, "[cable]\nlength = \"60 m\"\nhigh_frequency_loss_fraction = 1.5", 23,
        "key 'cable.high_frequency_loss_fraction'"},
+      // [[channel]] appended at line 21: name 22, a sub-table 23, its key 24.
+      {"channel without a name", 0, "[[channel]]\n[channel.coil]\ninductance = \"0.3 H\"", 21, "key 'channel.name': is required in every [[channel]]"},
+      {"channel name not a string", 0, "[[channel]]\nname = 2", 22, "key 'channel.name': must be a string, not an integer"},
+      {"channel with a board's section", 0, "[[channel]]\nname = \"b\"\n[channel.supply]\nvoltage = \"24 V\"", 23,
+       "a channel takes name, [channel.drive], [channel.switch], [channel.coil] and [channel.clamp]"},
+      {"channel coil with the wrong unit", 0, "[[channel]]\nname = \"b\"\n[channel.coil]\ninductance = \"30 pF\"", 24,
+       "is a capacitance, but an inductance (H) is expected (in the [[channel]] named 'b')"},
+      {"misspelt channel key", 0, "[[channel]]\nname = \"b\"\n[channel.coil]\ninductnce = \"0.3 H\"", 24, "did you mean 'coil.inductance'?"},
+      {"negative channel inductance", 0, "[[channel]]\nname = \"b\"\n[channel.coil]\ninductance = \"-0.3 H\"", 24,
+       "key 'channel.b.coil.inductance': coil.inductance must be finite and > 0"},
+      {"channel switch part of the wrong family", 0, "[[channel]]\nname = \"b\"\n[channel.switch]\npart = \"nmos_logic_level_60v\"", 24,
+       "key 'channel.b.switch.part': switch.part: 'nmos_logic_level_60v' is a nmos, which does not fit topology low_side_npn"},
+      {"channel name given twice", 0, "[[channel]]\nname = \"b\"\n[[channel]]\nname = \"b\"", 24, "'b' is given twice"},
+      {"channel name with a space", 0, "[[channel]]\nname = \"pump 2\"", 21, "letters, digits and '_'"},
+      {"channel named as a board node", 0, "[[channel]]\nname = \"switch\"", 21, "the name is a node or part name of the board"},
+      {"channels with a cable", 0, "[[channel]]\nname = \"b\"\n[cable]\nlength = \"30 m\"", 21,
+       "several channels do not yet combine with a cable"},
+      {"a rectifier as the common clamp's Zener", 0, "[common_clamp]\nzener_part = \"rectifier_1a\"", 22,
+       "key 'common_clamp.zener_part': common_clamp.zener_part: part 'rectifier_1a' is a diode; a Zener or TVS is needed here"},
       {"hold with a frequency for the duty", 0, "[hold]\npull_in_time = \"20 ms\"\npwm_frequency = \"20 kHz\"\npwm_duty = \"5 Hz\"", 24,
        "is a frequency, but a ratio"},
   };
@@ -278,9 +297,52 @@ TEST_CASE("numeric keys set by name, part overrides included") {
 }
 
 TEST_CASE("every bundled scenario reads") {
-  for (const char* f : {"greenhouse_valve.toml", "fan_relay.toml", "greenhouse_valve_rail.toml"}) {
+  for (const char* f : {"greenhouse_valve.toml", "fan_relay.toml", "greenhouse_valve_rail.toml", "greenhouse_valve_hold.toml",
+                        "greenhouse_valve_cable.toml", "greenhouse_valve_bank.toml"}) {
     CAPTURE(f);
     const auto s = read_scenario_file(catalogue::default_models_directory() + "/scenarios/" + f, test_support::catalogue());
     CHECK(!s.driver.name.empty());
   }
+}
+
+TEST_CASE("[[channel]] tables start from the first channel and replace what they name; their keys sweep by channel") {
+  auto lines = base_lines();
+  lines.push_back("[[channel]]");                      // 21
+  lines.push_back("name = \"fan\"");                   // 22
+  lines.push_back("[channel.coil]");                   // 23
+  lines.push_back("inductance = \"300 mH\"");          // 24
+  lines.push_back("[channel.drive]");                  // 25
+  lines.push_back("switch_off_at = \"150 us\"");       // 26
+  lines.push_back("[[channel]]");                      // 27
+  lines.push_back("name = \"pump\"");                  // 28
+  lines.push_back("[channel.coil]");                   // 29
+  lines.push_back("part = \"pump_contactor_24v\"");    // 30
+  lines.push_back("[channel.clamp]");                  // 31
+  lines.push_back("kind = \"diode\"");                 // 32
+  auto s = read_scenario_text(join(lines), "board.toml", test_support::catalogue());
+  REQUIRE(s.driver.channels.size() == 2);
+  const auto& fan = s.driver.channels[0];
+  const auto& pump = s.driver.channels[1];
+  CHECK(fan.name == "fan");
+  CHECK(fan.coil.inductance_H == rel(0.3));
+  CHECK(fan.coil.resistance_at_20C_ohm == rel(400.0));      // the first channel's
+  CHECK(fan.coil.release_current_A == rel(3e-3));           // the first channel's
+  CHECK(fan.drive.switch_off_at_s == rel(150e-6));
+  CHECK(fan.drive.high_level_V == rel(5.0));                // the first channel's
+  CHECK(fan.clamp.kind == drivers::ClampKind::diode_zener); // the first channel's
+  CHECK(pump.coil.part == "pump_contactor_24v");
+  CHECK(pump.coil.resistance_at_20C_ohm == rel(12.0));      // the part's (models/coils/demo_coils.toml)
+  CHECK(pump.clamp.kind == drivers::ClampKind::diode);
+  CHECK(s.driver.coil.inductance_H == rel(0.6));            // the first channel untouched
+  CHECK(s.locations.at("channel.fan.coil.inductance").line == 24);
+  CHECK(s.locations.at("channel.pump.clamp.kind").line == 32);
+
+  set_numeric_key(s, "channel.fan.coil.inductance", 0.45, test_support::catalogue());
+  CHECK(s.driver.channels[0].coil.inductance_H == rel(0.45));
+  CHECK(s.driver.coil.inductance_H == rel(0.6));
+  CHECK(numeric_key_value(s, "channel.fan.coil.inductance") == rel(0.45));
+  CHECK_THROWS_WITH_AS(set_numeric_key(s, "channel.fn.coil.inductance", 1.0, test_support::catalogue()),
+                       doctest::Contains("no channel named 'fn' (did you mean 'fan'?)"), ScenarioError);
+  CHECK_THROWS_WITH_AS(set_numeric_key(s, "channel.fan.supply.voltage", 1.0, test_support::catalogue()),
+                       doctest::Contains("a channel's numeric keys are its drive, switch, coil and clamp keys"), ScenarioError);
 }

@@ -56,13 +56,19 @@ def scenario_from_dict(d: Dict[str, Any], models_dir: str = "", name: str = "<di
 class RunResult:
     """One switch-off. metrics: AttrDict (SI unit in each name); checks: list of AttrDict;
     time_s, switch_voltage_V, coil_current_A, clamp_current_A, armature_gap_m (armature model only,
-    else empty): numpy arrays sharing the result's memory; hold: the PWM hold's waveforms (or None)."""
+    else empty): numpy arrays sharing the result's memory; hold: the PWM hold's waveforms (or None);
+    channels: on a board of several channels (scenario [[channel]]) one AttrDict per channel, the
+    first (top-level) one first — name, metrics, checks, overall, time_s, switch_voltage_V,
+    coil_current_A — else empty. On a board, metrics are the first channel's with the board's and
+    every further channel's behind its name ("pump.release_time_s"); checks are every channel's."""
 
     def __init__(self, core):
         self._core = core
         self.metrics = AttrDict(core.metrics)
         self.checks = [AttrDict(c) for c in core.checks]
         self.overall = core.overall
+        self.channels = [AttrDict(c, metrics=AttrDict(c["metrics"]), checks=[AttrDict(x) for x in c["checks"]])
+                         for c in core.channels]
 
     time_s = property(lambda self: self._core.time_s, doc="accepted time points (s)")
     switch_voltage_V = property(lambda self: self._core.switch_voltage_V, doc="voltage across the switch (V)")

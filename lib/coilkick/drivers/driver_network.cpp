@@ -365,11 +365,12 @@ struct Builder {
   // The board's common clamp pin's Zener (CommonClampSpec), cathode at the pin, anode at the rail.
   void common_clamp() {
     const auto& cc = s.common_clamp;
-    if (cc.zener_part.empty() || !uses_common_pin(s)) return;
+    if (cc.zener_part.empty()) return;
     const auto& rec = part(cc.zener_part, "common_clamp.zener_part");
     if (rec.family != "zener" && rec.family != "tvs") {
       throw std::invalid_argument("common_clamp.zener_part: part '" + rec.name + "' is a " + rec.family + "; a Zener or TVS is needed here");
     }
+    if (!uses_common_pin(s)) return;  // no channel uses the pin (e.g. a comparison's other clamps)
     out.network.add(devices::make_diode("common_zener", "supply", "common_pin",
                                         catalogue::diode_parameters(rec, carrying_coil_current(cc.zener_overrides)), level()));
     out.common_clamp_element = "common_zener";

@@ -117,6 +117,7 @@ class Reader {
   // are kept as "channel.<name>.<key>".
   void read_channels(const toml::node& v) {
     if (!v.is_array_of_tables()) fail(where(file_, v), "channel", std::string("must be an array of tables [[channel]], not ") + type_name(v));
+    s_.locations["channel"] = where(file_, v);
     for (const auto& item : *v.as_array()) {
       const auto& t = *item.as_table();
       const SourceLocation at_table = where(file_, item);
@@ -141,6 +142,7 @@ class Reader {
       ch.switch_ = sub.s_.driver.switch_;
       ch.coil = sub.s_.driver.coil;
       ch.clamp = sub.s_.driver.clamp;
+      channel_seen_[ch.name];
       for (const auto& key : sub.seen_) {
         channel_seen_[ch.name].insert(key);
         if (sub.s_.locations.count(key)) s_.locations[prefix + "." + key] = sub.s_.locations.at(key);
@@ -517,6 +519,7 @@ class Reader {
           throw ScenarioError(loc.str() + ": " + (own ? "key '" + table + "." + key + "': " : "key '" + table + "': ") + with_file_keys(rest));
         }
       }
+      if (msg.rfind("channel: ", 0) == 0) throw ScenarioError(at("channel").str() + ": key 'channel': " + with_file_keys(msg));
       const std::string key = key_of_message(msg, s_, seen_);
       const SourceLocation loc = key.empty() ? SourceLocation{file_, 1, 1} : at(key);
       throw ScenarioError(loc.str() + ": " + (key.empty() ? "" : "key '" + key + "': ") + with_file_keys(msg));
