@@ -35,8 +35,9 @@ int cmd_report(const CommonOptions& o, const std::string& output, int samples, u
   const char* old = std::getenv("PYTHONPATH");
   const std::string path = package_parent + (old && *old ? std::string(":") + old : std::string());
   setenv("PYTHONPATH", path.c_str(), 1);
-  std::vector<std::string> args{python, "-m", "coilkick.review_page", o.file, "--samples", std::to_string(samples), "--seed",
-                                std::to_string(seed)};
+  // (The package imports review_page itself, so run its main rather than the module as __main__.)
+  std::vector<std::string> args{python, "-c", "import sys; from coilkick.review_page import main; sys.exit(main(sys.argv[1:]))",
+                                o.file, "--samples", std::to_string(samples), "--seed", std::to_string(seed)};
   if (!output.empty()) args.insert(args.end(), {"--output", output});
   if (!o.models_dir.empty()) args.insert(args.end(), {"--models", o.models_dir});
   if (o.quiet) args.emplace_back("--quiet");

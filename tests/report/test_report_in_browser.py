@@ -26,7 +26,7 @@ class Dom(html.parser.HTMLParser):
 
     def __init__(self):
         super().__init__()
-        self.sections, self.checks, self.scripts = [], {}, 0
+        self.sections, self.checks, self.scripts, self.channels = [], {}, 0, []
 
     def handle_starttag(self, tag, attrs):
         a = dict(attrs)
@@ -36,6 +36,8 @@ class Dom(html.parser.HTMLParser):
             self.scripts += 1
         if tag == "tr" and "data-check" in a:
             self.checks[a["data-check"]] = a
+        if tag == "tr" and "data-channel" in a:
+            self.channels.append(a["data-channel"])
 
 
 def console_messages(stderr):
@@ -51,7 +53,7 @@ def test_console_detection_catches_a_blocked_load(tmp_path):
     assert console_messages(out.stderr)
 
 
-@pytest.mark.parametrize("scenario", ["greenhouse_valve.toml", "fan_relay.toml"])
+@pytest.mark.parametrize("scenario", ["greenhouse_valve.toml", "fan_relay.toml", "greenhouse_valve_bank.toml"])
 def test_the_report_in_a_real_browser(scenario, tmp_path, program):
     path = os.path.join(MODELS, "scenarios", scenario)
     page = tmp_path / "review.html"
@@ -71,6 +73,8 @@ def test_the_report_in_a_real_browser(scenario, tmp_path, program):
     # Every rating check, with the command's own numbers and verdicts.
     report = json.loads(run([program, "run", path, "--json"]).stdout)
     assert set(dom.checks) == {c["name"] for c in report["checks"]}
+    # A board of several channels: a row per channel, named as the command names them.
+    assert dom.channels == [c["name"] for c in report.get("channels", [])]
     for c in report["checks"]:
         row = dom.checks[c["name"]]
         assert row["data-status"] == c["status"]

@@ -90,7 +90,7 @@ def _drawing(scenario):
     box(*switch_box, "switch (%s)" % scenario.switch_part.split("_")[0], "#f4ece4")
     text(330, 180, "switch node")
     if kind != "none":
-        across_coil = kind in ("diode", "diode_zener", "diode_resistor", "rc_across_coil")
+        across_coil = kind in ("diode", "diode_zener", "diode_resistor", "rc_across_coil", "common_pin")
         target = coil_box if across_coil else switch_box
         x = 380
         top, bottom = target[1] - 10, target[1] + target[3] + 10
@@ -139,6 +139,15 @@ def build(scenario, samples=200, seed=1, progress=None):
         hold_names = [n for n in run.metrics if n.startswith("hold_") and math.isfinite(run.metrics[n])]
         data["hold"] = {"rows": [{"name": n, "value": run.metrics[n], "text": _si(run.metrics[n], _unit(n))} for n in hold_names],
                         "svg": _svg(plot.hold(rows, title="the hold per clamp"))}
+    # A board of several channels: one row per channel from the same run.
+    columns = [("coil_current_at_switch_off_A", "coil current"), ("switch_voltage_peak_V", "peak switch voltage"),
+               ("coil_end_peak_V", "peak across the coil"), ("clamp_energy_J", "clamp energy"), ("release_time_s", "release time"),
+               ("current_decay_time_10pct_s", "current down to 10 %")]
+    data["channel_columns"] = columns
+    data["channels"] = [{"name": c.name, "overall": c.overall,
+                         "cells": [(n, c.metrics[n], _si(c.metrics[n], _unit(n))) for n, _ in columns]} for c in run.channels]
+    data["common_clamp_energy"] = run.metrics["common_clamp_energy_J"]
+    data["common_clamp_energy_text"] = _si(run.metrics["common_clamp_energy_J"], "J")
     compare_rows = []
     for r in rows:
         m = r.result.metrics if r.result else {}
