@@ -305,7 +305,7 @@ TEST_CASE("every bundled scenario reads") {
   }
 }
 
-TEST_CASE("[[channel]] tables start from the first channel and replace what they name; their keys sweep by channel") {
+TEST_CASE("[[channel]] tables start from the first channel and replace what they name, and their keys sweep by channel") {
   auto lines = base_lines();
   lines.push_back("[[channel]]");                      // 21
   lines.push_back("name = \"fan\"");                   // 22
