@@ -26,6 +26,9 @@ struct Builder {
   devices::ModelLevel level() const { return s.analysis.model_level; }
   // A name of this channel's own (node or element): plain in the first channel, "<name>." before it in the others.
   std::string n(const std::string& local) const { return out.local(local); }
+  // A board of several channels with a cable: every coil's common side runs on one shared core
+  // (the field wiring's common wire), each coil's switched side on a core of its own.
+  bool shared_cable_core = false;
 
   Overrides with_temperature(Overrides o) const {
     if (!o.count("temperature")) o["temperature"] = s.analysis.device_temperature_C;
@@ -184,14 +187,18 @@ struct Builder {
     const std::string board_a = out.high_side ? n("switch") : "supply", board_k = out.high_side ? Network::ground : n("switch");
     // Field wiring: the coil at the cable's far end, its terminals "coil_in" (where its current
     // enters) and "coil_out"; the clamp and the switch stay on the board.
-    const std::string a = s.cable.present() ? "coil_in" : board_a, k = s.cable.present() ? "coil_out" : board_k;
+    const std::string a = s.cable.present() ? n("coil_in") : board_a, k = s.cable.present() ? n("coil_out") : board_k;
     if (s.cable.present()) {
       const auto& cb = s.cable;
       const double delay = cb.delay_s();
+      // With a shared common core the pair's line carries its own core's resistance; the common
+      // core's is one resistor to the board for all channels (common_cable_core()).
+      const double loop_ohm = shared_cable_core ? 0.5 * cb.loop_resistance_ohm() : cb.loop_resistance_ohm();
+      const std::string near_a = shared_cable_core && !out.high_side ? "cable_common" : board_a;
+      const std::string near_k = shared_cable_core && out.high_side ? "cable_common" : board_k;
       out.network.add(std::make_shared<engine::TransmissionLine>(
-          "cable", board_a, board_k, a, k,
-          engine::TransmissionLineParameters{cb.characteristic_impedance_ohm(), delay, cb.loop_resistance_ohm(),
-                                             cb.high_frequency_loss_fraction * delay}));
+          n("cable"), near_a, near_k, a, k,
+          engine::TransmissionLineParameters{cb.characteristic_impedance_ohm(), delay, loop_ohm, cb.high_frequency_loss_fraction * delay}));
     }
     out.coil_in_node = a;
     out.coil_out_node = k;
@@ -362,6 +369,14 @@ struct Builder {
     resistor(n("logic_output"), n("logic"), n("logic_out"), d.output_resistance_ohm, false);
   }
 
+  // The shared common core of a board's field wiring (shared_cable_core): half the loop resistance,
+  // from the rail (low side) or ground (high side) to the lines' common terminal.
+  void common_cable_core() {
+    if (!shared_cable_core) return;
+    out.network.add_resistor("cable_common_core", out.high_side ? Network::ground : "supply", "cable_common", 0.5 * s.cable.loop_resistance_ohm());
+    out.cable_common_core_element = "cable_common_core";
+  }
+
   // The board's common clamp pin's Zener (CommonClampSpec), cathode at the pin, anode at the rail.
   void common_clamp() {
     const auto& cc = s.common_clamp;
@@ -394,6 +409,7 @@ std::string BuiltDriver::local(const std::string& name) const { return prefix + 
 BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalogue& parts) {
   check_driver_spec(spec);
   Builder b{spec, parts, {}};
+  b.shared_cable_core = !spec.channels.empty() && spec.cable.present();
   b.supply();
   b.logic();
   b.switch_stage();
@@ -418,6 +434,7 @@ BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalo
     const DriverSpec one = channel_driver_spec(spec, k);
     Builder cb{one, parts, {}};
     cb.out.prefix = spec.channels[k - 1].name + ".";
+    cb.shared_cable_core = b.shared_cable_core;
     try {
       cb.logic();
       cb.switch_stage();
@@ -432,6 +449,7 @@ BuiltDriver build_driver_network(const DriverSpec& spec, const catalogue::Catalo
     b.out.channels.push_back(std::move(cb.out));
   }
   b.common_clamp();
+  b.common_cable_core();
   b.extra_parts();
   return std::move(b.out);
 }

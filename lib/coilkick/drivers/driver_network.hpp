@@ -53,6 +53,9 @@ struct BuiltDriver {
   // The common clamp pin's Zener ("common_zener" between "supply" and "common_pin"), if any.
   std::string common_clamp_element;
   const catalogue::PartRecord* common_clamp_part = nullptr;
+  // A board with a cable: the coils' shared common core ("cable_common_core", from the rail or
+  // ground to "cable_common", where every channel's line "<name>.cable" starts), if any.
+  std::string cable_common_core_element;
 };
 
 // Where a common_pin clamp's diode ends: "common_pin" with a common Zener, else the rail.

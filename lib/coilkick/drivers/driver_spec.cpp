@@ -241,7 +241,15 @@ void check_channels(const DriverSpec& s) {
   auto refuse = [](bool has, const char* what) {
     if (has) throw std::invalid_argument(std::string("channel: several channels do not yet combine with ") + what);
   };
-  refuse(s.cable.present(), "a cable (each coil's own pair and the shared return core are not modelled yet)");
+  if (s.cable.present()) {
+    // One common core for all coils: it runs from the rail (low-side switches) or from ground (high side).
+    const auto high = [](const SwitchSpec& sw) { return sw.topology == Topology::high_side_pnp || sw.topology == Topology::high_side_pmos; };
+    for (const auto& ch : s.channels) {
+      if (high(ch.switch_) != high(s.switch_)) {
+        throw std::invalid_argument("channel '" + ch.name + "': with a cable every channel is low side or every channel high side (their coils share one common core)");
+      }
+    }
+  }
   refuse(s.relay.armature_model, "the relay armature model");
   refuse(s.has_periodic_drive(), "a hold or a repetition");
 }

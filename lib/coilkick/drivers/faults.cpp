@@ -63,16 +63,22 @@ struct Evaluated {
 
 // At DC a cable is its two cores, each half the loop resistance: the far end's terminals then
 // read the board's potentials less the cores' drops, as a meter at the coil would (the line
-// element carries only the pair's own voltage, so its far end would float against ground).
+// element carries only the pair's own voltage, so its far end would float against ground). On a
+// board whose coils share a common core ("cable_common_core", lumped), a line is one core: its
+// own, on the switched side; its common side is the shared core (here a 1 µΩ link).
 engine::Network with_cables_as_cores(const engine::Network& n) {
+  constexpr double kLink_ohm = 1e-6;
   engine::Network out = n;
   for (const auto& e : n.elements()) {
     const auto* line = dynamic_cast<const engine::TransmissionLine*>(e.get());
     if (!line) continue;
     const auto& t = e->terminals();
-    const double core_ohm = 0.5 * line->parameters().loop_resistance_ohm;
-    out.replace(e->name(), std::make_shared<engine::Resistor>(e->name(), t[0], t[2], core_ohm));
-    out.add_resistor(e->name() + ".return_core", t[1], t[3], core_ohm);
+    const double loop_ohm = line->parameters().loop_resistance_ohm;
+    const bool common_a = t[0] == "cable_common", common_k = t[1] == "cable_common";
+    const double a_ohm = common_a ? kLink_ohm : common_k ? loop_ohm : 0.5 * loop_ohm;
+    const double k_ohm = common_k ? kLink_ohm : common_a ? loop_ohm : 0.5 * loop_ohm;
+    out.replace(e->name(), std::make_shared<engine::Resistor>(e->name(), t[0], t[2], a_ohm));
+    out.add_resistor(e->name() + ".return_core", t[1], t[3], k_ohm);
   }
   return out;
 }

@@ -46,7 +46,7 @@ const std::vector<std::string>& metric_names() {
       // the supply rail (0 for an ideal supply)
       "supply_rail_peak_rise_V", "supply_rail_dip_V", "supply_energy_returned_J",
       // the board's common clamp pin (NaN without its Zener)
-      "common_clamp_energy_J", "common_clamp_current_peak_A",
+      "common_clamp_energy_J", "common_clamp_current_peak_A", "cable_common_core_energy_J",
       // peak-and-hold drive (NaN without it)
       "hold_pull_in_time_s", "hold_pull_in_current_A", "hold_duty", "hold_average_current_A", "hold_ripple_A",
       "hold_minimum_current_A", "hold_current_margin", "hold_clamp_average_power_W", "hold_switch_average_power_W",
@@ -58,7 +58,7 @@ const std::vector<std::string>& metric_names() {
 
 bool is_board_metric(const std::string& name) {
   for (const char* b : {"supply_rail_peak_rise_V", "supply_rail_dip_V", "supply_energy_returned_J", "common_clamp_energy_J",
-                        "common_clamp_current_peak_A", "energy_balance_error"}) {
+                        "common_clamp_current_peak_A", "cable_common_core_energy_J", "energy_balance_error"}) {
     if (name == b) return true;
   }
   return false;

@@ -102,7 +102,7 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
   m.set("switch_energy_J", energy(b.switch_elements));
   m.set("switch_breakdown_energy_J", energy(b.switch_elements, "breakdown_heat"));
   m.set("extra_parts_energy_J", b.extra_elements.empty() ? 0.0 : energy(b.extra_elements));
-  m.set("cable_energy_J", spec.cable.present() ? energy({"cable"}) : 0.0);
+  m.set("cable_energy_J", spec.cable.present() ? energy({b.local("cable")}) : 0.0);
   m.set("energy_balance_error", off.blocks ? energy_balance_error(r, t_off, x_off, x_end) : kNaN);
   for (const auto& element : b.clamp_part_elements) out.clamp_part_energy_J.push_back(energy({element}));
 
@@ -162,6 +162,14 @@ void measure_common_clamp(const BuiltDriver& board, const engine::TransientResul
   }
   m.set("common_clamp_energy_J", e);
   m.set("common_clamp_current_peak_A", i_pk);
+  // A board's field wiring: the heat in the coils' shared common core (its lines' own in each
+  // channel's cable_energy_J).
+  double e_core = 0.0;
+  if (!board.cable_common_core_element.empty()) {
+    const Eigen::VectorXd x_end = r.states().row(r.states().rows() - 1).transpose();
+    e_core = blocks ? heat_between(r.circuit(), r.sample(t_off_s), x_end, {board.cable_common_core_element}) : kNaN;
+  }
+  m.set("cable_common_core_energy_J", e_core);
 }
 
 SwitchOffWaveforms switch_off_waveforms(const BuiltDriver& b, const engine::TransientResult& r) {
