@@ -6,6 +6,7 @@
 
 #include "coilkick/drivers/faults.hpp"
 #include "commands.hpp"
+#include "progress.hpp"
 #include "report_format.hpp"
 
 namespace coilkick::cli {
@@ -35,7 +36,7 @@ nlohmann::json case_json(const drivers::FaultCase& c) {
 
 int cmd_faults(const CommonOptions& o, const std::string& csv_path, std::ostream& out) {
   const Loaded l = load(o);
-  const auto rep = drivers::analyse_faults(l.scenario.driver, l.parts);
+  const auto rep = drivers::analyse_faults(l.scenario.driver, l.parts, progress_bar(o.quiet, "faults"));
   if (!csv_path.empty()) {
     std::ofstream f(csv_path);
     if (!f) throw std::invalid_argument("--csv: cannot write '" + csv_path + "'");

@@ -226,7 +226,7 @@ const std::vector<std::string>& symptom_names() {
   return n;
 }
 
-FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& parts) {
+FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& parts, const std::function<void(int, int)>& progress) {
   const BuiltDriver healthy = build_driver_network(spec, parts);
   FaultReport rep;
   rep.healthy = evaluate(spec, healthy, "none", "healthy", true);
@@ -313,7 +313,9 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
     low.out.network.set_source_waveform("supply", engine::Waveform::constant(kLowSupply * spec.supply.voltage_V));
     add_case("supply", "low (75 %)", low);
   }
+  int done = 0;
   for (const auto& [id, built] : cases) {
+    if (progress) progress(done++, static_cast<int>(cases.size()));
     DriverSpec s = spec;
     if (id.first == "supply") s.supply.voltage_V *= kLowSupply;
     const std::size_t k = channel_of(spec, id.first);
@@ -323,6 +325,7 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
     classify(f, rep.healthy_for(f.channel), s, built, parts);
     rep.faults.push_back(std::move(f));
   }
+  if (progress) progress(done, static_cast<int>(cases.size()));
   for (std::size_t k = 0; k < rep.faults.size(); ++k) {
     for (const auto& sym : rep.faults[k].symptoms) rep.by_symptom[sym].push_back(static_cast<int>(k));
     if (!rep.faults[k].error.empty()) rep.by_symptom["simulation failed"].push_back(static_cast<int>(k));

@@ -12,6 +12,7 @@
 // "relay never operates", "relay never releases", "relay releases slowly", "driver part
 // overheats", or "no visible symptom".
 // Modelling: open = 1 Tohm, shorted = 10 mohm, leaky junction = 100 kohm, as stated in the report.
+#include <functional>
 #include <map>
 #include <string>
 #include <vector>
@@ -58,6 +59,8 @@ struct FaultReport {
 const std::vector<std::string>& symptom_names();
 
 // Throws like simulate_switch_off for a bad description; a fault whose runs fail keeps its error.
-FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& parts);
+// `progress(done, total)` after each fault case (the healthy board first).
+FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& parts,
+                           const std::function<void(int, int)>& progress = {});
 
 }  // namespace coilkick::drivers
