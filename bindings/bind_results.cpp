@@ -80,9 +80,11 @@ void DefineResults(py::module_& m) {
           "channels",
           [](const PyRun& p) {
             py::list l;
-            for (const auto& ch : p.r->channels) {
+            for (std::size_t k = 0; k < p.r->channels.size(); ++k) {
+              const auto& ch = p.r->channels[k];
               py::dict d;
               d["name"] = ch.name.empty() ? "first" : ch.name;
+              d["switch_off_at_s"] = drivers::channel_driver_spec(p.r->spec, k).drive.switch_off_at_s;
               d["metrics"] = metrics_dict(ch.metrics);
               d["checks"] = checks_list(ch.checks);
               d["overall"] = drivers::to_string(drivers::overall_status(ch.checks));
@@ -94,7 +96,7 @@ void DefineResults(py::module_& m) {
             return l;
           },
           "a board of several channels (scenario [[channel]]): one dict per channel, the first (top-level) channel "
-          "first — 'name', 'metrics', 'checks', 'overall', waveforms 'time_s', 'switch_voltage_V', 'coil_current_A' "
+          "first — 'name', 'metrics', 'checks', 'overall', 'switch_off_at_s' (its edge), waveforms 'time_s', 'switch_voltage_V', 'coil_current_A' "
           "(copies); empty with one channel. metrics/checks/overall above are the first channel's with the board's, "
           "checks every channel's")
       .def_property_readonly("node_names", [](const PyRun& p) { return p.r->transient->circuit().node_names(); })

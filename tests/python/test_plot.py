@@ -55,3 +55,21 @@ def test_hold_plot_shows_the_ripple_and_the_release_from_the_hold(relay_dict):
         raise AssertionError("expected ValueError")
     except ValueError as e:
         assert "[hold]" in str(e)
+
+
+def test_channels_plot_draws_every_channel_and_marks_its_release(relay_dict):
+    board = dict(relay_dict)
+    board["channel"] = [{"name": "fast", "coil": {"inductance": "300 mH"}}, {"name": "late", "drive": {"switch_off_at": "300 us"}}]
+    r = coilkick.run(coilkick.scenario_from_dict(board))
+    f = coilkick.plot.channels(r)
+    assert f.axes[0].get_ylabel() == "switch voltage (V)" and f.axes[1].get_ylabel() == "coil current (mA)"
+    # Per channel a current line and its release dot; the late channel's dot 0.2 ms after its own release time.
+    assert len(f.axes[1].lines) == 6
+    late_dot = f.axes[1].lines[5].get_xdata()[0]
+    assert abs(late_dot - 1e3 * (0.2e-3 + r.channels[2].metrics.release_time_s)) < 1e-9
+    # One channel: nothing to draw per channel, an error rather than an empty chart.
+    try:
+        coilkick.plot.channels(coilkick.run(coilkick.scenario_from_dict(relay_dict)))
+        assert False, "expected an error"
+    except ValueError as e:
+        assert "one channel" in str(e)

@@ -58,7 +58,7 @@ class RunResult:
     time_s, switch_voltage_V, coil_current_A, clamp_current_A, armature_gap_m (armature model only,
     else empty): numpy arrays sharing the result's memory; hold: the PWM hold's waveforms (or None);
     channels: on a board of several channels (scenario [[channel]]) one AttrDict per channel, the
-    first (top-level) one first — name, metrics, checks, overall, time_s, switch_voltage_V,
+    first (top-level) one first — name, metrics, checks, overall, switch_off_at_s, time_s, switch_voltage_V,
     coil_current_A — else empty. On a board, metrics are the first channel's with the board's and
     every further channel's behind its name ("pump.release_time_s"); checks are every channel's."""
 

@@ -1,5 +1,5 @@
 """Plots of coilkick results (matplotlib), in a style of our own: switch-off waveforms with clamps
-overlaid, a PWM hold's ripple and the release from it, a fit to a bench capture (overlay), the clamp comparison chart, release time against peak switch voltage with the switch
+overlaid, every channel of a board, a PWM hold's ripple and the release from it, a fit to a bench capture (overlay), the clamp comparison chart, release time against peak switch voltage with the switch
 rating and its derated limit, and Monte Carlo histograms. Every axis is labelled with its unit."""
 import numpy as np
 
@@ -71,6 +71,45 @@ def switch_off(items, t_end_s=None, title=None):
     if not armature:
         ai.set_xlabel("time after the start of switch-off (ms)")
     for ax in axes:
+        _style(ax)
+    av.legend(fontsize=8, frameon=False, loc="upper right")
+    if title:
+        fig.suptitle(title)
+    fig.tight_layout()
+    return fig
+
+
+def channels(run, t_end_s=None, title=None):
+    """A board of several channels (scenario [[channel]]) from one run: each channel's switch voltage
+    (top) and coil current against the time after the first switch-off edge, its release marked
+    with a dot. Returns the figure."""
+    plt = _plt()
+    chans = run.channels
+    if not chans:
+        raise ValueError("channels: the run has one channel (give a scenario with [[channel]] tables)")
+    t0 = min(c.switch_off_at_s for c in chans)
+    if t_end_s is None:
+        ends = [c.switch_off_at_s - t0 + c.metrics["current_decay_time_10pct_s"] for c in chans]
+        ends = [x for x in ends if np.isfinite(x)]
+        t_end_s = 1.3 * max(ends) if ends else None
+    fig, (av, ai) = plt.subplots(2, 1, sharex=True, figsize=(8, 6))
+    for k, c in enumerate(chans):
+        tt = (c.time_s - t0) * 1e3
+        keep = tt >= 0 if t_end_s is None else (tt >= 0) & (tt <= t_end_s * 1e3)
+        colour = PALETTE[k % len(PALETTE)]
+        av.plot(tt[keep], c.switch_voltage_V[keep], color=colour, label=c.name, linewidth=1.5)
+        ai.plot(tt[keep], c.coil_current_A[keep] * 1e3, color=colour, linewidth=1.5)
+        t_rel = c.metrics["release_time_s"]
+        if np.isfinite(t_rel):
+            t_mark = (c.switch_off_at_s - t0 + t_rel) * 1e3  # release is timed from the channel's own edge
+            ai.plot([t_mark], [np.interp(t_mark, tt, c.coil_current_A * 1e3)], marker="o", color=colour, markersize=5)
+    rating = run.metrics["switch_voltage_rating_V"]
+    if np.isfinite(rating):
+        av.axhline(rating, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="switch rating")
+    av.set_ylabel("switch voltage (V)")
+    ai.set_ylabel("coil current (mA)")
+    ai.set_xlabel("time after the first switch-off edge (ms); dot: release")
+    for ax in (av, ai):
         _style(ax)
     av.legend(fontsize=8, frameon=False, loc="upper right")
     if title:
