@@ -17,12 +17,9 @@ namespace {
 // release of any channel, energies summed over the channels (and the common pin's Zener).
 enum class Across { highest, sum };
 double board_value(const drivers::Metrics& m, const std::vector<std::string>& further, const std::string& name, Across how) {
+  if (how == Across::highest) return drivers::highest_over_channels(m, further, name);
   double v = m.get(name);
-  for (const auto& ch : further) {
-    const double x = m.get(ch + "." + name);
-    if (how == Across::sum) v += x;
-    else if (std::isnan(v) || x > v) v = x;
-  }
+  for (const auto& ch : further) v += m.get(ch + "." + name);
   if (how == Across::sum && name == "clamp_energy_J" && !std::isnan(m.get("common_clamp_energy_J"))) v += m.get("common_clamp_energy_J");
   return v;
 }

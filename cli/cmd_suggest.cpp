@@ -65,14 +65,16 @@ int cmd_suggest(const CommonOptions& o, const std::string& max_release_time, con
   const bool hold = l.scenario.driver.has_periodic_drive();
   if (hold) out << std::setw(12) << "hold clamp" << std::setw(10) << "front";
   out << "  checks\n";
+  const auto further = drivers::further_channel_names(l.scenario.driver);
+  auto board = [&](const drivers::Metrics& m, const std::string& name) { return drivers::highest_over_channels(m, further, name); };
   int shown = 0;
   for (const auto& g : list) {
     if (!g.meets || shown >= top) break;
     ++shown;
     out << std::left << std::setw(5) << shown << std::setw(18) << drivers::to_string(g.clamp.kind) << std::setw(34) << g.parts << std::right
-        << std::setw(11) << metric_text("x_s", g.run.metrics.get(lim.time_metric)) << std::setw(8)
+        << std::setw(11) << metric_text("x_s", board(g.run.metrics, lim.time_metric)) << std::setw(8)
         << static_cast<int>(std::lround(100 * g.release_margin)) << "%" << std::setw(11)
-        << metric_text("x_V", g.run.metrics.get("switch_voltage_peak_V")) << std::setw(8) << static_cast<int>(std::lround(100 * g.voltage_margin))
+        << metric_text("x_V", board(g.run.metrics, "switch_voltage_peak_V")) << std::setw(8) << static_cast<int>(std::lround(100 * g.voltage_margin))
         << "%";
     if (hold) {
       out << std::setw(12) << metric_text("x_W", g.run.metrics.get("hold_clamp_average_power_W")) << std::setw(10)
@@ -81,6 +83,9 @@ int cmd_suggest(const CommonOptions& o, const std::string& max_release_time, con
     out << "  " << drivers::to_string(g.run.status) << "\n";
   }
   if (shown == 0) out << "  none of the candidates meets both limits; relax one, or choose another switch\n";
+  if (!further.empty()) {
+    out << "\nA board of " << further.size() + 1 << " channels, each with the candidate clamp: the slowest release and the highest peak of any channel.\n";
+  }
   if (hold) {
     out << "\nPWM hold: release times from the hold's steady state; hold clamp: the clamp's average power in\n"
            "hold. Ranked front first: no other candidate is both cooler in hold and no slower to release.\n";

@@ -29,9 +29,12 @@ std::vector<Suggestion> suggest_clamps(const scenario::Scenario& s, const catalo
   }
   // The time a candidate is judged by; the current-based release time falls back to the 10 %
   // decay when the scenario gives no release threshold.
+  // On a board of several channels: the slowest and highest of any channel (every channel takes
+  // the candidate clamp).
+  const auto further = drivers::further_channel_names(s.driver);
   auto time_of = [&](const drivers::Metrics& m) {
-    const double t = m.get(limits.time_metric);
-    return std::isnan(t) && !contacts ? m.get("current_decay_time_10pct_s") : t;
+    const double t = drivers::highest_over_channels(m, further, limits.time_metric);
+    return std::isnan(t) && !contacts ? drivers::highest_over_channels(m, further, "current_decay_time_10pct_s") : t;
   };
   using drivers::ClampKind;
   const drivers::ClampSpec base = s.driver.clamp;
@@ -95,10 +98,11 @@ std::vector<Suggestion> suggest_clamps(const scenario::Scenario& s, const catalo
     auto& g = out[static_cast<std::size_t>(i)];
     drivers::DriverSpec d = s.driver;
     d.clamp = g.clamp;
+    for (auto& ch : d.channels) ch.clamp = g.clamp;
     g.run = summarize_run(d, parts);
     if (!g.run.ok()) return;
     const double t_use = time_of(g.run.metrics);
-    const double v = g.run.metrics.get("switch_voltage_peak_V");
+    const double v = drivers::highest_over_channels(g.run.metrics, further, "switch_voltage_peak_V");
     g.release_margin = (limits.max_release_time_s - t_use) / limits.max_release_time_s;
     g.voltage_margin = (limits.max_switch_voltage_V - v) / limits.max_switch_voltage_V;
     g.meets = std::isfinite(t_use) && g.release_margin >= 0.0 && g.voltage_margin >= 0.0 &&

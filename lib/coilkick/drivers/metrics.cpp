@@ -1,5 +1,6 @@
 #include "coilkick/drivers/metrics.hpp"
 
+#include <cmath>
 #include <stdexcept>
 
 #include "coilkick/engine/closest_name.hpp"
@@ -62,6 +63,15 @@ bool is_board_metric(const std::string& name) {
     if (name == b) return true;
   }
   return false;
+}
+
+double highest_over_channels(const Metrics& m, const std::vector<std::string>& further_channels, const std::string& name) {
+  double v = m.get(name);
+  for (const auto& ch : further_channels) {
+    const double x = m.get(ch + "." + name);
+    if (std::isnan(v) || x > v) v = x;
+  }
+  return v;
 }
 
 std::vector<std::string> metric_names(const std::vector<std::string>& further_channels) {

@@ -25,5 +25,8 @@ const std::vector<std::string>& metric_names();
 // which a board does not have).
 std::vector<std::string> metric_names(const std::vector<std::string>& further_channels);
 bool is_board_metric(const std::string& name);
+// A board's worst channel for a metric: the highest of the first channel's `name` and every
+// further channel's "<channel>.<name>" (NaN only where all are NaN).
+double highest_over_channels(const Metrics& m, const std::vector<std::string>& further_channels, const std::string& name);
 
 }  // namespace coilkick::drivers
