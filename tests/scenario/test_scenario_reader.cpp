@@ -185,6 +185,8 @@ TEST_CASE("bad scenario inputs: one clear message with file:line:column each") {
       {"negative cable length", 0, "[cable]\nlength = \"-3 m\"", 22, "key 'cable.length': cable.length must be"},
       {"cable capacitance not per metre", 0, "[cable]\nlength = \"60 m\"\ncapacitance_per_metre = \"80 pF\"", 23,
        "is a capacitance, but a capacitance per metre (F/m)"},
+      {"a hold with a cable", 0, "[cable]\nlength = \"60 m\"\n[hold]\npull_in_time = \"20 ms\"\npwm_frequency = \"20 kHz\"\npwm_duty = 0.5", 23,
+       "a PWM hold or a repetition with a cable is not available yet"},
       {"misspelt cable key", 0, "[cable]\nlenght = \"60 m\"", 22, "did you mean 'cable.length'?"},
       {"cable loss fraction of the whole delay", 0, "[cable]\nlength = \"60 m\"\nhigh_frequency_loss_fraction = 1.5", 23,
        "key 'cable.high_frequency_loss_fraction'"},

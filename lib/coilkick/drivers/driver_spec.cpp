@@ -365,6 +365,13 @@ void check_driver_spec(const DriverSpec& s) {
   require_positive("analysis", "maximum_wall_time_s", s.analysis.maximum_wall_time_s);
   check_hold(s);
   check_repeat(s);
+  if (s.cable.present() && s.has_periodic_drive()) {
+    // The hold's period map and its stages start each run with the line settled: the waves in
+    // transit between PWM edges would be lost (and each period of a cable run is costly).
+    throw std::invalid_argument(std::string(s.hold.present() ? "hold" : "repeat") +
+                                ": a PWM hold or a repetition with a cable is not available yet (the periodic runs would lose the "
+                                "waves in transit on the line); remove the cable or the periodic drive");
+  }
   for (const auto& x : s.extra_parts) {
     const std::string owner = "extra_part '" + x.name + "'";
     if (x.name.empty()) throw std::invalid_argument("extra_part: every extra part needs a name");

@@ -202,7 +202,7 @@ PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& 
   check_state(c, guess);
   if (c.has_history()) {
     // A line's waves in transit are state too, which a period map of x alone would miss.
-    throw std::invalid_argument("periodic steady state: not available for a circuit with a cable (a transmission line); simulate the periods one by one");
+    throw std::invalid_argument("periodic steady state: not available for a circuit with a cable (a transmission line)");
   }
   Shooter s(c, step_options, options, guess.time_s);
   Eigen::VectorXd x = guess.values.head(coupled_count(c));
