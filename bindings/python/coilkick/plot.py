@@ -34,6 +34,23 @@ def _results(items):
     return out
 
 
+def _finish_voltage_current(fig, axes, rating_V, title):
+    """Switch voltage (axes[0], with the switch's rating dashed) over coil current (axes[1]): labels,
+    style, legend, title."""
+    av, ai = axes[0], axes[1]
+    if np.isfinite(rating_V):
+        av.axhline(rating_V, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="switch rating")
+    av.set_ylabel("switch voltage (V)")
+    ai.set_ylabel("coil current (mA)")
+    for ax in axes:
+        _style(ax)
+    av.legend(fontsize=8, frameon=False, loc="upper right")
+    if title:
+        fig.suptitle(title)
+    fig.tight_layout()
+    return fig
+
+
 def switch_off(items, t_end_s=None, title=None):
     """Switch voltage (top) and coil current against the time after switch-off, one line per result;
     with the armature model a third panel shows the armature gap, each curve marked where the contact
@@ -63,20 +80,10 @@ def switch_off(items, t_end_s=None, title=None):
     if armature:
         axes[2].set_ylabel("armature gap (mm)")
         axes[2].set_xlabel("time after the start of switch-off (ms); dot: contact opens")
-    rating = next((r.metrics["switch_voltage_rating_V"] for _, r in pairs), float("nan"))
-    if np.isfinite(rating):
-        av.axhline(rating, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="switch rating")
-    av.set_ylabel("switch voltage (V)")
-    ai.set_ylabel("coil current (mA)")
     if not armature:
         ai.set_xlabel("time after the start of switch-off (ms)")
-    for ax in axes:
-        _style(ax)
-    av.legend(fontsize=8, frameon=False, loc="upper right")
-    if title:
-        fig.suptitle(title)
-    fig.tight_layout()
-    return fig
+    rating = next((r.metrics["switch_voltage_rating_V"] for _, r in pairs), float("nan"))
+    return _finish_voltage_current(fig, axes, rating, title)
 
 
 def channels(run, t_end_s=None, title=None):
@@ -103,19 +110,8 @@ def channels(run, t_end_s=None, title=None):
         if np.isfinite(t_rel):
             t_mark = (c.switch_off_at_s - t0 + t_rel) * 1e3  # release is timed from the channel's own edge
             ai.plot([t_mark], [np.interp(t_mark, tt, c.coil_current_A * 1e3)], marker="o", color=colour, markersize=5)
-    rating = run.metrics["switch_voltage_rating_V"]
-    if np.isfinite(rating):
-        av.axhline(rating, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="switch rating")
-    av.set_ylabel("switch voltage (V)")
-    ai.set_ylabel("coil current (mA)")
     ai.set_xlabel("time after the first switch-off edge (ms); dot: release")
-    for ax in (av, ai):
-        _style(ax)
-    av.legend(fontsize=8, frameon=False, loc="upper right")
-    if title:
-        fig.suptitle(title)
-    fig.tight_layout()
-    return fig
+    return _finish_voltage_current(fig, (av, ai), run.metrics["switch_voltage_rating_V"], title)
 
 
 def hold(items, title=None):
