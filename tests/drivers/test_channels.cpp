@@ -174,7 +174,7 @@ TEST_CASE("channel errors name the channel and the field") {
   CHECK_THROWS_WITH_AS(build_driver_network(s, test_support::catalogue()), doctest::Contains("channel 'b': switch.part"), std::invalid_argument);
 }
 
-TEST_CASE("coils on a shared cable's common core: on-currents by nodal analysis, each pair's own delay") {
+TEST_CASE("coils on a shared cable's common core: on-currents by nodal analysis, and each coil's own peak at the far end") {
   // Field wiring of a board: every coil's common side on one core back to the rail, each switched
   // side on a core of its own (60 m, 26 Ω/km per core: 1.56 Ω each). At DC the common core carries
   // the sum: V_s − V_sw,k = (R_k + R_core)·I_k + R_core·Σ_j I_j for each channel k — the node-voltage
