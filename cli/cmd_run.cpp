@@ -82,9 +82,15 @@ void channel_table(std::ostream& out, const drivers::SwitchOffResult& r) {
     for (const auto& [label, metric] : cols) out << std::setw(14) << metric_text(metric, ch.metrics.get(metric));
     out << status_word(drivers::overall_status(ch.checks)) << "\n";
   }
-  out << "  the common clamp pin's Zener: " << metric_text("common_clamp_energy_J", r.metrics.get("common_clamp_energy_J"))
-      << " (common_clamp_energy_J), peak " << metric_text("common_clamp_current_peak_A", r.metrics.get("common_clamp_current_peak_A"))
-      << " (common_clamp_current_peak_A)\n";
+  if (!std::isnan(r.metrics.get("common_clamp_current_peak_A"))) {
+    out << "  the common clamp pin's Zener: " << metric_text("common_clamp_energy_J", r.metrics.get("common_clamp_energy_J"))
+        << " (common_clamp_energy_J), peak " << metric_text("common_clamp_current_peak_A", r.metrics.get("common_clamp_current_peak_A"))
+        << " (common_clamp_current_peak_A)\n";
+  }
+  if (r.metrics.get("cable_common_core_energy_J") > 0.0) {
+    out << "  the cable's shared common core: " << metric_text("cable_common_core_energy_J", r.metrics.get("cable_common_core_energy_J"))
+        << " (cable_common_core_energy_J)\n";
+  }
 }
 
 }  // namespace
