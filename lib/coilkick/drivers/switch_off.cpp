@@ -68,11 +68,10 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
 
   // The first channel's metrics with the board's, then every further channel's behind its name.
   out.metrics = out.channels.front().metrics;
+  const std::vector<std::string> names = metric_names(further_channel_names(spec));
   for (std::size_t k = 1; k < out.channels.size(); ++k) {
-    std::vector<std::string> further;
-    for (std::size_t j = 1; j < out.channels.size(); ++j) further.push_back(out.channels[j].name);
     const std::string prefix = out.channels[k].name + ".";
-    for (const auto& name : metric_names(further)) {
+    for (const auto& name : names) {
       if (name.rfind(prefix, 0) == 0) out.metrics.set(name, out.channels[k].metrics.get(name.substr(prefix.size())));
     }
   }

@@ -81,7 +81,7 @@ class Reader {
         continue;
       }
       if (key == "channel") {
-        channels = &v;  // read once the first channel is complete: they start from it
+        channel_tables_ = &v;  // read once the first channel is complete: they start from it
         continue;
       }
       static const std::vector<std::string> sections{"supply", "cable", "drive", "hold", "repeat", "switch", "coil", "clamp",
@@ -106,7 +106,7 @@ class Reader {
     require_keys(doc);
     check_ranges();
     if (s_.driver.relay.armature_model) drivers::freeze_relay_datasheet(s_.driver);
-    if (channels) read_channels(*channels);
+    if (channel_tables_) read_channels(*channel_tables_);
     validate_spec();
     return s_;
   }
@@ -184,7 +184,7 @@ class Reader {
   std::set<std::string> seen_;
   std::set<std::string> inherited_;  // a channel's reader: the keys the first channel gave
   std::map<std::string, std::set<std::string>> channel_seen_;  // by channel name: the keys it gave
-  const toml::node* channels = nullptr;
+  const toml::node* channel_tables_ = nullptr;  // the [[channel]] array, read last
   std::vector<std::pair<std::string, const toml::table*>> pending_overrides_;
 
   SourceLocation at(const std::string& key) const {
