@@ -83,7 +83,7 @@ void DefineResults(py::module_& m) {
             for (std::size_t k = 0; k < p.r->channels.size(); ++k) {
               const auto& ch = p.r->channels[k];
               py::dict d;
-              d["name"] = ch.name.empty() ? "first" : ch.name;
+              d["name"] = drivers::channel_label(ch.name);
               d["switch_off_at_s"] = drivers::channel_driver_spec(p.r->spec, k).drive.switch_off_at_s;
               d["metrics"] = metrics_dict(ch.metrics);
               d["checks"] = checks_list(ch.checks);

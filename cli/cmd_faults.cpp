@@ -24,7 +24,7 @@ nlohmann::json case_json(const drivers::FaultCase& c) {
   for (const auto& r : c.readings) readings[r.node] = {{"on_V", number_json(r.on_V)}, {"off_V", number_json(r.off_V)}};
   nlohmann::json heat = nlohmann::json::object();
   for (const auto& [el, p] : c.on_state_heat_W) heat[el] = number_json(p);
-  nlohmann::json j{{"part", c.part}, {"fault", c.fault}, {"channel", c.channel.empty() ? "first" : c.channel}, {"readings", readings},
+  nlohmann::json j{{"part", c.part}, {"fault", c.fault}, {"channel", drivers::channel_label(c.channel)}, {"readings", readings},
                    {"coil_current_on_A", number_json(c.coil_current_on_A)}, {"coil_current_off_A", number_json(c.coil_current_off_A)},
                    {"supply_current_on_A", number_json(c.supply_current_on_A)}, {"on_state_heat_W", heat},
                    {"symptoms", c.symptoms}, {"reasons", c.reasons}, {"error", c.error}};

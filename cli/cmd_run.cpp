@@ -63,8 +63,6 @@ void write_waveforms(const drivers::SwitchOffResult& r, const std::string& path)
   }
 }
 
-std::string channel_label(const drivers::ChannelResult& ch) { return ch.name.empty() ? "first" : ch.name; }
-
 // A board of several channels: one line per channel, then the common clamp pin.
 void channel_table(std::ostream& out, const drivers::SwitchOffResult& r) {
   out << "Channels (each from its own switch-off edge; the first channel is the top-level tables)\n";
@@ -78,7 +76,7 @@ void channel_table(std::ostream& out, const drivers::SwitchOffResult& r) {
   for (const auto& [label, metric] : cols) out << std::setw(14) << label;
   out << "checks\n";
   for (const auto& ch : r.channels) {
-    out << "  " << std::setw(14) << channel_label(ch);
+    out << "  " << std::setw(14) << drivers::channel_label(ch.name);
     for (const auto& [label, metric] : cols) out << std::setw(14) << metric_text(metric, ch.metrics.get(metric));
     out << status_word(drivers::overall_status(ch.checks)) << "\n";
   }
@@ -119,7 +117,7 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
     if (!r.channels.empty()) {
       nlohmann::json a = nlohmann::json::array();
       for (const auto& ch : r.channels) {
-        a.push_back({{"name", channel_label(ch)}, {"metrics", metrics_json(ch.metrics)}, {"checks", checks_json(ch.checks)},
+        a.push_back({{"name", drivers::channel_label(ch.name)}, {"metrics", metrics_json(ch.metrics)}, {"checks", checks_json(ch.checks)},
                      {"overall", drivers::to_string(drivers::overall_status(ch.checks))}});
       }
       j["channels"] = a;

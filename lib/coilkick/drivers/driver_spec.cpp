@@ -207,6 +207,12 @@ DriverSpec channel_driver_spec(const DriverSpec& s, std::size_t k) {
   return one;
 }
 
+double first_edge_s(const DriverSpec& s) {
+  double t = s.drive.switch_off_at_s;
+  for (const auto& ch : s.channels) t = std::min(t, ch.drive.switch_off_at_s);
+  return t;
+}
+
 double last_edge_end_s(const DriverSpec& s) {
   double t = s.drive.switch_off_at_s + s.drive.fall_time_s;
   for (const auto& ch : s.channels) t = std::max(t, ch.drive.switch_off_at_s + ch.drive.fall_time_s);

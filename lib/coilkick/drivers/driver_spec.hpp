@@ -252,11 +252,14 @@ struct DriverSpec {
 // Channel k of the board (0: the top-level one) as a driver of its own: the top-level spec with
 // that channel's drive, switch, coil and clamp, and no further channels.
 DriverSpec channel_driver_spec(const DriverSpec& s, std::size_t k);
+// How reports name a channel: its name, "first" for the top-level one (whose name is empty).
+inline std::string channel_label(const std::string& name) { return name.empty() ? "first" : name; }
 // The further channels' names, in order.
 std::vector<std::string> further_channel_names(const DriverSpec& s);
 // Some channel's clamp is common_pin (the common Zener is built only then).
 bool uses_common_pin(const DriverSpec& s);
-// Every channel's switch-off edge has ended by then.
+// The first channel's switch-off edge to start, and the time every channel's edge has ended.
+double first_edge_s(const DriverSpec& s);
 double last_edge_end_s(const DriverSpec& s);
 
 // Throws std::invalid_argument naming the field (e.g. "coil.inductance_H must be > 0"; in a

@@ -27,10 +27,6 @@ engine::CircuitState solve_off_point(const DriverSpec& spec, const BuiltDriver& 
   return off;
 }
 
-OffState solve_off_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, double on_coil_current_A) {
-  return read_off_state(spec, b, b.network, c, solve_off_point(spec, b, c), on_coil_current_A);
-}
-
 OffState read_off_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Network& board, const engine::Circuit& c,
                         const engine::CircuitState& off, double on_coil_current_A) {
   OffState s;

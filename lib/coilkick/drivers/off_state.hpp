@@ -23,7 +23,6 @@ struct OffState {
 };
 
 // Throws engine::SimulationError if the operating point cannot be solved.
-OffState solve_off_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, double on_coil_current_A);
 // The board's off-state: the DC point once every channel's drive is low (relays released).
 engine::CircuitState solve_off_point(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c);
 // One channel's reading of it (`b` may be a further channel's view; `board` the whole network).

@@ -40,7 +40,7 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
     channels.front().on.state = start;
     channels.front().on.coil_current_A = start.values[circuit.state_index("coil.current")];
   }
-  const SwitchOffTransient run = run_switch_off_transient(channels, circuit, start);
+  const SwitchOffTransient run = run_switch_off_transient(spec, channels, circuit, start);
 
   out.spec = spec;
   out.transient = run.result;
@@ -59,11 +59,14 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
     if (&ch == &channels.front()) set_hold_metrics(spec, out.hold.get(), r.metrics);
     out.channels.push_back(std::move(r));
   }
-  // The board's metrics and checks: the common clamp pin, from the first edge on.
-  double first_edge = spec.drive.switch_off_at_s;
-  for (const auto& ch : channels) first_edge = std::min(first_edge, ch.spec.drive.switch_off_at_s);
-  for (auto& r : out.channels) measure_common_clamp(b, *run.result, first_edge, all_block, r.metrics);
-  const auto common_checks = common_clamp_checks(b, out.channels.front().metrics, slowest_decay_s);
+  // The board's metrics (the common clamp pin, the shared cable core, from the first edge on),
+  // measured once and carried by every channel; its checks with the first channel's.
+  Metrics board;
+  measure_common_clamp(b, *run.result, first_edge_s(spec), all_block, board);
+  for (auto& r : out.channels) {
+    for (const auto& [name, value] : board.items()) r.metrics.set(name, value);
+  }
+  const auto common_checks = common_clamp_checks(b, board, slowest_decay_s);
   out.channels.front().checks.insert(out.channels.front().checks.end(), common_checks.begin(), common_checks.end());
 
   // The first channel's metrics with the board's, then every further channel's behind its name.

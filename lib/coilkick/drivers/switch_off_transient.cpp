@@ -51,14 +51,12 @@ void watch_channel(const ChannelRun& ch, const Circuit& c, std::vector<EventSpec
 }
 
 // Every channel's events, and the board's: the rail's extremes, the common clamp's current.
-std::vector<EventSpec> watched_events(const std::vector<ChannelRun>& channels, const Circuit& c) {
+std::vector<EventSpec> watched_events(const DriverSpec& board_spec, const std::vector<ChannelRun>& channels, const Circuit& c) {
   std::vector<EventSpec> ev;
   for (const auto& ch : channels) watch_channel(ch, c, ev);
-  const DriverSpec& spec = channels.front().spec;
   const BuiltDriver& board = *channels.front().built;
-  double first_edge = spec.drive.switch_off_at_s;
-  for (const auto& ch : channels) first_edge = std::min(first_edge, ch.spec.drive.switch_off_at_s);
-  if (!spec.supply.rail_is_ideal()) {
+  const double first_edge = first_edge_s(board_spec);
+  if (!board_spec.supply.rail_is_ideal()) {
     const Probe rail = Probe::node_voltage(c, "supply");
     ev.push_back(EventSpec::maximum("rail_max", rail, first_edge));
     ev.push_back(EventSpec::minimum("rail_min", rail, first_edge));
@@ -105,17 +103,15 @@ std::function<double(double, const double*)> remaining_share(const ChannelRun& c
 
 // Ends the run once every channel has decayed (remaining_share below 1 for all; the largest
 // share is the probe). Before a channel's edge its share is 1/fraction, far above 1.
-EventSpec decayed_event(const std::vector<ChannelRun>& channels, const Circuit& c) {
+EventSpec decayed_event(const DriverSpec& board_spec, const std::vector<ChannelRun>& channels, const Circuit& c) {
   std::vector<std::function<double(double, const double*)>> shares;
   for (const auto& ch : channels) shares.push_back(remaining_share(ch, c));
-  double t_edges = 0.0;
-  for (const auto& ch : channels) t_edges = std::max(t_edges, ch.spec.drive.switch_off_at_s + ch.spec.drive.fall_time_s);
   return EventSpec::crossing("decayed", Probe("remaining energy", [shares](double t, const double* x) {
                                double most = 0.0;
                                for (const auto& f : shares) most = std::max(most, f(t, x));
                                return most;
                              }),
-                             1.0, Direction::falling, t_edges, true);
+                             1.0, Direction::falling, last_edge_end_s(board_spec), true);
 }
 
 bool happened(const engine::TransientResult& r, const char* name) { return r.event(name).time_s.has_value(); }
@@ -133,30 +129,25 @@ bool observed(const engine::TransientResult& r, const ChannelRun& ch) {
 
 }  // namespace
 
-SwitchOffTransient run_switch_off_transient(const DriverSpec& spec, const BuiltDriver& b, const Circuit& c,
-                                            const OnState& on, const OffState& off) {
-  return run_switch_off_transient({ChannelRun{spec, &b, on, off}}, c, on.state);
-}
-
-SwitchOffTransient run_switch_off_transient(const std::vector<ChannelRun>& channels, const Circuit& c,
+SwitchOffTransient run_switch_off_transient(const DriverSpec& board_spec, const std::vector<ChannelRun>& channels, const Circuit& c,
                                             const engine::CircuitState& start) {
   const DriverSpec& spec = channels.front().spec;
   const BuiltDriver& b = *channels.front().built;
   const double release_s = b.armature ? relay_datasheet(spec).release_time_s : 0.0;
   const bool automatic = !(spec.analysis.stop_time_s > 0.0);
-  double t_edge_end = 0.0, span = 0.0;
+  const double t_edge_end = last_edge_end_s(board_spec);
+  double span = 0.0;
   bool blocks = true;
   const ChannelRun* least = &channels.front();  // the smallest ½·L·I0² sets the energy tolerance
   auto energy0 = [](const ChannelRun& ch) { return ch.spec.coil.inductance_H * ch.on.coil_current_A * ch.on.coil_current_A; };
   for (const auto& ch : channels) {
-    t_edge_end = std::max(t_edge_end, ch.spec.drive.switch_off_at_s + ch.spec.drive.fall_time_s);
     span = std::max(span, 8.0 * ch.spec.coil.inductance_H / ch.built->coil_resistance_ohm + 20.0 * release_s);
     blocks = blocks && ch.off.blocks;
     if (energy0(ch) < energy0(*least)) least = &ch;
   }
 
-  std::vector<EventSpec> ev = watched_events(channels, c);
-  if (spec.analysis.stop_when_decayed && blocks) ev.push_back(decayed_event(channels, c));
+  std::vector<EventSpec> ev = watched_events(board_spec, channels, c);
+  if (spec.analysis.stop_when_decayed && blocks) ev.push_back(decayed_event(board_spec, channels, c));
 
   SwitchOffTransient out;
   for (int attempt = 0;; ++attempt) {

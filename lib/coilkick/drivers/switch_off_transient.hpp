@@ -29,10 +29,6 @@ struct SwitchOffTransient {
   bool decay_observed = false;  // the coil current fell below 10 % (and the release current) in the run
 };
 
-// Throws engine::SimulationError if the integration fails.
-SwitchOffTransient run_switch_off_transient(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c,
-                                            const OnState& on, const OffState& off);
-
 // One channel of a board (DriverSpec::channels): its own view of the spec (channel_driver_spec),
 // of the built network (BuiltDriver::channels), its on- and off-state readings.
 struct ChannelRun {
@@ -43,8 +39,10 @@ struct ChannelRun {
 };
 // The board's switch-off from `start`: every channel's events (named built->local(...)), the
 // board's (rail, common clamp); the run ends once every channel has decayed. The first channel's
-// analysis settings apply. decay_observed: in every channel.
-SwitchOffTransient run_switch_off_transient(const std::vector<ChannelRun>& channels, const engine::Circuit& c,
-                                            const engine::CircuitState& start);
+// analysis settings apply. decay_observed: in every channel. `board_spec` is the board's own
+// (with its channels; one channel: the driver's). Throws engine::SimulationError if the
+// integration fails.
+SwitchOffTransient run_switch_off_transient(const DriverSpec& board_spec, const std::vector<ChannelRun>& channels,
+                                            const engine::Circuit& c, const engine::CircuitState& start);
 
 }  // namespace coilkick::drivers
