@@ -19,6 +19,13 @@ namespace {
 
 // A step reads at most the rest of one piece of a line's past and two more.
 constexpr int kPastPiecesPerStep = 3;
+// The first step of the lines' quasi-static form spans at least this many delays. That form is
+// a lumped L and C whose own resonance (a period of a few delays) the recorded past leaves
+// excited at the tolerance's level; a step of many periods is one the L-stable step damps, a step
+// of a few resolves it and never grows. Measured over 10/60/200 m × three clamps × relative
+// tolerances 1e-5..1e-7 (README, "Speed"): 10 delays kept the steps at the delay; 30, 100 and 300
+// alike, 20–70× fewer steps; results within each run's own spread across tolerances.
+constexpr double kQuasiStaticFirstStepDelays = 100.0;
 
 void check_options(const TransientOptions& o, double t0) {
   auto bad = [](const char* field, const char* rule, double v) {
@@ -222,6 +229,7 @@ class TransientRun {
       const bool qs = dt_ > circuit_.shortest_delay_s() &&
                       circuit_.history_quiet(options_.voltage_tolerance_V, options_.relative_tolerance);
       if (qs != w_.quasi_static) {
+        if (qs) dt_ = std::max(dt_, kQuasiStaticFirstStepDelays * circuit_.shortest_delay_s());
         w_.quasi_static = qs;
         sys_.full_time = std::numeric_limits<double>::quiet_NaN();  // the cached evaluation was of the other form
       }
