@@ -8,7 +8,7 @@
 namespace coilkick::drivers {
 
 double switch_voltage_V(const BuiltDriver& b, const engine::Circuit& c, double t_s, const double* x) {
-  return c.node_voltage_V(b.switch_high_node, t_s, x) - c.node_voltage_V(b.switch_low_node, t_s, x);
+  return SwitchVoltage(b, c)(t_s, x);
 }
 
 OnState solve_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c) {

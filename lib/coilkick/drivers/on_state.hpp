@@ -20,6 +20,17 @@ struct OnState {
 
 // Voltage across the switch (positive when it blocks) at time t for states x.
 double switch_voltage_V(const BuiltDriver& b, const engine::Circuit& c, double t_s, const double* x);
+// The same with the switch's nodes resolved once, for probes and waveforms (read at every step).
+class SwitchVoltage {
+ public:
+  SwitchVoltage(const BuiltDriver& b, const engine::Circuit& c)
+      : c_(&c), high_(c.node_slot(b.switch_high_node)), low_(c.node_slot(b.switch_low_node)) {}
+  double operator()(double t_s, const double* x) const { return c_->node_voltage_at(high_, t_s, x) - c_->node_voltage_at(low_, t_s, x); }
+
+ private:
+  const engine::Circuit* c_;
+  int high_, low_;
+};
 
 // Throws engine::SimulationError if the operating point cannot be solved.
 OnState solve_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c);

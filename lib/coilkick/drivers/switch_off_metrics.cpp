@@ -70,7 +70,7 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
   SwitchOffMeasures out;
   Metrics& m = out.metrics;
   auto since_off = [&](const engine::EventOutcome& e) { return e.time_s ? *e.time_s - t_off : kNaN; };
-  auto vsw = [&b, &c](double t, const double* x) { return switch_voltage_V(b, c, t, x); };
+  const SwitchVoltage vsw(b, c);
 
   m.set("coil_current_at_switch_off_A", i0);
   m.set("drive_current_A", on.drive_current_A);
@@ -178,8 +178,9 @@ SwitchOffWaveforms switch_off_waveforms(const BuiltDriver& b, const engine::Tran
   SwitchOffWaveforms wf;
   wf.time_s = Eigen::Map<const Eigen::VectorXd>(r.times_s().data(), n);
   wf.switch_voltage_V.resize(n);
+  const SwitchVoltage vsw(b, c);
   for (Eigen::Index k = 0; k < n; ++k) {
-    wf.switch_voltage_V[k] = switch_voltage_V(b, c, r.times_s()[static_cast<std::size_t>(k)], r.states().row(k).data());
+    wf.switch_voltage_V[k] = vsw(r.times_s()[static_cast<std::size_t>(k)], r.states().row(k).data());
   }
   wf.coil_current_A = r.state(b.local("coil.current"));
   if (b.armature) wf.armature_gap_m = r.state(b.local("coil.gap"));

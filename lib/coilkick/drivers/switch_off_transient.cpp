@@ -34,7 +34,7 @@ void watch_channel(const ChannelRun& ch, const Circuit& c, std::vector<EventSpec
   const double vs = ch.spec.supply.voltage_V;
   const double t_off = ch.spec.drive.switch_off_at_s;
   const double i0 = ch.on.coil_current_A, i_rel = release_current_A(ch.spec.coil);
-  const Probe p_vsw("switch voltage", [&b, &c](double t, const double* x) { return switch_voltage_V(b, c, t, x); });
+  const Probe p_vsw("switch voltage", SwitchVoltage(b, c));
   const Probe p_coil = Probe::state(c, b.local("coil.current"));
   ev.push_back(EventSpec::maximum(b.local("peak"), p_vsw, t_off));
   ev.push_back(EventSpec::crossing(b.local("decay10"), p_coil, 0.1 * i0, Direction::falling, t_off));
@@ -92,9 +92,10 @@ std::function<double(double, const double*)> remaining_share(const ChannelRun& c
   const int gap_i = b.armature ? c.state_index(b.local("coil.gap")) : -1;
   const double make_gap = b.armature ? b.armature->mechanics.make_gap_m : 0.0;
   const double scale = 1.0 / (frac * e0);
-  return [=, &b, &c](double t, const double* x) {
+  const SwitchVoltage vsw(b, c);
+  return [=](double t, const double* x) {
     if (gap_i >= 0 && x[gap_i] < make_gap) return e0 * scale;
-    const double i = x[coil_i], dv = switch_voltage_V(b, c, t, x) - vs;
+    const double i = x[coil_i], dv = vsw(t, x) - vs;
     double e = 0.5 * l * i * i + 0.5 * c_node * dv * dv;
     for (const auto& [k, lx] : extra_inductors) e += 0.5 * lx * x[k] * x[k];
     return e * scale;

@@ -517,7 +517,10 @@ bool Circuit::has_node(const std::string& node) const {
 std::vector<std::string> Circuit::node_names() const { return node_names_; }
 
 double Circuit::node_voltage_V(const std::string& node, double t_s, const double* x) const {
-  const int k = ext_node_index(node);
+  return node_voltage_at(ext_node_index(node), t_s, x);
+}
+
+double Circuit::node_voltage_at(int k, double t_s, const double* x) const {
   if (k < 0) return 0.0;
   if (k < n_circuit_) return x[k];
   return sources_[static_cast<std::size_t>(k - n_circuit_)].voltage_V.value(t_s);

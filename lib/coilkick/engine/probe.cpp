@@ -5,18 +5,16 @@
 namespace coilkick::engine {
 
 Probe Probe::node_voltage(const Circuit& circuit, const std::string& node) {
-  circuit.require_node(node);
+  const int k = circuit.node_slot(node);
   const Circuit* c = &circuit;
-  return Probe("voltage at " + node,
-               [c, node](double t, const double* x) { return c->node_voltage_V(node, t, x); });
+  return Probe("voltage at " + node, [c, k](double t, const double* x) { return c->node_voltage_at(k, t, x); });
 }
 
 Probe Probe::voltage_between(const Circuit& circuit, const std::string& a, const std::string& b) {
   const Circuit* c = &circuit;
-  circuit.require_node(a);
-  circuit.require_node(b);
-  return Probe("voltage from " + a + " to " + b, [c, a, b](double t, const double* x) {
-    return c->node_voltage_V(a, t, x) - c->node_voltage_V(b, t, x);
+  const int ka = circuit.node_slot(a), kb = circuit.node_slot(b);
+  return Probe("voltage from " + a + " to " + b, [c, ka, kb](double t, const double* x) {
+    return c->node_voltage_at(ka, t, x) - c->node_voltage_at(kb, t, x);
   });
 }
 

@@ -38,10 +38,10 @@ Eigen::VectorXd TransientResult::state(const std::string& name) const {
 }
 
 Eigen::VectorXd TransientResult::node_voltage_V(const std::string& node) const {
-  circuit_.require_node(node);
+  const int slot = circuit_.node_slot(node);
   Eigen::VectorXd v(static_cast<Eigen::Index>(times_.size()));
   for (std::size_t k = 0; k < times_.size(); ++k) {
-    v[static_cast<Eigen::Index>(k)] = circuit_.node_voltage_V(node, times_[k], states_.row(static_cast<Eigen::Index>(k)).data());
+    v[static_cast<Eigen::Index>(k)] = circuit_.node_voltage_at(slot, times_[k], states_.row(static_cast<Eigen::Index>(k)).data());
   }
   return v;
 }
