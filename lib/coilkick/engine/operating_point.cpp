@@ -119,17 +119,38 @@ Eigen::VectorXd pseudo_transient(const Circuit& circuit, double t, Eigen::Vector
 
 }  // namespace
 
+namespace {
+
+// The point with the nodes' minimum conductance taken out again, where the circuit has a DC path
+// without it: the transient has no such conductance, and a node balanced only by it (one resting
+// at a junction's knee) starts the run drifting at tens of V/s — a dozen steps over what should be
+// a stationary on-state. A few Newton iterations from the point found; where they fail (a node
+// with no other DC path makes the matrix singular) the point keeps the conductance.
+CircuitState without_node_conductance(const Circuit& circuit, const CircuitState& found, const OperatingPointOptions& options) {
+  if (options.minimum_conductance_S == 0.0) return found;
+  OperatingPointOptions polish = options;
+  polish.minimum_conductance_S = 0.0;
+  polish.maximum_iterations = 8;
+  try {
+    return solve_by_newton(circuit, found, polish);
+  } catch (const SimulationError&) {
+    return found;
+  }
+}
+
+}  // namespace
+
 CircuitState solve_operating_point(const Circuit& circuit, const CircuitState& guess,
                                    const OperatingPointOptions& options) {
   try {
-    return solve_by_newton(circuit, guess, options);
+    return without_node_conductance(circuit, solve_by_newton(circuit, guess, options), options);
   } catch (const SimulationError& newton_failed) {
     Workspace w = circuit.make_workspace();
     w.operating_point = true;
     CircuitState start = guess;
     start.values = pseudo_transient(circuit, guess.time_s, guess.values, options.minimum_conductance_S, w);
     try {
-      return solve_by_newton(circuit, start, options);
+      return without_node_conductance(circuit, solve_by_newton(circuit, start, options), options);
     } catch (const SimulationError&) {
       throw SimulationError(std::string(newton_failed.what()) + "; a pseudo-transient continuation did not reach it either");
     }
