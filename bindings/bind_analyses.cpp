@@ -89,10 +89,10 @@ void DefineAnalyses(py::module_& m) {
           for (int i : indices) {
             if (i < 0 || i >= static_cast<int>(plan.size())) throw std::invalid_argument("tolerance point index out of range");
           }
+          const auto starts = analyses::nominal_operating_points(s.scenario, *s.parts);
           analyses::parallel_for(static_cast<int>(indices.size()), threads_or_default(threads), [&](int k) {
             const auto& run = plan[static_cast<std::size_t>(indices[static_cast<std::size_t>(k)])];
-            out[static_cast<std::size_t>(k)] =
-                analyses::summarize_run(analyses::apply_spreads(s.scenario, spreads, run.values, *s.parts).driver, *s.parts);
+            out[static_cast<std::size_t>(k)] = analyses::run_tolerance_point(s.scenario, spreads, run.values, *s.parts, starts);
           });
         });
         py::list l;

@@ -67,6 +67,32 @@ TEST_CASE("transient options are checked") {
                        std::invalid_argument);
 }
 
+TEST_CASE("operating point of a node held by picosiemens: the divider's own value, and the run starts stationary") {
+  // 10 V -> 1 TΩ -> node m -> 1 TΩ -> ground: v_m = 5 V (the voltage divider, e.g. Nilsson &
+  // Riedel, "Electric Circuits", 10th ed., §3.3). The solver's 1 pS from every node to ground
+  // would put m at 10/3 V; it is taken out again where the circuit has a DC path without it
+  // (a node held only by leakage, as a junction at its knee is). The transient has no such
+  // conductance, so a point that kept it would start the run drifting.
+  Network net;
+  net.add_voltage_source("v", "in", Waveform::constant(10.0));
+  net.add_resistor("r1", "in", "m", 1e12);
+  net.add_resistor("r2", "m", Network::ground, 1e12);
+  // And a node between two capacitors, with no DC path at all: the 1 pS keeps it defined (0 V).
+  net.add_capacitor("c1", "in", "f", 1e-9);
+  net.add_capacitor("c2", "f", Network::ground, 1e-9);
+  Circuit c(net);
+  const auto op = solve_operating_point(c, 0.0);
+  // 1e-9: Newton on a linear network, to the operating point's tolerance.
+  CHECK(get_state(c, op, "node:m") == rel(5.0).epsilon(1e-9));
+  CHECK(get_state(c, op, "node:f") == doctest::Approx(0.0).epsilon(1e-9));
+  // Stationary: one step from the point to the stop time (none moves by its tolerance).
+  TransientOptions o;
+  o.stop_time_s = 1e-3;
+  const auto r = simulate(c, op, o);
+  CHECK(r.statistics().accepted_steps == 1);
+  CHECK(r.node_voltage_V("m").tail(1)[0] == rel(5.0).epsilon(1e-9));
+}
+
 TEST_CASE("operating point of a divider with a coil (nodal analysis by hand)") {
   // 10 V -> 1 kohm -> node m -> coil (100 ohm) -> ground, and 1 kohm from m to ground:
   // v_m = 10·(1000 ∥ 100)/(1000 + 1000 ∥ 100) = 10·90.909/1090.909 = 0.83333 V.

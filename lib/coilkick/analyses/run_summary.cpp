@@ -6,10 +6,11 @@
 
 namespace coilkick::analyses {
 
-RunSummary summarize_run(const drivers::DriverSpec& spec, const catalogue::Catalogue& parts) {
+RunSummary summarize_run(const drivers::DriverSpec& spec, const catalogue::Catalogue& parts,
+                         const drivers::OperatingPoints* starts) {
   RunSummary s;
   try {
-    auto r = drivers::simulate_switch_off(spec, parts);
+    auto r = drivers::simulate_switch_off(spec, parts, starts);
     s.metrics = std::move(r.metrics);
     s.checks = std::move(r.checks);
     s.status = drivers::overall_status(s.checks);

@@ -8,6 +8,7 @@
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/drivers/driver_spec.hpp"
 #include "coilkick/drivers/metrics.hpp"
+#include "coilkick/drivers/operating_point_start.hpp"
 #include "coilkick/drivers/rating_checks.hpp"
 
 namespace coilkick::analyses {
@@ -21,6 +22,8 @@ struct RunSummary {
   bool ok() const { return error.empty(); }
 };
 
-RunSummary summarize_run(const drivers::DriverSpec& spec, const catalogue::Catalogue& parts);
+// `starts`: DC points to start Newton from (drivers::simulate_switch_off).
+RunSummary summarize_run(const drivers::DriverSpec& spec, const catalogue::Catalogue& parts,
+                         const drivers::OperatingPoints* starts = nullptr);
 
 }  // namespace coilkick::analyses

@@ -7,6 +7,8 @@
 
 #include "coilkick/analyses/parallel.hpp"
 #include "coilkick/catalogue/part_parameters.hpp"
+#include "coilkick/drivers/switch_off.hpp"
+#include "coilkick/engine/errors.hpp"
 #include "coilkick/engine/interrupt.hpp"
 
 namespace coilkick::analyses {
@@ -163,6 +165,21 @@ std::vector<ToleranceRun> tolerance_plan(const std::vector<Spread>& spreads, int
   return plan;
 }
 
+std::optional<drivers::OperatingPoints> nominal_operating_points(const scenario::Scenario& s, const catalogue::Catalogue& parts) {
+  try {
+    return drivers::solve_operating_points(s.driver, parts);
+  } catch (const engine::SimulationError&) {
+    return std::nullopt;  // each run then solves from the cold guess and reports its own failure
+  } catch (const std::invalid_argument&) {
+    return std::nullopt;
+  }
+}
+
+RunSummary run_tolerance_point(const scenario::Scenario& s, const std::vector<Spread>& spreads, const std::vector<double>& values,
+                               const catalogue::Catalogue& parts, const std::optional<drivers::OperatingPoints>& starts) {
+  return summarize_run(apply_spreads(s, spreads, values, parts).driver, parts, starts ? &*starts : nullptr);
+}
+
 ToleranceResult run_tolerance(const scenario::Scenario& s, const catalogue::Catalogue& parts, int samples,
                               unsigned long long seed, int threads, const std::function<void(int, int)>& progress) {
   ToleranceResult r;
@@ -173,9 +190,10 @@ ToleranceResult run_tolerance(const scenario::Scenario& s, const catalogue::Cata
   r.corners.assign(plan.begin(), plan.begin() + n_corners);
   r.samples.assign(plan.begin() + n_corners, plan.end());
   const int total = n_corners + samples;
+  const auto starts = nominal_operating_points(s, parts);
   parallel_for(total, threads, [&](int i) {
     ToleranceRun& run = i < n_corners ? r.corners[static_cast<std::size_t>(i)] : r.samples[static_cast<std::size_t>(i - n_corners)];
-    run.run = summarize_run(apply_spreads(s, r.spreads, run.values, parts).driver, parts);
+    run.run = run_tolerance_point(s, r.spreads, run.values, parts, starts);
   }, progress);
 
   // Summaries over every run, in a fixed order (corners, then samples).

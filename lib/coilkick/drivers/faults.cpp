@@ -108,7 +108,7 @@ FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::stri
     const auto on = relay::operating_point_with_armatures_closed(dc, c, 0.0);
     const auto off = relay::operating_point_with_armatures_closed(dc, c, t_late);
     for (const auto& n : c.node_names()) {
-      if (n == "logic" || n.size() > 6 && n.compare(n.size() - 6, 6, ".logic") == 0) continue;  // logic outputs' internal source nodes
+      if (n == "logic" || (n.size() > 6 && n.compare(n.size() - 6, 6, ".logic") == 0)) continue;  // logic outputs' internal source nodes
       fc.readings.push_back({n, c.node_voltage_V(n, 0.0, on.values.data()), c.node_voltage_V(n, t_late, off.values.data())});
     }
     engine::Workspace w = c.make_workspace();

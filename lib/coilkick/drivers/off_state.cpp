@@ -3,14 +3,17 @@
 #include <cmath>
 #include <sstream>
 
+#include "coilkick/drivers/operating_point_start.hpp"
 #include "coilkick/drivers/si_format.hpp"
 #include "coilkick/engine/errors.hpp"
 #include "coilkick/relay/armature_operating_point.hpp"
 
 namespace coilkick::drivers {
 
-engine::CircuitState solve_off_point(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c) {
+engine::CircuitState solve_off_point(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c,
+                                     const engine::CircuitState* start) {
   const double t = last_edge_end_s(spec);  // every drive has reached its low level
+  if (auto warm = solve_from_start(b, c, start, t)) return *warm;
   // Relays released is the usual off-state; where the coil stays energised (a shorted switch) the
   // armature stays operated, and Newton is started from that side instead.
   engine::CircuitState off;

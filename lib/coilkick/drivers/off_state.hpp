@@ -24,7 +24,10 @@ struct OffState {
 
 // Throws engine::SimulationError if the operating point cannot be solved.
 // The board's off-state: the DC point once every channel's drive is low (relays released).
-engine::CircuitState solve_off_point(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c);
+// `start`: a solved off point of a driver of the same shape to start Newton from
+// (operating_point_start.hpp).
+engine::CircuitState solve_off_point(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c,
+                                     const engine::CircuitState* start = nullptr);
 // One channel's reading of it (`b` may be a further channel's view; `board` the whole network).
 OffState read_off_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Network& board, const engine::Circuit& c,
                         const engine::CircuitState& off, double on_coil_current_A);

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "coilkick/drivers/operating_point_start.hpp"
 #include "coilkick/relay/armature_operating_point.hpp"
 
 namespace coilkick::drivers {
@@ -11,7 +12,8 @@ double switch_voltage_V(const BuiltDriver& b, const engine::Circuit& c, double t
   return SwitchVoltage(b, c)(t_s, x);
 }
 
-OnState solve_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c) {
+OnState solve_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, const engine::CircuitState* start) {
+  if (auto warm = solve_from_start(b, c, start, 0.0)) return read_on_state(spec, b, c, *warm);
   return read_on_state(spec, b, c, relay::operating_point_with_armatures_closed(b.network, c, 0.0));
 }
 

@@ -32,8 +32,10 @@ class SwitchVoltage {
   int high_, low_;
 };
 
-// Throws engine::SimulationError if the operating point cannot be solved.
-OnState solve_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c);
+// Throws engine::SimulationError if the operating point cannot be solved. `start`: a solved
+// on-state of a driver of the same shape to start Newton from (operating_point_start.hpp).
+OnState solve_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c,
+                       const engine::CircuitState* start = nullptr);
 // One channel's reading of the board's on-state (`b` may be a further channel's view).
 OnState read_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, const engine::CircuitState& state);
 

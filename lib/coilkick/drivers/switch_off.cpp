@@ -11,16 +11,22 @@
 
 namespace coilkick::drivers {
 
-SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Catalogue& parts) {
-  return simulate_switch_off(spec, build_driver_network(spec, parts));
+SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Catalogue& parts, const OperatingPoints* starts) {
+  return simulate_switch_off(spec, build_driver_network(spec, parts), starts);
 }
 
-SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b) {
+OperatingPoints solve_operating_points(const DriverSpec& spec, const catalogue::Catalogue& parts) {
+  const BuiltDriver b = build_driver_network(spec, parts);
+  const engine::Circuit circuit(b.network);
+  return {solve_on_state(spec, b, circuit).state, solve_off_point(spec, b, circuit)};
+}
+
+SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b, const OperatingPoints* starts) {
   const engine::Circuit circuit(b.network);
   // Every channel reads the board's on-state and off-state (one DC point each).
   std::vector<ChannelRun> channels;
-  channels.push_back({channel_driver_spec(spec, 0), &b, solve_on_state(spec, b, circuit), {}});
-  const engine::CircuitState off_point = solve_off_point(spec, b, circuit);
+  channels.push_back({channel_driver_spec(spec, 0), &b, solve_on_state(spec, b, circuit, starts ? &starts->on : nullptr), {}});
+  const engine::CircuitState off_point = solve_off_point(spec, b, circuit, starts ? &starts->off : nullptr);
   for (std::size_t k = 0; k < b.channels.size(); ++k) {
     const DriverSpec one = channel_driver_spec(spec, k + 1);
     channels.push_back({one, &b.channels[k], read_on_state(one, b.channels[k], circuit, channels.front().on.state), {}});

@@ -20,6 +20,7 @@
 #include "coilkick/drivers/driver_spec.hpp"
 #include "coilkick/drivers/hold.hpp"
 #include "coilkick/drivers/metrics.hpp"
+#include "coilkick/drivers/operating_point_start.hpp"
 #include "coilkick/drivers/rating_checks.hpp"
 #include "coilkick/drivers/switch_off_metrics.hpp"
 #include "coilkick/engine/transient_result.hpp"
@@ -51,9 +52,14 @@ struct SwitchOffResult {
 
 // Throws std::invalid_argument for a bad description (naming the field) and
 // engine::SimulationError if the operating point or the transient cannot be solved.
-SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Catalogue& parts);
+// `starts`: the DC points of a driver of the same shape to start Newton from (a tolerance
+// analysis's nominal points, solve_operating_points; operating_point_start.hpp).
+SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Catalogue& parts,
+                                    const OperatingPoints* starts = nullptr);
 // The same on a network built already (e.g. with a fault injected); `spec` must be the one it
 // was built from (parts are taken from `built`).
-SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& built);
+SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& built, const OperatingPoints* starts = nullptr);
+// The on-state and the off point alone, without the transient. Throws like simulate_switch_off.
+OperatingPoints solve_operating_points(const DriverSpec& spec, const catalogue::Catalogue& parts);
 
 }  // namespace coilkick::drivers

@@ -9,14 +9,19 @@
 namespace coilkick::engine {
 namespace {
 
-// Residual of the DC equations with the minimum conductance on node rows.
-void residual(const Circuit& c, const Workspace& w, const Eigen::VectorXd& x, double gmin,
-              Eigen::VectorXd& r) {
-  const int nc = c.circuit_state_count();
-  r = w.flow.head(nc);
-  for (int i = 0; i < nc; ++i) {
-    if (c.is_node_row(i)) r[i] -= gmin * x[i];
+// The minimum conductance of every row: `gmin` on node rows, none on the others.
+Eigen::VectorXd on_every_node(const Circuit& c, double gmin) {
+  Eigen::VectorXd g = Eigen::VectorXd::Zero(c.circuit_state_count());
+  for (int i = 0; i < g.size(); ++i) {
+    if (c.is_node_row(i)) g[i] = gmin;
   }
+  return g;
+}
+
+// Residual of the DC equations with each row's minimum conductance to ground.
+void residual(const Circuit& c, const Workspace& w, const Eigen::VectorXd& x, const Eigen::VectorXd& gmin,
+              Eigen::VectorXd& r) {
+  r = w.flow.head(c.circuit_state_count()) - gmin.cwiseProduct(x);
 }
 
 // Node rows are currents (A), the others volts or element units: weigh 1 mA like 1 V.
@@ -54,6 +59,11 @@ Eigen::VectorXd row_scales(const Circuit& c, const Eigen::MatrixXd& g, const Eig
 
 double relative_norm(const Eigen::VectorXd& r, const Eigen::VectorXd& scale) { return r.cwiseQuotient(scale).norm(); }
 
+// Newton with backtracking from the guess, row i with the minimum conductance gmin[i] to ground;
+// throws SimulationError if it does not converge.
+CircuitState newton(const Circuit& circuit, const CircuitState& guess, const OperatingPointOptions& options,
+                    const Eigen::VectorXd& gmin);
+
 // Every residual at the round-off of its own row (within 1e-11 of its scale): Newton cannot
 // improve on that, every evaluation is that noisy.
 bool residual_at_round_off(const Eigen::VectorXd& r, const Eigen::VectorXd& scale) {
@@ -61,9 +71,6 @@ bool residual_at_round_off(const Eigen::VectorXd& r, const Eigen::VectorXd& scal
 }
 
 }  // namespace
-
-// Newton with backtracking from the guess; throws SimulationError if it does not converge.
-CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess, const OperatingPointOptions& options);
 
 CircuitState solve_operating_point(const Circuit& circuit, double time_s,
                                    const OperatingPointOptions& options) {
@@ -75,8 +82,9 @@ namespace {
 // Pseudo-transient continuation: implicit-Euler steps of M·ẋ = f with the sources frozen at
 // t, the step growing as the residual falls (switched evolution relaxation). The capacitances
 // and inductances damp the path a plain Newton iteration would take; used when Newton fails.
-Eigen::VectorXd pseudo_transient(const Circuit& circuit, double t, Eigen::VectorXd x, double gmin, Workspace& w) {
+Eigen::VectorXd pseudo_transient(const Circuit& circuit, double t, Eigen::VectorXd x, double minimum_conductance_S, Workspace& w) {
   const int nc = circuit.circuit_state_count();
+  const Eigen::VectorXd gmin = on_every_node(circuit, minimum_conductance_S);
   Eigen::VectorXd r;
   circuit.assemble(t, t, x.data(), w);
   residual(circuit, w, x.head(nc), gmin, r);
@@ -84,9 +92,7 @@ Eigen::VectorXd pseudo_transient(const Circuit& circuit, double t, Eigen::Vector
   double dt = 1e-10;
   for (int it = 0; it < 5000 && norm > 1e-12; ++it) {
     Eigen::MatrixXd a = w.mass.topLeftCorner(nc, nc) / dt - w.flow_slope.topLeftCorner(nc, nc);
-    for (int i = 0; i < nc; ++i) {
-      if (circuit.is_node_row(i)) a(i, i) += gmin;
-    }
+    a.diagonal() += gmin;
     Eigen::VectorXd dx = a.partialPivLu().solve(r);
     // Node voltages move at most 0.5 V per step: the junctions' exponentials stay tractable.
     double scale = 1.0;
@@ -121,18 +127,39 @@ Eigen::VectorXd pseudo_transient(const Circuit& circuit, double t, Eigen::Vector
 
 namespace {
 
-// The point with the nodes' minimum conductance taken out again, where the circuit has a DC path
-// without it: the transient has no such conductance, and a node balanced only by it (one resting
-// at a junction's knee) starts the run drifting at tens of V/s — a dozen steps over what should be
-// a stationary on-state. A few Newton iterations from the point found; where they fail (a node
-// with no other DC path makes the matrix singular) the point keeps the conductance.
+// The minimum conductance where a node needs it at the point x: on the nodes of the conductance
+// matrix's null space without it (a node between two capacitors, a pair of nodes joined only to
+// each other: their exactly zero pivots), none elsewhere.
+Eigen::VectorXd where_needed(const Circuit& circuit, const CircuitState& x, double gmin) {
+  const int nc = circuit.circuit_state_count();
+  Workspace w = circuit.make_workspace();
+  w.operating_point = true;
+  circuit.assemble(x.time_s, x.time_s, x.values.data(), w);
+  Eigen::FullPivLU<Eigen::MatrixXd> lu(w.flow_slope.topLeftCorner(nc, nc));
+  lu.setThreshold(1e-300);  // only exact zeros: conductances of 1e-12 S are paths
+  Eigen::VectorXd g = Eigen::VectorXd::Zero(nc);
+  if (lu.dimensionOfKernel() == 0) return g;
+  const Eigen::MatrixXd kernel = lu.kernel();
+  for (Eigen::Index k = 0; k < kernel.cols(); ++k) {
+    const double largest = kernel.col(k).cwiseAbs().maxCoeff();
+    for (int i = 0; i < nc; ++i) {
+      if (circuit.is_node_row(i) && std::abs(kernel(i, k)) > 1e-9 * largest) g[i] = gmin;
+    }
+  }
+  return g;
+}
+
+// The point with the nodes' minimum conductance taken out again where the circuit has a DC path
+// without it: the transient has no such conductance, and a node balanced only by leakage (a
+// junction at its knee; a divider of teraohms) sits elsewhere without it — the run then starts
+// drifting at tens of V/s, a dozen steps over what should be a stationary on-state. A few Newton
+// iterations from the point found; if they do not converge, the point as found.
 CircuitState without_node_conductance(const Circuit& circuit, const CircuitState& found, const OperatingPointOptions& options) {
   if (options.minimum_conductance_S == 0.0) return found;
   OperatingPointOptions polish = options;
-  polish.minimum_conductance_S = 0.0;
   polish.maximum_iterations = 8;
   try {
-    return solve_by_newton(circuit, found, polish);
+    return newton(circuit, found, polish, where_needed(circuit, found, options.minimum_conductance_S));
   } catch (const SimulationError&) {
     return found;
   }
@@ -159,10 +186,16 @@ CircuitState solve_operating_point(const Circuit& circuit, const CircuitState& g
 
 CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
                              const OperatingPointOptions& options) {
+  return newton(circuit, guess, options, on_every_node(circuit, options.minimum_conductance_S));
+}
+
+namespace {
+
+CircuitState newton(const Circuit& circuit, const CircuitState& guess, const OperatingPointOptions& options,
+                    const Eigen::VectorXd& gmin) {
   check_state(circuit, guess);
   const int nc = circuit.circuit_state_count();
   const double t = guess.time_s;
-  const double gmin = options.minimum_conductance_S;
   Workspace w = circuit.make_workspace();
   w.operating_point = true;
   Eigen::VectorXd x = guess.values;
@@ -174,9 +207,7 @@ CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
   for (int it = 0; it < options.maximum_iterations; ++it) {
     throw_if_interrupted();
     Eigen::MatrixXd g = w.flow_slope.topLeftCorner(nc, nc);
-    for (int i = 0; i < nc; ++i) {
-      if (circuit.is_node_row(i)) g(i, i) -= gmin;
-    }
+    g.diagonal() -= gmin;
     Eigen::FullPivLU<Eigen::MatrixXd> lu(g);
     // Only an exactly zero pivot is singular: the minimum conductances (1e-12 S) of floating
     // nodes sit many decades below the largest conductances and must still count.
@@ -233,5 +264,7 @@ CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
     << " of its row's scale)";
   throw SimulationError(m.str());
 }
+
+}  // namespace
 
 }  // namespace coilkick::engine

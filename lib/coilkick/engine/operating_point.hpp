@@ -24,5 +24,9 @@ CircuitState solve_operating_point(const Circuit& circuit, double time_s,
 // Same, starting from a guess (e.g. the previous operating point in a sweep).
 CircuitState solve_operating_point(const Circuit& circuit, const CircuitState& guess,
                                    const OperatingPointOptions& options = {});
+// Newton alone from the guess, with exactly the options' minimum conductance (none taken out
+// after, no continuation when it fails): for a guess that is a solved point of a circuit of the
+// same shape. Throws SimulationError if it does not converge.
+CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess, const OperatingPointOptions& options);
 
 }  // namespace coilkick::engine
