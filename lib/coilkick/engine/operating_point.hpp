@@ -3,7 +3,9 @@
 // values at `time_s` (capacitors open, coils conducting through their resistance). Solved by
 // Newton's method on the analytic conductance matrix with backtracking. A minimum conductance
 // from every node to ground (default 1e-12 S) keeps nodes without a DC path (between two
-// capacitors, or behind an off device) well defined; it exists only in this solve.
+// capacitors, or behind an off device) well defined; it exists only in this solve, and at the
+// point found it is taken out again except on the nodes that have no DC path without it (the
+// conductance matrix's null space), so a node held only by leakage reads its own value.
 #include "coilkick/engine/circuit.hpp"
 #include "coilkick/engine/state.hpp"
 
