@@ -53,6 +53,12 @@ class TerminalDevice : public engine::Element {
   }
 
   void load(const engine::ElementContext& ctx, engine::Stamper& out) const override {
+    // Rates only (the Rosenbrock stages) and no charges (whose slopes are the mass): the
+    // currents in plain doubles — the same values as the dual numbers' value parts.
+    if (!out.wants_slopes() && !model().has_charges()) {
+      load_values(ctx, out);
+      return;
+    }
     using D = Dual<N>;
     std::array<D, N> v, i, q, ib;
     for (int k = 0; k < N; ++k) v[idx(k)] = D::variable(ctx.value(k), k);
@@ -93,6 +99,29 @@ class TerminalDevice : public engine::Element {
     for (int k = 0; k < N; ++k) {
       for (int j = 0; j < N; ++j) out.add_mass(k, j, q[idx(k)].g[idx(j)]);
     }
+  }
+
+  void load_values(const engine::ElementContext& ctx, engine::Stamper& out) const {
+    std::array<double, N> v{}, i{}, ib{};
+    for (int k = 0; k < N; ++k) v[idx(k)] = ctx.value(k);
+    double* const breakdown = splits_breakdown() ? ib.data() : nullptr;
+    if constexpr (has_breakdown_split<Model>::value) {
+      model().currents(v.data(), i.data(), breakdown);
+    } else {
+      model().currents(v.data(), i.data());
+    }
+    double p = 0.0, pb = 0.0;
+    for (int k = 0; k < N; ++k) {
+      double flow = i[idx(k)];
+      p += v[idx(k)] * i[idx(k)];
+      if (breakdown) {
+        flow += ib[idx(k)];
+        pb += v[idx(k)] * ib[idx(k)];
+      }
+      out.add_flow(k, -flow);
+    }
+    out.add_power(0, p);
+    if (breakdown) out.add_power(1, pb);
   }
 
   void load_mass_slope(const engine::ElementContext& ctx, engine::Stamper& out) const override {

@@ -39,6 +39,7 @@ class GlobalStamper final : public Stamper {
   void add_power_time_rate(int channel, double v) override {
     if (slopes_) w_.power_time_rate[ch_ + channel] += v;
   }
+  bool wants_slopes() const override { return slopes_; }
 
  private:
   Workspace& w_;

@@ -79,6 +79,9 @@ class Stamper {
   virtual void add_power(int channel, double value_W) = 0;
   virtual void add_power_slope(int channel, int col, double value) = 0;  // ∂P/∂x_col
   virtual void add_power_time_rate(int channel, double value) = 0;       // ∂P/∂t (explicit)
+  // False when the slopes (flow, power, time rates; not the mass) are dropped — the Rosenbrock
+  // stages need only the rates: an element may then skip computing them.
+  virtual bool wants_slopes() const { return true; }
 };
 
 class Element {
