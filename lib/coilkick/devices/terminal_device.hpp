@@ -56,15 +56,28 @@ class TerminalDevice : public engine::Element {
     // Rates only (the Rosenbrock stages) and no charges (whose slopes are the mass): the
     // currents in plain doubles — the same values as the dual numbers' value parts.
     if (!out.wants_slopes() && !model().has_charges()) {
-      load_values(ctx, out);
-      return;
+      load_as<double>(ctx, out);
+    } else {
+      load_as<Dual<N>>(ctx, out);
     }
-    using D = Dual<N>;
-    std::array<D, N> v, i, q, ib;
-    for (int k = 0; k < N; ++k) v[idx(k)] = D::variable(ctx.value(k), k);
-    const bool with_charges = model().has_charges();
-    D* const breakdown = splits_breakdown() ? ib.data() : nullptr;
-    if constexpr (has_currents_and_charges<Model, D>::value) {
+  }
+
+  // Currents (and charges) in S, stamped: values always; with S = Dual<N> also the slopes and,
+  // with charges, the mass.
+  template <class S>
+  void load_as(const engine::ElementContext& ctx, engine::Stamper& out) const {
+    constexpr bool dual = !std::is_same_v<S, double>;
+    std::array<S, N> v{}, i{}, q{}, ib{};
+    for (int k = 0; k < N; ++k) {
+      if constexpr (dual) {
+        v[idx(k)] = S::variable(ctx.value(k), k);
+      } else {
+        v[idx(k)] = ctx.value(k);
+      }
+    }
+    const bool with_charges = dual && model().has_charges();
+    S* const breakdown = splits_breakdown() ? ib.data() : nullptr;
+    if constexpr (has_currents_and_charges<Model, S>::value) {
       if constexpr (has_breakdown_split<Model>::value) {
         model().currents_and_charges(v.data(), i.data(), with_charges ? q.data() : nullptr, breakdown);
       } else {
@@ -78,50 +91,31 @@ class TerminalDevice : public engine::Element {
       }
       if (with_charges) model().charges(v.data(), q.data());
     }
-    D p(0.0), pb(0.0);
+    S p(0.0), pb(0.0);
     for (int k = 0; k < N; ++k) {
-      D flow = i[idx(k)];
+      S flow = i[idx(k)];
       p = p + v[idx(k)] * i[idx(k)];
       if (breakdown) {
         flow = flow + ib[idx(k)];
         pb = pb + v[idx(k)] * ib[idx(k)];
       }
-      out.add_flow(k, -flow.v);
-      for (int j = 0; j < N; ++j) out.add_flow_slope(k, j, -flow.g[idx(j)]);
-    }
-    out.add_power(0, p.v);
-    for (int j = 0; j < N; ++j) out.add_power_slope(0, j, p.g[idx(j)]);
-    if (breakdown) {
-      out.add_power(1, pb.v);
-      for (int j = 0; j < N; ++j) out.add_power_slope(1, j, pb.g[idx(j)]);
-    }
-    if (!with_charges) return;
-    for (int k = 0; k < N; ++k) {
-      for (int j = 0; j < N; ++j) out.add_mass(k, j, q[idx(k)].g[idx(j)]);
-    }
-  }
-
-  void load_values(const engine::ElementContext& ctx, engine::Stamper& out) const {
-    std::array<double, N> v{}, i{}, ib{};
-    for (int k = 0; k < N; ++k) v[idx(k)] = ctx.value(k);
-    double* const breakdown = splits_breakdown() ? ib.data() : nullptr;
-    if constexpr (has_breakdown_split<Model>::value) {
-      model().currents(v.data(), i.data(), breakdown);
-    } else {
-      model().currents(v.data(), i.data());
-    }
-    double p = 0.0, pb = 0.0;
-    for (int k = 0; k < N; ++k) {
-      double flow = i[idx(k)];
-      p += v[idx(k)] * i[idx(k)];
-      if (breakdown) {
-        flow += ib[idx(k)];
-        pb += v[idx(k)] * ib[idx(k)];
+      out.add_flow(k, -value_of(flow));
+      if constexpr (dual) {
+        for (int j = 0; j < N; ++j) out.add_flow_slope(k, j, -flow.g[idx(j)]);
       }
-      out.add_flow(k, -flow);
     }
-    out.add_power(0, p);
-    if (breakdown) out.add_power(1, pb);
+    out.add_power(0, value_of(p));
+    if (breakdown) out.add_power(1, value_of(pb));
+    if constexpr (dual) {
+      for (int j = 0; j < N; ++j) out.add_power_slope(0, j, p.g[idx(j)]);
+      if (breakdown) {
+        for (int j = 0; j < N; ++j) out.add_power_slope(1, j, pb.g[idx(j)]);
+      }
+      if (!with_charges) return;
+      for (int k = 0; k < N; ++k) {
+        for (int j = 0; j < N; ++j) out.add_mass(k, j, q[idx(k)].g[idx(j)]);
+      }
+    }
   }
 
   void load_mass_slope(const engine::ElementContext& ctx, engine::Stamper& out) const override {

@@ -85,12 +85,11 @@ class Circuit {
   // Node voltage (V) at (t, x): free node from x, fixed node from its source, ground 0.
   double node_voltage_V(const std::string& node, double t_s, const double* x) const;
   // The same with the node resolved once (probes read it at every step; a name lookup there
-  // was 7 % of a pwl run): node_slot throws like require_node; ground is −1.
+  // was 3 % of a pwl run). node_slot throws std::invalid_argument with the closest node name if
+  // `node` does not exist; ground is −1.
   int node_slot(const std::string& node) const { return ext_node_index(node); }
   double node_voltage_at(int slot, double t_s, const double* x) const;
   bool has_node(const std::string& node) const;
-  // Throws std::invalid_argument with the closest node name if `node` does not exist.
-  void require_node(const std::string& node) const { (void)ext_node_index(node); }
   std::vector<std::string> node_names() const;  // every node except ground
 
   Workspace make_workspace() const;

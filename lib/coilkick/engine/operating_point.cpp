@@ -59,138 +59,14 @@ Eigen::VectorXd row_scales(const Circuit& c, const Eigen::MatrixXd& g, const Eig
 
 double relative_norm(const Eigen::VectorXd& r, const Eigen::VectorXd& scale) { return r.cwiseQuotient(scale).norm(); }
 
-// Newton with backtracking from the guess, row i with the minimum conductance gmin[i] to ground;
-// throws SimulationError if it does not converge.
-CircuitState newton(const Circuit& circuit, const CircuitState& guess, const OperatingPointOptions& options,
-                    const Eigen::VectorXd& gmin);
-
 // Every residual at the round-off of its own row (within 1e-11 of its scale): Newton cannot
 // improve on that, every evaluation is that noisy.
 bool residual_at_round_off(const Eigen::VectorXd& r, const Eigen::VectorXd& scale) {
   return r.cwiseQuotient(scale).cwiseAbs().maxCoeff() <= 1e-11;
 }
 
-}  // namespace
-
-CircuitState solve_operating_point(const Circuit& circuit, double time_s,
-                                   const OperatingPointOptions& options) {
-  return solve_operating_point(circuit, guess_state(circuit, time_s), options);
-}
-
-namespace {
-
-// Pseudo-transient continuation: implicit-Euler steps of M·ẋ = f with the sources frozen at
-// t, the step growing as the residual falls (switched evolution relaxation). The capacitances
-// and inductances damp the path a plain Newton iteration would take; used when Newton fails.
-Eigen::VectorXd pseudo_transient(const Circuit& circuit, double t, Eigen::VectorXd x, double minimum_conductance_S, Workspace& w) {
-  const int nc = circuit.circuit_state_count();
-  const Eigen::VectorXd gmin = on_every_node(circuit, minimum_conductance_S);
-  Eigen::VectorXd r;
-  circuit.assemble(t, t, x.data(), w);
-  residual(circuit, w, x.head(nc), gmin, r);
-  double norm = weighted_norm(circuit, r);
-  double dt = 1e-10;
-  for (int it = 0; it < 5000 && norm > 1e-12; ++it) {
-    Eigen::MatrixXd a = w.mass.topLeftCorner(nc, nc) / dt - w.flow_slope.topLeftCorner(nc, nc);
-    a.diagonal() += gmin;
-    Eigen::VectorXd dx = a.partialPivLu().solve(r);
-    // Node voltages move at most 0.5 V per step: the junctions' exponentials stay tractable.
-    double scale = 1.0;
-    for (int i = 0; i < nc; ++i) {
-      if (circuit.is_node_row(i) && std::abs(dx[i]) > 0.5) scale = std::min(scale, 0.5 / std::abs(dx[i]));
-    }
-    dx *= scale;
-    Eigen::VectorXd x_try = x;
-    x_try.head(nc) += dx;
-    circuit.assemble(t, t, x_try.data(), w);
-    Eigen::VectorXd r_try;
-    residual(circuit, w, x_try.head(nc), gmin, r_try);
-    const double norm_try = weighted_norm(circuit, r_try);
-    // Every finite step is a linearised implicit-Euler step of the circuit's own (stable)
-    // dynamics: accept it even when the residual rises on the way; grow the step as it falls.
-    if (dx.allFinite() && std::isfinite(norm_try)) {
-      dt *= norm_try < norm ? 2.0 : 1.2;
-      dt = std::min(dt, 1e3);
-      x = x_try;
-      r = r_try;
-      norm = norm_try;
-    } else {
-      dt *= 0.25;
-      circuit.assemble(t, t, x.data(), w);
-      if (dt < 1e-20) break;
-    }
-  }
-  return x;
-}
-
-}  // namespace
-
-namespace {
-
-// The minimum conductance where a node needs it at the point x: on the nodes of the conductance
-// matrix's null space without it (a node between two capacitors, a pair of nodes joined only to
-// each other: their exactly zero pivots), none elsewhere.
-Eigen::VectorXd where_needed(const Circuit& circuit, const CircuitState& x, double gmin) {
-  const int nc = circuit.circuit_state_count();
-  Workspace w = circuit.make_workspace();
-  w.operating_point = true;
-  circuit.assemble(x.time_s, x.time_s, x.values.data(), w);
-  Eigen::FullPivLU<Eigen::MatrixXd> lu(w.flow_slope.topLeftCorner(nc, nc));
-  lu.setThreshold(1e-300);  // only exact zeros: conductances of 1e-12 S are paths
-  Eigen::VectorXd g = Eigen::VectorXd::Zero(nc);
-  if (lu.dimensionOfKernel() == 0) return g;
-  const Eigen::MatrixXd kernel = lu.kernel();
-  for (Eigen::Index k = 0; k < kernel.cols(); ++k) {
-    const double largest = kernel.col(k).cwiseAbs().maxCoeff();
-    for (int i = 0; i < nc; ++i) {
-      if (circuit.is_node_row(i) && std::abs(kernel(i, k)) > 1e-9 * largest) g[i] = gmin;
-    }
-  }
-  return g;
-}
-
-// The point with the nodes' minimum conductance taken out again where the circuit has a DC path
-// without it: the transient has no such conductance, and a node balanced only by leakage (a
-// junction at its knee; a divider of teraohms) sits elsewhere without it — the run then starts
-// drifting at tens of V/s, a dozen steps over what should be a stationary on-state. A few Newton
-// iterations from the point found; if they do not converge, the point as found.
-CircuitState without_node_conductance(const Circuit& circuit, const CircuitState& found, const OperatingPointOptions& options) {
-  if (options.minimum_conductance_S == 0.0) return found;
-  OperatingPointOptions polish = options;
-  polish.maximum_iterations = 8;
-  try {
-    return newton(circuit, found, polish, where_needed(circuit, found, options.minimum_conductance_S));
-  } catch (const SimulationError&) {
-    return found;
-  }
-}
-
-}  // namespace
-
-CircuitState solve_operating_point(const Circuit& circuit, const CircuitState& guess,
-                                   const OperatingPointOptions& options) {
-  try {
-    return without_node_conductance(circuit, solve_by_newton(circuit, guess, options), options);
-  } catch (const SimulationError& newton_failed) {
-    Workspace w = circuit.make_workspace();
-    w.operating_point = true;
-    CircuitState start = guess;
-    start.values = pseudo_transient(circuit, guess.time_s, guess.values, options.minimum_conductance_S, w);
-    try {
-      return without_node_conductance(circuit, solve_by_newton(circuit, start, options), options);
-    } catch (const SimulationError&) {
-      throw SimulationError(std::string(newton_failed.what()) + "; a pseudo-transient continuation did not reach it either");
-    }
-  }
-}
-
-CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
-                             const OperatingPointOptions& options) {
-  return newton(circuit, guess, options, on_every_node(circuit, options.minimum_conductance_S));
-}
-
-namespace {
-
+// Newton with backtracking from the guess, row i with the minimum conductance gmin[i] to ground;
+// throws SimulationError if it does not converge.
 CircuitState newton(const Circuit& circuit, const CircuitState& guess, const OperatingPointOptions& options,
                     const Eigen::VectorXd& gmin) {
   check_state(circuit, guess);
@@ -265,6 +141,115 @@ CircuitState newton(const Circuit& circuit, const CircuitState& guess, const Ope
   throw SimulationError(m.str());
 }
 
+// Pseudo-transient continuation: implicit-Euler steps of M·ẋ = f with the sources frozen at
+// t, the step growing as the residual falls (switched evolution relaxation). The capacitances
+// and inductances damp the path a plain Newton iteration would take; used when Newton fails.
+Eigen::VectorXd pseudo_transient(const Circuit& circuit, double t, Eigen::VectorXd x, double minimum_conductance_S, Workspace& w) {
+  const int nc = circuit.circuit_state_count();
+  const Eigen::VectorXd gmin = on_every_node(circuit, minimum_conductance_S);
+  Eigen::VectorXd r;
+  circuit.assemble(t, t, x.data(), w);
+  residual(circuit, w, x.head(nc), gmin, r);
+  double norm = weighted_norm(circuit, r);
+  double dt = 1e-10;
+  for (int it = 0; it < 5000 && norm > 1e-12; ++it) {
+    Eigen::MatrixXd a = w.mass.topLeftCorner(nc, nc) / dt - w.flow_slope.topLeftCorner(nc, nc);
+    a.diagonal() += gmin;
+    Eigen::VectorXd dx = a.partialPivLu().solve(r);
+    // Node voltages move at most 0.5 V per step: the junctions' exponentials stay tractable.
+    double scale = 1.0;
+    for (int i = 0; i < nc; ++i) {
+      if (circuit.is_node_row(i) && std::abs(dx[i]) > 0.5) scale = std::min(scale, 0.5 / std::abs(dx[i]));
+    }
+    dx *= scale;
+    Eigen::VectorXd x_try = x;
+    x_try.head(nc) += dx;
+    circuit.assemble(t, t, x_try.data(), w);
+    Eigen::VectorXd r_try;
+    residual(circuit, w, x_try.head(nc), gmin, r_try);
+    const double norm_try = weighted_norm(circuit, r_try);
+    // Every finite step is a linearised implicit-Euler step of the circuit's own (stable)
+    // dynamics: accept it even when the residual rises on the way; grow the step as it falls.
+    if (dx.allFinite() && std::isfinite(norm_try)) {
+      dt *= norm_try < norm ? 2.0 : 1.2;
+      dt = std::min(dt, 1e3);
+      x = x_try;
+      r = r_try;
+      norm = norm_try;
+    } else {
+      dt *= 0.25;
+      circuit.assemble(t, t, x.data(), w);
+      if (dt < 1e-20) break;
+    }
+  }
+  return x;
+}
+
+// The minimum conductance where a node needs it at the point x: on the nodes of the conductance
+// matrix's null space without it (a node between two capacitors, a pair of nodes joined only to
+// each other: their exactly zero pivots), none elsewhere.
+Eigen::VectorXd where_needed(const Circuit& circuit, const CircuitState& x, double gmin) {
+  const int nc = circuit.circuit_state_count();
+  Workspace w = circuit.make_workspace();
+  w.operating_point = true;
+  circuit.assemble(x.time_s, x.time_s, x.values.data(), w);
+  Eigen::FullPivLU<Eigen::MatrixXd> lu(w.flow_slope.topLeftCorner(nc, nc));
+  lu.setThreshold(1e-300);  // only exact zeros: conductances of 1e-12 S are paths
+  Eigen::VectorXd g = Eigen::VectorXd::Zero(nc);
+  if (lu.dimensionOfKernel() == 0) return g;
+  const Eigen::MatrixXd kernel = lu.kernel();
+  for (Eigen::Index k = 0; k < kernel.cols(); ++k) {
+    const double largest = kernel.col(k).cwiseAbs().maxCoeff();
+    for (int i = 0; i < nc; ++i) {
+      if (circuit.is_node_row(i) && std::abs(kernel(i, k)) > 1e-9 * largest) g[i] = gmin;
+    }
+  }
+  return g;
+}
+
+// The point with the nodes' minimum conductance taken out again where the circuit has a DC path
+// without it: the transient has no such conductance, and a node balanced only by leakage (a
+// junction at its knee; a divider of teraohms) sits elsewhere without it — the run then starts
+// drifting at tens of V/s, a dozen steps over what should be a stationary on-state. A few Newton
+// iterations from the point found; if they do not converge, the point as found.
+CircuitState without_node_conductance(const Circuit& circuit, const CircuitState& found, const OperatingPointOptions& options) {
+  if (options.minimum_conductance_S == 0.0) return found;
+  OperatingPointOptions polish = options;
+  polish.maximum_iterations = 8;
+  try {
+    return newton(circuit, found, polish, where_needed(circuit, found, options.minimum_conductance_S));
+  } catch (const SimulationError&) {
+    return found;
+  }
+}
+
 }  // namespace
+
+CircuitState solve_operating_point(const Circuit& circuit, double time_s,
+                                   const OperatingPointOptions& options) {
+  return solve_operating_point(circuit, guess_state(circuit, time_s), options);
+}
+
+CircuitState solve_operating_point(const Circuit& circuit, const CircuitState& guess,
+                                   const OperatingPointOptions& options) {
+  try {
+    return without_node_conductance(circuit, solve_by_newton(circuit, guess, options), options);
+  } catch (const SimulationError& newton_failed) {
+    Workspace w = circuit.make_workspace();
+    w.operating_point = true;
+    CircuitState start = guess;
+    start.values = pseudo_transient(circuit, guess.time_s, guess.values, options.minimum_conductance_S, w);
+    try {
+      return without_node_conductance(circuit, solve_by_newton(circuit, start, options), options);
+    } catch (const SimulationError&) {
+      throw SimulationError(std::string(newton_failed.what()) + "; a pseudo-transient continuation did not reach it either");
+    }
+  }
+}
+
+CircuitState solve_by_newton(const Circuit& circuit, const CircuitState& guess,
+                             const OperatingPointOptions& options) {
+  return newton(circuit, guess, options, on_every_node(circuit, options.minimum_conductance_S));
+}
 
 }  // namespace coilkick::engine
