@@ -14,30 +14,41 @@ namespace py = pybind11;
 namespace coilkick::python {
 
 PyScenario rebuild_scenario(const std::string& text, const std::string& name, const std::string& models_dir,
-                            const std::vector<std::pair<std::string, double>>& assignments) {
+                            const std::vector<std::pair<std::string, double>>& assignments,
+                            const std::string& clamp_kind) {
   PyScenario p;
   p.text = text;
   p.name = name;
   p.models_dir = models_dir;
   p.parts = catalogue_for(models_dir);
   p.scenario = scenario::read_scenario_text(text, name, *p.parts);
+  if (!clamp_kind.empty()) p.scenario.driver.clamp.kind = drivers::parse_clamp_kind(clamp_kind);
   for (const auto& [k, v] : assignments) scenario::set_numeric_key(p.scenario, k, v, *p.parts);
   // A value set after parsing is checked like one in the file (ValueError naming the field).
   if (!assignments.empty()) drivers::check_driver_spec(p.scenario.driver);
   p.assignments = assignments;
+  p.clamp_kind = clamp_kind;
   return p;
 }
 
 void DefineScenario(py::module_& m) {
   py::class_<PyScenario>(m, "Scenario", "A driver description read from scenario TOML (see README, 'Scenario files').")
       .def(py::init(&rebuild_scenario), py::arg("text"), py::arg("name"), py::arg("models_dir") = "",
-           py::arg("assignments") = std::vector<std::pair<std::string, double>>{},
-           "Parse scenario TOML `text`; `name` is used in messages as the file name. `assignments` are numeric keys "
-           "(SI base units) set after parsing.")
+           py::arg("assignments") = std::vector<std::pair<std::string, double>>{}, py::arg("clamp_kind") = "",
+           "Parse scenario TOML `text`; `name` is used in messages as the file name. `clamp_kind` ('' = the file's) "
+           "and `assignments`, numeric keys (SI base units), are set after parsing.")
+      .def(py::pickle(
+          [](const PyScenario& p) { return py::make_tuple(p.text, p.name, p.models_dir, p.assignments, p.clamp_kind); },
+          [](const py::tuple& t) {
+            if (t.size() != 5) throw std::runtime_error("Scenario: pickled state of another version");
+            return rebuild_scenario(t[0].cast<std::string>(), t[1].cast<std::string>(), t[2].cast<std::string>(),
+                                    t[3].cast<std::vector<std::pair<std::string, double>>>(), t[4].cast<std::string>());
+          }))
       .def_readonly("text", &PyScenario::text, "The scenario's TOML text.")
       .def_readonly("source_name", &PyScenario::name, "File name used in messages.")
       .def_readonly("models_dir", &PyScenario::models_dir, "Models directory ('' = default).")
       .def_readonly("assignments", &PyScenario::assignments, "Numeric keys set after parsing, (key, value in SI base units).")
+      .def_readonly("clamp_kind_set", &PyScenario::clamp_kind, "The clamp kind set after parsing ('' = the file's).")
       .def_property_readonly("name", [](const PyScenario& p) { return p.scenario.driver.name; }, "The scenario's name.")
       .def_property_readonly("topology", [](const PyScenario& p) { return drivers::to_string(p.scenario.driver.switch_.topology); })
       .def_property_readonly("clamp_kind", [](const PyScenario& p) { return drivers::to_string(p.scenario.driver.clamp.kind); })
@@ -51,9 +62,7 @@ void DefineScenario(py::module_& m) {
       .def(
           "with_clamp_kind",
           [](const PyScenario& p, const std::string& kind) {
-            PyScenario copy = p;
-            copy.scenario.driver.clamp.kind = drivers::parse_clamp_kind(kind);
-            return copy;
+            return rebuild_scenario(p.text, p.name, p.models_dir, p.assignments, kind);
           },
           py::arg("kind"), "A copy with another clamp kind (the parts the file gives; for local runs).")
       .def_property_readonly(
@@ -104,7 +113,7 @@ void DefineScenario(py::module_& m) {
           [](const PyScenario& p, const std::string& key, double value) {
             auto a = p.assignments;
             a.emplace_back(key, value);
-            return rebuild_scenario(p.text, p.name, p.models_dir, a);
+            return rebuild_scenario(p.text, p.name, p.models_dir, a, p.clamp_kind);
           },
           py::arg("key"), py::arg("value"),
           "A copy with one numeric key set (value in the key's SI base unit), e.g. "

@@ -24,11 +24,15 @@ struct PyScenario {
   std::string models_dir;
   std::shared_ptr<const catalogue::Catalogue> parts;
   std::vector<std::pair<std::string, double>> assignments;
+  // A clamp kind set after parsing (with_clamp_kind), "" = the file's. Part of the recipe a
+  // scenario is rebuilt from (with_value, the executors' workers), so no copy loses it.
+  std::string clamp_kind;
 };
 
 std::shared_ptr<const catalogue::Catalogue> catalogue_for(const std::string& models_dir);
 PyScenario rebuild_scenario(const std::string& text, const std::string& name, const std::string& models_dir,
-                            const std::vector<std::pair<std::string, double>>& assignments);
+                            const std::vector<std::pair<std::string, double>>& assignments,
+                            const std::string& clamp_kind);
 
 // Runs `work` (C++ only, no Python objects) with the GIL released; Ctrl-C stops it within a
 // step and raises KeyboardInterrupt (bind_interrupt.cpp). Its exceptions reach Python as usual.

@@ -4,7 +4,9 @@ import json
 import subprocess
 import threading
 import time
-from concurrent.futures import ThreadPoolExecutor
+import copy
+import pickle
+from concurrent.futures import ProcessPoolExecutor, ThreadPoolExecutor
 
 import numpy as np
 import pandas as pd
@@ -88,6 +90,27 @@ def test_sweep_dataframe_and_executor_give_the_same_numbers(relay_dict):
     at11 = local[local["supply.voltage"] == 11.0]
     assert at11["release_time_s"].is_monotonic_decreasing
     assert at11["switch_voltage_peak_V"].is_monotonic_increasing
+
+
+def test_a_clamp_kind_set_after_parsing_survives_copies_pickling_and_workers(relay_dict):
+    # A scenario with another clamp kind, then a value set: the kind must not fall back to the
+    # file's, neither in the copy nor in a worker process (which rebuilds it from its pickle).
+    s = coilkick.scenario_from_dict(relay_dict).with_clamp_kind("diode").with_value("supply.voltage", 13.0)
+    d = copy.deepcopy(relay_dict)
+    d["clamp"]["kind"] = "diode"
+    d["supply"]["voltage"] = "13 V"
+    written = coilkick.scenario_from_dict(d)
+    assert s.clamp_kind == "diode"
+    pd.testing.assert_series_equal(pd.Series(coilkick.run(s).metrics), pd.Series(coilkick.run(written).metrics))  # NaN == NaN here
+    back = pickle.loads(pickle.dumps(s))
+    assert back.clamp_kind == "diode" and back.assignments == s.assignments
+    vary = {"coil.inductance": [0.5, 0.6]}
+    with ProcessPoolExecutor(max_workers=2) as ex:
+        remote = coilkick.sweep(s, vary, executor=ex, chunk_size=1)
+    pd.testing.assert_frame_equal(remote, coilkick.sweep(written, vary, threads=1))
+    # A plain diode releases far slower than the file's diode + Zener (common practice).
+    zener = coilkick.sweep(s.with_clamp_kind("diode_zener"), vary, threads=1)
+    assert (remote["release_time_s"] > 2 * zener["release_time_s"]).all()
 
 
 def test_tolerance_local_threads_and_executor_agree(relay_dict):

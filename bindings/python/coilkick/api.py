@@ -205,10 +205,10 @@ def _frame(rows, lead_columns):
     return pd.DataFrame.from_records(records)
 
 
-def _sweep_chunk(text, name, models_dir, assignments, keys, values):
-    """One chunk of sweep points in a worker (module level so that executors can pickle it)."""
-    s = _core.Scenario(text, name, models_dir, assignments)
-    return _core.run_points(s, keys, values, 1)
+def _sweep_chunk(scenario, keys, values):
+    """One chunk of sweep points in a worker (module level so that executors can pickle it; a Scenario
+    pickles as the recipe it was built from: text, assignments and a clamp kind set after parsing)."""
+    return _core.run_points(scenario, keys, values, 1)
 
 
 def _chunks(n, chunk_size):
@@ -244,16 +244,14 @@ def sweep(scenario, vary: Dict[str, Any], executor=None, threads: int = 0, chunk
     if executor is None:
         rows = _core.run_points(scenario, keys, points, threads)
     else:
-        futures = [executor.submit(_sweep_chunk, scenario.text, scenario.source_name, scenario.models_dir,
-                                   list(scenario.assignments), keys, [points[i] for i in idx])
+        futures = [executor.submit(_sweep_chunk, scenario, keys, [points[i] for i in idx])
                    for idx in _chunks(len(points), chunk_size)]
         rows = [row for f in futures for row in f.result()]
     return _frame(rows, [dict(zip(keys, p)) for p in points])
 
 
-def _tolerance_chunk(text, name, models_dir, assignments, samples, seed, indices):
-    s = _core.Scenario(text, name, models_dir, assignments)
-    return _core.tolerance_points(s, samples, seed, indices, 1)
+def _tolerance_chunk(scenario, samples, seed, indices):
+    return _core.tolerance_points(scenario, samples, seed, indices, 1)
 
 
 class ToleranceResult:
@@ -298,8 +296,7 @@ def tolerance(scenario, samples: int = 1000, seed: int = 1, executor=None, threa
     if executor is None:
         rows = _core.tolerance_points(scenario, samples, seed, list(range(n)), threads)
     else:
-        futures = [executor.submit(_tolerance_chunk, scenario.text, scenario.source_name, scenario.models_dir,
-                                   list(scenario.assignments), samples, seed, idx)
+        futures = [executor.submit(_tolerance_chunk, scenario, samples, seed, idx)
                    for idx in _chunks(n, chunk_size)]
         rows = [row for f in futures for row in f.result()]
     return ToleranceResult(spreads, rows)
