@@ -40,8 +40,9 @@ TEST_CASE("analytic Jacobian equals finite differences for a line, at its DC poi
   Network net;
   net.add_voltage_source("supply", "supply", Waveform::edge(0.0, 24.0, 10e-9, 40e-9));
   net.add_resistor("source", "supply", "near", 20.0);
-  net.add(std::make_shared<TransmissionLine>("line", "near", Network::ground, "far", "far_return",
-                                             TransmissionLineParameters{80.0, 30e-9, 1.5, 2e-9}));
+  TransmissionLineParameters line{80.0, 30e-9, 1.5, 2e-9};
+  line.common_mode_resistance_ohm = 0.375;  // its common-mode path stamped too
+  net.add(std::make_shared<TransmissionLine>("line", "near", Network::ground, "far", "far_return", line));
   net.add_coil("coil", "far", "far_return", {1e-3, 40.0});
   net.add_resistor("return", "far_return", Network::ground, 5.0);
   Circuit c(net);

@@ -190,6 +190,10 @@ TEST_CASE("bad scenario inputs: one clear message with file:line:column each") {
       {"misspelt cable key", 0, "[cable]\nlenght = \"60 m\"", 22, "did you mean 'cable.length'?"},
       {"cable loss fraction of the whole delay", 0, "[cable]\nlength = \"60 m\"\nhigh_frequency_loss_fraction = 1.5", 23,
        "key 'cable.high_frequency_loss_fraction'"},
+      {"insulation loss tangent above 1", 0, "[cable]\nlength = \"60 m\"\ninsulation_loss_tangent = 1.5", 23,
+       "key 'cable.insulation_loss_tangent'"},
+      {"insulation loss tangent with a unit", 0, "[cable]\nlength = \"60 m\"\ninsulation_loss_tangent = \"5 %\"", 23,
+       "key 'cable.insulation_loss_tangent'"},
       // [[channel]] appended at line 21: name 22, a sub-table 23, its key 24.
       {"channel without a name", 0, "[[channel]]\n[channel.coil]\ninductance = \"0.3 H\"", 21, "key 'channel.name': is required in every [[channel]]"},
       {"channel name not a string", 0, "[[channel]]\nname = 2", 22, "key 'channel.name': must be a string, not an integer"},

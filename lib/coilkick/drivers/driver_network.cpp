@@ -1,5 +1,7 @@
 #include "coilkick/drivers/driver_network.hpp"
 
+#include "coilkick/drivers/cable_loss.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <map>
@@ -196,9 +198,9 @@ struct Builder {
       const double loop_ohm = shared_cable_core ? 0.5 * cb.loop_resistance_ohm() : cb.loop_resistance_ohm();
       const std::string near_a = shared_cable_core && !out.high_side ? "cable_common" : board_a;
       const std::string near_k = shared_cable_core && out.high_side ? "cable_common" : board_k;
-      out.network.add(std::make_shared<engine::TransmissionLine>(
-          n("cable"), near_a, near_k, a, k,
-          engine::TransmissionLineParameters{cb.characteristic_impedance_ohm(), delay, loop_ohm, cb.high_frequency_loss_fraction * delay}));
+      engine::TransmissionLineParameters line{cb.characteristic_impedance_ohm(), delay, loop_ohm, high_frequency_loss_fraction(cb) * delay};
+      line.common_mode_resistance_ohm = 0.25 * loop_ohm;  // the coil's end floats: the cores carry its common mode
+      out.network.add(std::make_shared<engine::TransmissionLine>(n("cable"), near_a, near_k, a, k, line));
     }
     out.coil_in_node = a;
     out.coil_out_node = k;

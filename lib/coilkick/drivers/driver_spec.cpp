@@ -293,7 +293,10 @@ void check_driver_spec(const DriverSpec& s) {
     require_positive("cable", "loop_resistance_per_metre_ohm_per_m", s.cable.loop_resistance_per_metre_ohm_per_m);
     require_positive("cable", "inductance_per_metre_H_per_m", s.cable.inductance_per_metre_H_per_m);
     require_positive("cable", "capacitance_per_metre_F_per_m", s.cable.capacitance_per_metre_F_per_m);
-    engine::require_open_range("cable", "high_frequency_loss_fraction", s.cable.high_frequency_loss_fraction, 0.0, 1.0);
+    if (!std::isnan(s.cable.high_frequency_loss_fraction)) {
+      engine::require_open_range("cable", "high_frequency_loss_fraction", s.cable.high_frequency_loss_fraction, 0.0, 1.0);
+    }
+    engine::require_closed_range("cable", "insulation_loss_tangent", s.cable.insulation_loss_tangent, 0.0, 1.0);
   }
   require_positive("drive", "high_level_V", s.drive.high_level_V);
   require_positive("drive", "output_resistance_ohm", s.drive.output_resistance_ohm);

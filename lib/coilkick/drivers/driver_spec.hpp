@@ -45,11 +45,14 @@ struct CableSpec {
   double loop_resistance_per_metre_ohm_per_m = 0.052;
   double inductance_per_metre_H_per_m = 0.55e-6;
   double capacitance_per_metre_F_per_m = 80e-12;
+  // The insulation's loss tangent near the pair's quarter-wave frequency (0.05: typical of
+  // plasticised PVC cable insulation near 1 MHz, from memory; such compounds span ~0.02–0.1).
+  double insulation_loss_tangent = 0.05;
   // The cable's loss of high frequencies as a first-order low-pass on each arriving wave, its
-  // time constant this fraction of the delay (0 < f < 1). It smooths fronts the way skin and
-  // dielectric loss do and keeps the run from resolving every harmonic; the design metrics move
-  // by < 0.1 % when it is halved (tests/drivers/test_cable.cpp).
-  double high_frequency_loss_fraction = 0.1;
+  // time constant this fraction of the delay (0 < f < 1). NaN (the default): from the
+  // conductors' skin effect and insulation_loss_tangent (drivers/cable_loss.hpp). The design
+  // metrics move by < 0.1 % when it is halved (tests/drivers/test_cable.cpp).
+  double high_frequency_loss_fraction = std::numeric_limits<double>::quiet_NaN();
   bool present() const { return length_m > 0.0; }
   double characteristic_impedance_ohm() const;
   double delay_s() const;

@@ -1,5 +1,6 @@
 #include "coilkick/engine/transmission_line.hpp"
 
+#include <cmath>
 #include <cstdlib>
 
 #include "coilkick/engine/parameter_check.hpp"
@@ -15,6 +16,7 @@ TransmissionLine::TransmissionLine(std::string name, std::string a_plus, std::st
   require_positive(owner, "delay_s", p_.delay_s);
   require_positive(owner, "loop_resistance_ohm", p_.loop_resistance_ohm);
   require_open_range(owner, "high_frequency_loss_time_s", p_.high_frequency_loss_time_s, 0.0, p_.delay_s);
+  require_positive_or_infinite(owner, "common_mode_resistance_ohm", p_.common_mode_resistance_ohm);
 }
 
 std::vector<PowerChannelSpec> TransmissionLine::power_channels() const {
@@ -36,6 +38,7 @@ double TransmissionLine::port_current_A(const ElementContext& ctx, int end) cons
 void TransmissionLine::load(const ElementContext& ctx, Stamper& out) const {
   const double z = p_.characteristic_impedance_ohm, rs = end_resistance_ohm(), c = z - rs;
   const double tf = p_.high_frequency_loss_time_s;
+  load_common_mode(ctx, out);
   out.add_mass(4, 4, tf);
   out.add_mass(5, 5, tf);
   if (!ctx.past()) {
@@ -125,6 +128,24 @@ void TransmissionLine::load(const ElementContext& ctx, Stamper& out) const {
       out.add_power_time_rate(0, 2.0 * q * u * u_rate);
     }
   }
+}
+
+// The common-mode path (common_mode_resistance_ohm): from the midpoint of end a to that of
+// end b, its current split equally over each end's two terminals. It leaves the port voltages
+// and currents alone and holds a floating far end where the conductors hold it (at DC: each
+// terminal near its board terminal), instead of on its strays alone.
+void TransmissionLine::load_common_mode(const ElementContext& ctx, Stamper& out) const {
+  if (!std::isfinite(p_.common_mode_resistance_ohm)) return;
+  const double g = 1.0 / p_.common_mode_resistance_ohm;
+  const double d = 0.5 * (ctx.value(0) + ctx.value(1) - ctx.value(2) - ctx.value(3));  // cm_a − cm_b
+  const double i = g * d;                                                            // from end a to end b
+  const double share[4] = {0.5, 0.5, -0.5, -0.5};  // the current leaves a's terminals, enters b's
+  for (int r = 0; r < 4; ++r) {
+    out.add_flow(r, -share[r] * i);
+    for (int col = 0; col < 4; ++col) out.add_flow_slope(r, col, -share[r] * g * share[col]);
+    out.add_power_slope(0, r, 2.0 * g * d * share[r]);
+  }
+  out.add_power(0, g * d * d);
 }
 
 void TransmissionLine::history_values(const ElementContext& ctx, double* values, double* rates) const {

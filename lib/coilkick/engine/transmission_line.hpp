@@ -15,6 +15,8 @@
 // loss, (w_arriving − e)²/(4·Z0) per end. Stores the energy of the waves in transit and in the
 // low-passes, τ_hf·e²/(4·Z0) per end (½·L·I² + ½·C·V² at DC).
 // At its DC operating point the line is its loop resistance between the ends.
+#include <limits>
+
 #include "coilkick/engine/element.hpp"
 
 namespace coilkick::engine {
@@ -27,6 +29,12 @@ struct TransmissionLineParameters {
   // the cable's loss of high frequencies (skin effect, dielectric). Without it a lossless line
   // keeps every harmonic and rings from the integrator's own errors.
   double high_frequency_loss_time_s = 0.0;
+  // A pair whose far end floats (a coil at the end of a two-core cable): both conductors
+  // together carry the ends' common mode, this resistance (both halves of the loop in parallel,
+  // loop/4) from the midpoint of end a to that of end b. Infinite (the default): no such path,
+  // as for a line whose two ends share their minus terminal — there a finite value would be a
+  // second path for the line's own current.
+  double common_mode_resistance_ohm = std::numeric_limits<double>::infinity();
 };
 
 class TransmissionLine final : public Element {
@@ -49,6 +57,7 @@ class TransmissionLine final : public Element {
   double pure_delay_s() const { return p_.delay_s - p_.high_frequency_loss_time_s; }
   // Port current at end k (0: a, 1: b), into its plus terminal, behind the arriving wave (state).
   double port_current_A(const ElementContext& ctx, int end) const;
+  void load_common_mode(const ElementContext& ctx, Stamper& out) const;
 };
 
 }  // namespace coilkick::engine

@@ -30,6 +30,7 @@ const std::vector<NumericKey>& numeric_table() {
          "cable: capacitance_per_metre_F_per_m"),
       NK("cable.high_frequency_loss_fraction", dimensionless, "1", driver.cable.high_frequency_loss_fraction,
          "cable: high_frequency_loss_fraction"),
+      NK("cable.insulation_loss_tangent", dimensionless, "1", driver.cable.insulation_loss_tangent, "cable: insulation_loss_tangent"),
       NK("drive.high_level", voltage, "V", driver.drive.high_level_V, "drive: high_level_V"),
       NK("drive.output_resistance", resistance, "ohm", driver.drive.output_resistance_ohm, "drive: output_resistance_ohm"),
       NK("drive.rise_time", time, "s", driver.drive.rise_time_s, "drive: rise_time_s"),
