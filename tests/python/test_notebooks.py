@@ -11,8 +11,8 @@ import nbclient  # a project dependency (python3-nbclient): missing is a failure
 NOTEBOOKS = sorted(glob.glob(os.path.join(os.path.dirname(__file__), "..", "..", "notebooks_examples", "*.ipynb")))
 
 
-def test_there_are_seven_notebooks():
-    assert len(NOTEBOOKS) == 7
+def test_there_are_eight_notebooks():
+    assert len(NOTEBOOKS) == 8
 
 
 @pytest.mark.parametrize("path", NOTEBOOKS, ids=os.path.basename)

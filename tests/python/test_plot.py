@@ -73,3 +73,31 @@ def test_channels_plot_draws_every_channel_and_marks_its_release(relay_dict):
         assert False, "expected an error"
     except ValueError as e:
         assert "one channel" in str(e)
+
+
+def test_cable_ends_plot_draws_both_ends_of_the_cable(relay_dict):
+    wired = dict(relay_dict)
+    wired["cable"] = {"length": "60 m"}
+    rows = coilkick.compare(coilkick.scenario_from_dict(wired), ["diode", "diode_zener"])
+    f = coilkick.plot.cable_ends(rows)
+    assert f.axes[0].get_ylabel() == "switch voltage (V)"
+    assert "far end" in f.axes[1].get_ylabel() and "µs" in f.axes[1].get_xlabel()
+    # Per result a curve and its peak's dot in each panel (and the rating in the top one).
+    assert len(f.axes[1].lines) == 4
+    # The dot sits on the largest magnitude of the coil's own voltage over the window shown: with
+    # the Zener the front's overshoot at the coil (Γ = 1 there), which is the run's coil-end peak
+    # (that metric is refined on the dense output, the dot is a recorded point: 1e-3).
+    kinds = [row.kind for row in rows]
+    z = kinds.index("diode_zener")
+    r = rows[z].result
+    coil = r.node_voltage_V("coil_in") - r.node_voltage_V("coil_out")
+    shown = (r.time_s - r.switch_off_at_s >= 0) & (r.time_s - r.switch_off_at_s <= 20e-6)
+    dot = f.axes[1].lines[2 * z + 1].get_ydata()[0]
+    assert abs(abs(dot) - abs(coil[shown]).max()) < 1e-12
+    assert abs(abs(dot) / r.metrics["coil_end_peak_V"] - 1.0) < 1e-3
+    # A run without a cable: an error naming what is missing, not an empty chart.
+    try:
+        coilkick.plot.cable_ends(coilkick.run(coilkick.scenario_from_dict(relay_dict)))
+        assert False, "expected an error"
+    except ValueError as e:
+        assert "[cable]" in str(e)

@@ -1,5 +1,5 @@
 """Plots of coilkick results (matplotlib), in a style of our own: switch-off waveforms with clamps
-overlaid, every channel of a board, a PWM hold's ripple and the release from it, a fit to a bench capture (overlay), the clamp comparison chart, release time against peak switch voltage with the switch
+overlaid, every channel of a board, both ends of a cable, a PWM hold's ripple and the release from it, a fit to a bench capture (overlay), the clamp comparison chart, release time against peak switch voltage with the switch
 rating and its derated limit, and Monte Carlo histograms. Every axis is labelled with its unit."""
 import numpy as np
 
@@ -112,6 +112,46 @@ def channels(run, t_end_s=None, title=None):
             ai.plot([t_mark], [np.interp(t_mark, tt, c.coil_current_A * 1e3)], marker="o", color=colour, markersize=5)
     ai.set_xlabel("time after the first switch-off edge (ms); dot: release")
     return _finish_voltage_current(fig, (av, ai), run.metrics["switch_voltage_rating_V"], title)
+
+
+def cable_ends(items, t_end_s=20e-6, title=None):
+    """A coil at the far end of a cable (scenario [cable]): the switch voltage on the board (top) and
+    the voltage across the coil's own terminals at the far end (`coil_in` less `coil_out`, bottom)
+    against the time after switch-off in µs, over the first `t_end_s` (default 20 µs: the line's
+    fronts and ringing; the coil's decay takes milliseconds). Each curve's peak is marked. items:
+    comparison rows, {label: RunResult}, [(label, RunResult)] or one RunResult. Returns the figure."""
+    plt = _plt()
+    pairs = _results([("run", items)] if hasattr(items, "metrics") else items)
+    if not pairs:
+        raise ValueError("cable_ends: no results to draw")
+    fig, (av, ac) = plt.subplots(2, 1, sharex=True, figsize=(8, 6))
+    for k, (label, r) in enumerate(pairs):
+        try:
+            coil = r.node_voltage_V("coil_in") - r.node_voltage_V("coil_out")
+        except Exception as e:  # the node names say whether the run has a cable
+            raise ValueError("cable_ends: the run %r has no cable (give the scenario a [cable] length)" % label) from e
+        tt = (r.time_s - r.switch_off_at_s) * 1e6
+        keep = (tt >= 0) & (tt <= t_end_s * 1e6)
+        c = PALETTE[k % len(PALETTE)]
+        av.plot(tt[keep], r.switch_voltage_V[keep], color=c, label=label, linewidth=1.2)
+        ac.plot(tt[keep], coil[keep], color=c, linewidth=1.2)
+        for ax, v in ((av, r.switch_voltage_V), (ac, coil)):
+            if keep.any():
+                i = np.flatnonzero(keep)[np.argmax(np.abs(v[keep]))]
+                ax.plot([tt[i]], [v[i]], marker="o", color=c, markersize=4)
+    rating = next((r.metrics["switch_voltage_rating_V"] for _, r in pairs), float("nan"))
+    if np.isfinite(rating):
+        av.axhline(rating, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="switch rating")
+    av.set_ylabel("switch voltage (V)")
+    ac.set_ylabel("voltage across the coil\nat the cable's far end (V)")
+    ac.set_xlabel("time after the start of switch-off (µs); dot: largest magnitude shown")
+    for ax in (av, ac):
+        _style(ax)
+    av.legend(fontsize=8, frameon=False, loc="upper right")
+    if title:
+        fig.suptitle(title)
+    fig.tight_layout()
+    return fig
 
 
 def hold(items, title=None):
