@@ -26,7 +26,7 @@ class Dom(html.parser.HTMLParser):
 
     def __init__(self):
         super().__init__()
-        self.sections, self.checks, self.scripts, self.channels = [], {}, 0, []
+        self.sections, self.checks, self.scripts, self.channels, self.figures = [], {}, 0, [], []
 
     def handle_starttag(self, tag, attrs):
         a = dict(attrs)
@@ -38,6 +38,8 @@ class Dom(html.parser.HTMLParser):
             self.checks[a["data-check"]] = a
         if tag == "tr" and "data-channel" in a:
             self.channels.append(a["data-channel"])
+        if tag == "figure" and "id" in a:
+            self.figures.append(a["id"])
 
 
 def console_messages(stderr):
@@ -53,7 +55,7 @@ def test_console_detection_catches_a_blocked_load(tmp_path):
     assert console_messages(out.stderr)
 
 
-@pytest.mark.parametrize("scenario", ["greenhouse_valve.toml", "fan_relay.toml", "greenhouse_valve_bank.toml"])
+@pytest.mark.parametrize("scenario", ["greenhouse_valve.toml", "fan_relay.toml", "greenhouse_valve_bank.toml", "greenhouse_valve_cable.toml"])
 def test_the_report_in_a_real_browser(scenario, tmp_path, program):
     path = os.path.join(MODELS, "scenarios", scenario)
     page = tmp_path / "review.html"
@@ -75,6 +77,8 @@ def test_the_report_in_a_real_browser(scenario, tmp_path, program):
     assert set(dom.checks) == {c["name"] for c in report["checks"]}
     # A board of several channels: a row per channel, named as the command names them.
     assert dom.channels == [c["name"] for c in report.get("channels", [])]
+    # A coil at the end of a cable: the chart of both ends, and only then.
+    assert ("cable_ends" in dom.figures) == ("cable" in scenario)
     for c in report["checks"]:
         row = dom.checks[c["name"]]
         assert row["data-status"] == c["status"]

@@ -160,6 +160,10 @@ def build(scenario, samples=200, seed=1, progress=None):
         })
     data["comparison"] = compare_rows
     data["waveforms_svg"] = _svg(plot.switch_off(rows, title="switch-off per clamp"))
+    # A coil at the end of a cable: both ends over the first microseconds.
+    data["cable_svg"] = None
+    if any(e["kind"] == "transmission line" for e in built["elements"]):
+        data["cable_svg"] = _svg(plot.cable_ends(rows, title="the board and the coil at the cable's far end"))
     # Release time against spike voltage over the catalogue's E24 Zeners (IEC 60063).
     data["curve_svg"] = None
     if "diode_zener" in scenario.applicable_clamp_kinds:
