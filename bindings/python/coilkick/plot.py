@@ -34,14 +34,14 @@ def _results(items):
     return out
 
 
-def _finish_voltage_current(fig, axes, rating_V, title):
-    """Switch voltage (axes[0], with the switch's rating dashed) over coil current (axes[1]): labels,
-    style, legend, title."""
+def _finish_voltage_current(fig, axes, rating_V, title, lower_label="coil current (mA)"):
+    """Switch voltage (axes[0], with the switch's rating dashed) over coil current (axes[1], or what
+    lower_label names): labels, style, legend, title."""
     av, ai = axes[0], axes[1]
     if np.isfinite(rating_V):
         av.axhline(rating_V, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="switch rating")
     av.set_ylabel("switch voltage (V)")
-    ai.set_ylabel("coil current (mA)")
+    ai.set_ylabel(lower_label)
     for ax in axes:
         _style(ax)
     av.legend(fontsize=8, frameon=False, loc="upper right")
@@ -139,19 +139,9 @@ def cable_ends(items, t_end_s=20e-6, title=None):
             if keep.any():
                 i = np.flatnonzero(keep)[np.argmax(np.abs(v[keep]))]
                 ax.plot([tt[i]], [v[i]], marker="o", color=c, markersize=4)
-    rating = next((r.metrics["switch_voltage_rating_V"] for _, r in pairs), float("nan"))
-    if np.isfinite(rating):
-        av.axhline(rating, color=LIMIT_COLOUR, linestyle="--", linewidth=1, label="switch rating")
-    av.set_ylabel("switch voltage (V)")
-    ac.set_ylabel("voltage across the coil\nat the cable's far end (V)")
     ac.set_xlabel("time after the start of switch-off (µs); dot: largest magnitude shown")
-    for ax in (av, ac):
-        _style(ax)
-    av.legend(fontsize=8, frameon=False, loc="upper right")
-    if title:
-        fig.suptitle(title)
-    fig.tight_layout()
-    return fig
+    rating = next((r.metrics["switch_voltage_rating_V"] for _, r in pairs), float("nan"))
+    return _finish_voltage_current(fig, (av, ac), rating, title, lower_label="voltage across the coil\nat the cable's far end (V)")
 
 
 def hold(items, title=None):
