@@ -37,7 +37,10 @@ double TransmissionLine::port_current_A(const ElementContext& ctx, int end) cons
 
 void TransmissionLine::load(const ElementContext& ctx, Stamper& out) const {
   const double z = p_.characteristic_impedance_ohm, rs = end_resistance_ohm(), c = z - rs;
-  const double tf = p_.high_frequency_loss_time_s;
+  const bool quasi_static = ctx.past() && ctx.past()->quasi_static;
+  // The arriving wave's low-pass: the cable's high-frequency loss, or in the quasi-static form the
+  // lag of the delay's Padé form (quasi_static_lag_s).
+  const double tf = quasi_static ? quasi_static_lag_s() : p_.high_frequency_loss_time_s;
   load_common_mode(ctx, out);
   out.add_mass(4, 4, tf);
   out.add_mass(5, 5, tf);
@@ -113,8 +116,8 @@ void TransmissionLine::load(const ElementContext& ctx, Stamper& out) const {
       out.add_power_slope(0, om, -2.0 * q * u * (1.0 + k));
       out.add_power_slope(0, oe, -2.0 * q * u * k);
       out.add_power_slope(0, e, -2.0 * q * u);
-      // w(t − τ) ≈ w(t) − τ·ẇ(t): the line's own series L and shunt C, to first order in τ.
-      const double tau = pure_delay_s();
+      // The delay as lead and lag (quasi_static_lag_s): the line's own series L and shunt C.
+      const double tau = p_.delay_s - quasi_static_lag_s();
       out.add_mass(e, op, tau * (1.0 + k));
       out.add_mass(e, om, -tau * (1.0 + k));
       out.add_mass(e, oe, -tau * k);
@@ -173,10 +176,11 @@ double TransmissionLine::stored_energy_J(const ElementContext& ctx) const {
   const double z = p_.characteristic_impedance_ohm, tau = p_.delay_s;
   if (const DelayedValues* past = ctx.past()) {
     // A wave w/2 carries (w/2)²/Z0 watts; what left either end within the last pure delay is in
-    // transit, and each low-pass holds τ_hf·e²/(4·Z0) (its loss is then (u − e)²/(4·Z0) ≥ 0).
-    const double t = ctx.time_s(), tp = pure_delay_s(), ea = ctx.value(4), eb = ctx.value(5);
-    return (past->integral_of_square(0, t - tp, t) + past->integral_of_square(1, t - tp, t) +
-            p_.high_frequency_loss_time_s * (ea * ea + eb * eb)) /
+    // transit, and each low-pass holds τ_hf·e²/(4·Z0) (its loss is then (u − e)²/(4·Z0) ≥ 0). In
+    // the quasi-static form the lead and the lag take those places (to the form's first order).
+    const double lag = past->quasi_static ? quasi_static_lag_s() : p_.high_frequency_loss_time_s;
+    const double t = ctx.time_s(), tp = tau - lag, ea = ctx.value(4), eb = ctx.value(5);
+    return (past->integral_of_square(0, t - tp, t) + past->integral_of_square(1, t - tp, t) + lag * (ea * ea + eb * eb)) /
            (4.0 * z);
   }
   const double va = ctx.value(0) - ctx.value(1), vb = ctx.value(2) - ctx.value(3);

@@ -15,6 +15,7 @@
 // loss, (w_arriving − e)²/(4·Z0) per end. Stores the energy of the waves in transit and in the
 // low-passes, τ_hf·e²/(4·Z0) per end (½·L·I² + ½·C·V² at DC).
 // At its DC operating point the line is its loop resistance between the ends.
+#include <algorithm>
 #include <limits>
 
 #include "coilkick/engine/element.hpp"
@@ -55,6 +56,12 @@ class TransmissionLine final : public Element {
   TransmissionLineParameters p_;
   double end_resistance_ohm() const { return 0.5 * p_.loop_resistance_ohm; }
   double pure_delay_s() const { return p_.delay_s - p_.high_frequency_loss_time_s; }
+  // The quasi-static form reads the delay τ as a lead τ − τ_q on the other end's wave and a lag τ_q
+  // on the arriving one: (1 − s·(τ − τ_q))/(1 + s·τ_q). With τ_q = τ/2 that is the delay's (1,1)
+  // Padé form, which passes every frequency at unit gain; a lead longer than the lag (τ_q = τ_hf
+  // below τ/2) would put a growing oscillation into a line between a clamp and a coil
+  // (docs/derivations.md, "A cable by its travelling waves", section "Steps").
+  double quasi_static_lag_s() const { return std::max(p_.high_frequency_loss_time_s, 0.5 * p_.delay_s); }
   // Port current at end k (0: a, 1: b), into its plus terminal, behind the arriving wave (state).
   double port_current_A(const ElementContext& ctx, int end) const;
   void load_common_mode(const ElementContext& ctx, Stamper& out) const;
