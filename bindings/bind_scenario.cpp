@@ -116,7 +116,7 @@ void DefineScenario(py::module_& m) {
             return rebuild_scenario(p.text, p.name, p.models_dir, a, p.clamp_kind);
           },
           py::arg("key"), py::arg("value"),
-          "A copy with one numeric key set (value in the key's SI base unit), e.g. "
+          "A copy with one numeric key set (value in the key's unit as numeric_keys() lists it: SI base units, temperatures in degC), e.g. "
           "with_value('clamp.zener.overrides.breakdown_voltage', 20.0).");
   m.def("numeric_keys", &scenario::numeric_keys, "Numeric scenario keys with their SI units.");
   m.def(
