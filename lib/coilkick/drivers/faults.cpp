@@ -63,7 +63,8 @@ struct Evaluated {
 
 // At DC a cable is its two cores, each half the loop resistance: the far end's terminals then
 // read the board's potentials less the cores' drops, as a meter at the coil would (the line
-// element carries only the pair's own voltage, so its far end would float against ground). On a
+// element reads the same, but as one loop with a common-mode path, so a fault of one core needs
+// the cores apart). On a
 // board whose coils share a common core ("cable_common_core", lumped), a line is one core: its
 // own, on the switched side; its common side is the shared core (here a 1 µΩ link).
 engine::Network with_cables_as_cores(const engine::Network& n) {
