@@ -5,7 +5,9 @@
 #include <stdexcept>
 
 #include "coilkick/analyses/parallel.hpp"
+#include "coilkick/drivers/cable_loss.hpp"
 #include "coilkick/drivers/compare.hpp"
+#include "coilkick/drivers/si_format.hpp"
 #include "coilkick/drivers/switch_off.hpp"
 #include "coilkick/relay/relay_calibration.hpp"
 #include "commands.hpp"
@@ -180,6 +182,22 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
       if (!d.extra_parts.empty()) lines.push_back({"energy into the extra parts", "extra_parts_energy_J"});
       if (d.cable.present()) lines.push_back({"energy into the cable", "cable_energy_J"});
       section(out, "Supply rail, cable and extra parts (against the on-state)", lines, r.metrics);
+      if (d.cable.present()) {
+        // The line the cable is modelled as (docs/derivations.md, "A cable by its travelling waves").
+        const auto& cb = d.cable;
+        out << "  the cable as a line: impedance " << drivers::format_si(cb.characteristic_impedance_ohm(), "ohm") << ", delay "
+            << drivers::format_si(cb.delay_s(), "s") << ", loop " << drivers::format_si(cb.loop_resistance_ohm(), "ohm")
+            << "; it rings at " << drivers::format_si(0.25 / cb.delay_s(), "Hz") << " (a quarter wave)\n"
+            << "  its high-frequency loss: a low-pass of " << std::setprecision(2) << drivers::high_frequency_loss_fraction(cb)
+            << " of the delay";
+        if (std::isnan(cb.high_frequency_loss_fraction)) {
+          out << " (skin effect and insulation: " << std::setprecision(3) << drivers::cable_excess_loss_per_pass_Np(cb)
+              << " Np per pass there)";
+        } else {
+          out << " (cable.high_frequency_loss_fraction)";
+        }
+        out << std::setprecision(6) << "\n";
+      }
     }
     if (d.relay.armature_model) {
       out << "\n";
