@@ -58,6 +58,7 @@ FILE_ROWS = [
     ("number for a topology", 12, "topology = 5", 12, "must be a string"),
     ("unknown topology", 12, 'topology = "low_side_npm"', 12, "did you mean 'low_side_npn'"),
     ("unknown clamp kind", 16, 'kind = "diode_zenner"', 16, "did you mean 'diode_zener'"),
+    ("clamp kind like none of them", 16, 'kind = "zener_only"', 16, "(one of: none, diode, diode_zener,"),
     ("unknown switch part", 13, 'part = "npn_small_signal_40"', 13, "did you mean 'npn_small_signal_40v'"),
     ("part of the wrong family", 13, 'part = "zener_500mw_12v"', 13, "does not fit topology"),
     ("unknown Zener part", 18, 'zener_part = "zener_500mw_17v"', 18, "no part named 'zener_500mw_17v'"),

@@ -39,7 +39,13 @@ E parse(const std::vector<std::pair<std::string, E>>& table, const std::string& 
     if (n == word) return e;
     names.push_back(n);
   }
-  throw std::invalid_argument(std::string("unknown ") + what + " '" + word + "'" + engine::did_you_mean(word, names));
+  std::string hint = engine::did_you_mean(word, names);
+  if (hint.empty()) {  // nothing close: name them all (a handful)
+    hint = " (one of:";
+    for (std::size_t k = 0; k < names.size(); ++k) hint += (k ? ", " : " ") + names[k];
+    hint += ")";
+  }
+  throw std::invalid_argument(std::string("unknown ") + what + " '" + word + "'" + hint);
 }
 template <class E>
 std::string name_of(const std::vector<std::pair<std::string, E>>& table, E e) {
