@@ -44,6 +44,14 @@ void DefineScenario(py::module_& m) {
             return rebuild_scenario(t[0].cast<std::string>(), t[1].cast<std::string>(), t[2].cast<std::string>(),
                                     t[3].cast<std::vector<std::pair<std::string, double>>>(), t[4].cast<std::string>());
           }))
+      .def("__repr__",
+           [](const PyScenario& p) {
+             std::string out = "<coilkick.Scenario '" + p.scenario.driver.name + "' from " + p.name + ": " +
+                               drivers::to_string(p.scenario.driver.switch_.topology) + ", clamp " +
+                               drivers::to_string(p.scenario.driver.clamp.kind);
+             for (const auto& [k, v] : p.assignments) out += ", " + k + " = " + py::repr(py::float_(v)).cast<std::string>();
+             return out + ">";
+           })
       .def_readonly("text", &PyScenario::text, "The scenario's TOML text.")
       .def_readonly("source_name", &PyScenario::name, "File name used in messages.")
       .def_readonly("models_dir", &PyScenario::models_dir, "Models directory ('' = default).")

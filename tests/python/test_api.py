@@ -102,6 +102,8 @@ def test_a_clamp_kind_set_after_parsing_survives_copies_pickling_and_workers(rel
     written = coilkick.scenario_from_dict(d)
     assert s.clamp_kind == "diode"
     pd.testing.assert_series_equal(pd.Series(coilkick.run(s).metrics), pd.Series(coilkick.run(written).metrics))  # NaN == NaN here
+    # What it is, at a glance (a notebook's echo): name, clamp and the values set.
+    assert repr(s) == "<coilkick.Scenario 'python test relay' from <dict>: low_side_npn, clamp diode, supply.voltage = 13.0>"
     back = pickle.loads(pickle.dumps(s))
     assert back.clamp_kind == "diode" and back.assignments == s.assignments
     vary = {"coil.inductance": [0.5, 0.6]}
