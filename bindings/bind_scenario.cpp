@@ -36,7 +36,7 @@ void DefineScenario(py::module_& m) {
       .def(py::init(&rebuild_scenario), py::arg("text"), py::arg("name"), py::arg("models_dir") = "",
            py::arg("assignments") = std::vector<std::pair<std::string, double>>{}, py::arg("clamp_kind") = "",
            "Parse scenario TOML `text`; `name` is used in messages as the file name. `clamp_kind` ('' = the file's) "
-           "and `assignments`, numeric keys (SI base units), are set after parsing.")
+           "and `assignments`, numeric keys (in their units as numeric_keys() lists them), are set after parsing.")
       .def(py::pickle(
           [](const PyScenario& p) { return py::make_tuple(p.text, p.name, p.models_dir, p.assignments, p.clamp_kind); },
           [](const py::tuple& t) {
@@ -55,8 +55,7 @@ void DefineScenario(py::module_& m) {
       .def_readonly("text", &PyScenario::text, "The scenario's TOML text.")
       .def_readonly("source_name", &PyScenario::name, "File name used in messages.")
       .def_readonly("models_dir", &PyScenario::models_dir, "Models directory ('' = default).")
-      .def_readonly("assignments", &PyScenario::assignments, "Numeric keys set after parsing, (key, value in SI base units).")
-      .def_readonly("clamp_kind_set", &PyScenario::clamp_kind, "The clamp kind set after parsing ('' = the file's).")
+      .def_readonly("assignments", &PyScenario::assignments, "Numeric keys set after parsing, (key, value in the key's unit).")
       .def_property_readonly("name", [](const PyScenario& p) { return p.scenario.driver.name; }, "The scenario's name.")
       .def_property_readonly("topology", [](const PyScenario& p) { return drivers::to_string(p.scenario.driver.switch_.topology); })
       .def_property_readonly("clamp_kind", [](const PyScenario& p) { return drivers::to_string(p.scenario.driver.clamp.kind); })
@@ -72,7 +71,7 @@ void DefineScenario(py::module_& m) {
           [](const PyScenario& p, const std::string& kind) {
             return rebuild_scenario(p.text, p.name, p.models_dir, p.assignments, kind);
           },
-          py::arg("kind"), "A copy with another clamp kind (the parts the file gives; for local runs).")
+          py::arg("kind"), "A copy with another clamp kind (the parts the file gives).")
       .def_property_readonly(
           "switch_part", [](const PyScenario& p) { return p.scenario.driver.switch_.part; }, "The switch's catalogue part.")
       .def_property_readonly(

@@ -187,7 +187,7 @@ int cmd_run(const CommonOptions& o, const std::string& waveforms_csv, bool fail_
         const auto& cb = d.cable;
         out << "  the cable as a line: impedance " << drivers::format_si(cb.characteristic_impedance_ohm(), "ohm") << ", delay "
             << drivers::format_si(cb.delay_s(), "s") << ", loop " << drivers::format_si(cb.loop_resistance_ohm(), "ohm")
-            << "; it rings at " << drivers::format_si(0.25 / cb.delay_s(), "Hz") << " (a quarter wave)\n"
+            << "; it rings at " << drivers::format_si(drivers::quarter_wave_frequency_Hz(cb), "Hz") << " (a quarter wave)\n"
             << "  its high-frequency loss: a low-pass of " << std::setprecision(2) << drivers::high_frequency_loss_fraction(cb)
             << " of the delay";
         if (std::isnan(cb.high_frequency_loss_fraction)) {

@@ -219,7 +219,8 @@ def _chunks(n, chunk_size):
 
 def sweep(scenario, vary: Dict[str, Any], executor=None, threads: int = 0, chunk_size: Optional[int] = None) -> pd.DataFrame:
     """Grid sweep over numeric keys. vary: {key: (start, stop, count) or [values]} in the keys' units
-    (numeric_keys(): SI base units, temperatures in degC); the grid is the product, first key slowest. Returns a DataFrame: the keys, overall, error, failed_checks, every metric.
+    (numeric_keys(): SI base units, temperatures in degC); the grid is the product, first key slowest.
+    Returns a DataFrame: the keys, overall, error, failed_checks, every metric.
     With `executor` (concurrent.futures style: submit() returning futures; a dask Client works) the grid is
     split into chunks run there; the numbers are the same as without. Limits as the command's: an unknown key is a
     ScenarioError (with the closest key), at most 100,000 values per span and 1,000,000 points in all."""

@@ -118,7 +118,7 @@ def cable_ends(items, t_end_s=20e-6, title=None):
     """A coil at the far end of a cable (scenario [cable]): the switch voltage on the board (top) and
     the voltage across the coil's own terminals at the far end (`coil_in` less `coil_out`, bottom)
     against the time after switch-off in µs, over the first `t_end_s` (default 20 µs: the line's
-    fronts and ringing; the coil's decay takes milliseconds). Each curve's peak is marked. items:
+    fronts and ringing; the coil's decay takes milliseconds), each curve's largest magnitude there marked. items:
     comparison rows, {label: RunResult}, [(label, RunResult)] or one RunResult. Returns the figure."""
     plt = _plt()
     pairs = _results([("run", items)] if hasattr(items, "metrics") else items)

@@ -5,12 +5,12 @@
 #include <complex>
 
 #include "coilkick/drivers/copper.hpp"
+#include "coilkick/relay/magnetic_circuit.hpp"
 
 namespace coilkick::drivers {
 
 namespace {
 constexpr double kPi = 3.14159265358979323846;
-constexpr double kVacuumPermeability_H_per_m = 4e-7 * kPi;  // μ0 (to 2e-10 relative since the SI of 2019)
 
 // J0(z) and J1(z) by their power series; used for z = (1 − j)·x, x ≤ 20, where J0 and J1 grow
 // like e^x and the largest term stays within ~1e3 of the sum: ~13 digits in doubles.
@@ -30,7 +30,7 @@ void bessel_j0_j1(std::complex<double> z, std::complex<double>& j0, std::complex
 }  // namespace
 
 double copper_skin_depth_m(double frequency_Hz) {
-  return std::sqrt(kCopperResistivity_ohm_m / (kPi * frequency_Hz * kVacuumPermeability_H_per_m));
+  return std::sqrt(kCopperResistivity_ohm_m / (kPi * frequency_Hz * relay::kVacuumPermeability_H_per_m));
 }
 
 double round_wire_resistance_ratio(double x) {
@@ -42,11 +42,12 @@ double round_wire_resistance_ratio(double x) {
   return std::real(0.5 * z * j0 / j1);
 }
 
+double quarter_wave_frequency_Hz(const CableSpec& c) { return 0.25 / c.delay_s(); }
+
 double cable_excess_loss_per_pass_Np(const CableSpec& c) {
-  const double quarter_wave_Hz = 1.0 / (4.0 * c.delay_s());
   const double core_ohm_per_m = 0.5 * c.loop_resistance_per_metre_ohm_per_m;
   const double radius_m = std::sqrt(kCopperResistivity_ohm_m / (kPi * core_ohm_per_m));
-  const double ratio = round_wire_resistance_ratio(radius_m / copper_skin_depth_m(quarter_wave_Hz));
+  const double ratio = round_wire_resistance_ratio(radius_m / copper_skin_depth_m(quarter_wave_frequency_Hz(c)));
   return (ratio - 1.0) * c.loop_resistance_ohm() / (2.0 * c.characteristic_impedance_ohm()) +
          0.25 * kPi * c.insulation_loss_tangent;
 }

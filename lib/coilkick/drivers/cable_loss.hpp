@@ -18,6 +18,9 @@ double copper_skin_depth_m(double frequency_Hz);
 // x/2 + 1/4 + 3/(32·x) for x ≫ 1.
 double round_wire_resistance_ratio(double radius_over_skin_depth);
 
+// The pair's lowest resonance with the clamp conducting and the coil an open end: 1/(4·delay).
+double quarter_wave_frequency_Hz(const CableSpec& cable);
+
 // The loss of one pass along the cable at its quarter-wave frequency beyond its DC resistance,
 // in nepers: (R_ac/R_dc − 1)·R_loop/(2·Z0) + π·tanδ/4. The conductors' radius is that of solid
 // copper of the cable's loop resistance per metre (two cores).

@@ -50,8 +50,9 @@ struct CableSpec {
   double insulation_loss_tangent = 0.05;
   // The cable's loss of high frequencies as a first-order low-pass on each arriving wave, its
   // time constant this fraction of the delay (0 < f < 1). NaN (the default): from the
-  // conductors' skin effect and insulation_loss_tangent (drivers/cable_loss.hpp). The design
-  // metrics move by < 0.1 % when it is halved (tests/drivers/test_cable.cpp).
+  // conductors' skin effect and insulation_loss_tangent (drivers/cable_loss.hpp). Halving it
+  // moves the release time by < 0.1 %, the switch's and the coil end's peaks by < 1 %
+  // (tests/drivers/test_cable.cpp).
   double high_frequency_loss_fraction = std::numeric_limits<double>::quiet_NaN();
   bool present() const { return length_m > 0.0; }
   double characteristic_impedance_ohm() const;

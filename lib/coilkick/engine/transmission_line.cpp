@@ -143,12 +143,13 @@ void TransmissionLine::load_common_mode(const ElementContext& ctx, Stamper& out)
   const double d = 0.5 * (ctx.value(0) + ctx.value(1) - ctx.value(2) - ctx.value(3));  // cm_a − cm_b
   const double i = g * d;                                                            // from end a to end b
   const double share[4] = {0.5, 0.5, -0.5, -0.5};  // the current leaves a's terminals, enters b's
+  for (int r = 0; r < 4; ++r) out.add_flow(r, -share[r] * i);
+  out.add_power(0, g * d * d);
+  if (!out.wants_slopes()) return;  // a Rosenbrock stage: rates only
   for (int r = 0; r < 4; ++r) {
-    out.add_flow(r, -share[r] * i);
     for (int col = 0; col < 4; ++col) out.add_flow_slope(r, col, -share[r] * g * share[col]);
     out.add_power_slope(0, r, 2.0 * g * d * share[r]);
   }
-  out.add_power(0, g * d * d);
 }
 
 void TransmissionLine::history_values(const ElementContext& ctx, double* values, double* rates) const {
