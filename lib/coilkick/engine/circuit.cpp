@@ -66,6 +66,9 @@ class LocalStamper final : public Stamper {
   void add_power(int, double) override {}
   void add_power_slope(int, int, double) override {}
   void add_power_time_rate(int, double) override {}
+  // A terminal current needs the flows and the mass only: a model without charges then
+  // evaluates its currents in plain doubles (the same values as its dual numbers' value parts).
+  bool wants_slopes() const override { return false; }
 
  private:
   Eigen::VectorXd& flow_;
@@ -331,7 +334,11 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
     w.lu_of = w.mass.topLeftCorner(nc, nc);
     w.lu.compute(w.lu_of);
   }
-  w.scratch_rhs.noalias() = w.flow.head(nc) - w.mass.block(0, nc, nc, nf) * vdot_f;
+  // The fixed nodes' slopes are zero but on the sources' edges: their terms are skipped then
+  // (adding exact zeros; the small products cost more in call overhead than in arithmetic).
+  const bool sources_move = !vdot_f.isZero(0.0);
+  w.scratch_rhs = w.flow.head(nc);
+  if (sources_move) w.scratch_rhs.noalias() -= w.mass.block(0, nc, nc, nf) * vdot_f;
   w.lu.solve_in_place(w.scratch_rhs);
   w.rate.head(nc) = w.scratch_rhs;
   w.ext_rate.head(nc) = w.rate.head(nc);
@@ -356,12 +363,14 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
   auto jcc = w.jacobian.topLeftCorner(nc, nc);
   jcc = g_minus_k.topLeftCorner(nc, nc);
   w.lu.solve_columns_in_place(jcc);
-  w.scratch_time_rhs.noalias() = w.flow_time_rate.head(nc) + g_minus_k.block(0, nc, nc, nf) * vdot_f;
+  w.scratch_time_rhs = w.flow_time_rate.head(nc);
+  if (sources_move) w.scratch_time_rhs.noalias() += g_minus_k.block(0, nc, nc, nf) * vdot_f;
   w.lu.solve_in_place(w.scratch_time_rhs);
   w.time_rate.head(nc) = w.scratch_time_rhs;
   for (int c = 0; c < nch; ++c) {
     w.jacobian.row(nc + c).head(nc) = w.power_slope.row(c).head(nc);
-    w.time_rate[nc + c] = w.power_time_rate[c] + w.power_slope.row(c).segment(nc, nf).dot(vdot_f);
+    w.time_rate[nc + c] = w.power_time_rate[c];
+    if (sources_move) w.time_rate[nc + c] += w.power_slope.row(c).segment(nc, nf).dot(vdot_f);
   }
   for (int j = 0; j < nf; ++j) {
     const int p = nc + j;
@@ -371,8 +380,9 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
     di_dx.noalias() = w.mass.row(p).head(nc) * jcc;
     di_dx -= g_minus_k.row(p).head(nc);
     w.jacobian.row(nc + nch + j).head(nc) = v * di_dx;
-    const double di_dt = w.mass.row(p).head(nc).dot(w.time_rate.head(nc)) +
-                         (-g_minus_k.row(p).segment(nc, nf)).dot(vdot_f) - w.flow_time_rate[p];
+    double di_dt = w.mass.row(p).head(nc).dot(w.time_rate.head(nc));
+    if (sources_move) di_dt += (-g_minus_k.row(p).segment(nc, nf)).dot(vdot_f);
+    di_dt -= w.flow_time_rate[p];
     w.time_rate[nc + nch + j] = vdot_f[j] * w.source_current_A[j] + v * di_dt;
   }
 }

@@ -1,6 +1,7 @@
 #include "coilkick/engine/small_lu.hpp"
 
 #include <cmath>
+#include <cstddef>
 #include <utility>
 
 namespace coilkick::engine {
@@ -9,6 +10,15 @@ void SmallLu::compute(const ConstMatrixRef& a) {
   n_ = static_cast<int>(a.rows());
   lu_ = a;
   pivot_.resize(static_cast<std::size_t>(n_));
+  diagonal_ = true;
+  for (int j = 0; j < n_ && diagonal_; ++j) {
+    for (int i = 0; i < n_; ++i) {
+      if (i != j && lu_(i, j) != 0.0) {
+        diagonal_ = false;
+        break;
+      }
+    }
+  }
   for (int k = 0; k < n_; ++k) {
     int p = k;
     double best = std::abs(lu_(k, k));
@@ -30,25 +40,39 @@ void SmallLu::compute(const ConstMatrixRef& a) {
   }
 }
 
-void SmallLu::solve_in_place(Eigen::Ref<Eigen::VectorXd> b) const {
-  for (int k = 0; k < n_; ++k) {
-    const int p = pivot_[static_cast<std::size_t>(k)];
+void SmallLu::solve_in_place(Eigen::Ref<Eigen::VectorXd> b) const { solve_in_place(b.data()); }
+
+// The same operations in the same order as through Eigen's accessors, on raw pointers: at these
+// sizes the accessors' index arithmetic was most of the cost.
+// Not vectorised: the loops run a handful of times, where the vector code's set-up costs more.
+__attribute__((optimize("no-tree-vectorize"))) void SmallLu::solve_in_place(double* b) const {
+  const int n = n_;
+  const double* lu = lu_.data();
+  if (diagonal_) {  // what the elimination below reduces to, exactly: no pivoting, no eliminations
+    for (int k = 0; k < n; ++k) b[k] /= lu[static_cast<std::ptrdiff_t>(k) * (n + 1)];
+    return;
+  }
+  const int* pivot = pivot_.data();
+  for (int k = 0; k < n; ++k) {
+    const int p = pivot[k];
     if (p != k) std::swap(b[k], b[p]);
   }
-  for (int k = 0; k < n_; ++k) {
+  for (int k = 0; k < n; ++k) {
     const double bk = b[k];
     if (bk == 0.0) continue;
-    for (int i = k + 1; i < n_; ++i) b[i] -= lu_(i, k) * bk;
+    const double* col = lu + static_cast<std::ptrdiff_t>(k) * n;
+    for (int i = k + 1; i < n; ++i) b[i] -= col[i] * bk;
   }
-  for (int k = n_ - 1; k >= 0; --k) {
-    b[k] /= lu_(k, k);
+  for (int k = n - 1; k >= 0; --k) {
+    const double* col = lu + static_cast<std::ptrdiff_t>(k) * n;
+    b[k] /= col[k];
     const double bk = b[k];
-    for (int i = 0; i < k; ++i) b[i] -= lu_(i, k) * bk;
+    for (int i = 0; i < k; ++i) b[i] -= col[i] * bk;
   }
 }
 
 void SmallLu::solve_columns_in_place(MatrixRef b) const {
-  for (Eigen::Index c = 0; c < b.cols(); ++c) solve_in_place(b.col(c));
+  for (Eigen::Index c = 0; c < b.cols(); ++c) solve_in_place(b.col(c).data());
 }
 
 }  // namespace coilkick::engine

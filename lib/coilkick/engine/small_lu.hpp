@@ -18,6 +18,7 @@ class SmallLu {
   void compute(const ConstMatrixRef& a);
   // b ← A⁻¹·b for a vector or for each column of a matrix.
   void solve_in_place(Eigen::Ref<Eigen::VectorXd> b) const;
+  void solve_in_place(double* b) const;  // b of size() contiguous values
   void solve_columns_in_place(MatrixRef b) const;
   int size() const { return n_; }
 
@@ -25,6 +26,7 @@ class SmallLu {
   Eigen::MatrixXd lu_;
   std::vector<int> pivot_;
   int n_ = 0;
+  bool diagonal_ = false;  // no off-diagonal entry (M of grounded capacitances and coils): solves divide
 };
 
 }  // namespace coilkick::engine
