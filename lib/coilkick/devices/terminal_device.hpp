@@ -118,6 +118,7 @@ class TerminalDevice : public engine::Element {
     }
   }
 
+  bool has_mass_slope() const override { return model().has_charges(); }
   void load_mass_slope(const engine::ElementContext& ctx, engine::Stamper& out) const override {
     if (!model().has_charges()) return;
     using D1 = Dual<1>;

@@ -137,6 +137,7 @@ Circuit::Circuit(const Network& network)
     const int ni = static_cast<int>(e->internal_states().size());
     for (int i = 0; i < ni; ++i) map.push_back(first_internal[k] + i);
     maps_.push_back(std::move(map));
+    if (e->has_mass_slope()) mass_slope_elements_.push_back(k);
   }
   // Power channels: element channels, then one per voltage source.
   for (const auto& e : elements_) {
@@ -351,8 +352,10 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
   for (int j = 0; j < nf; ++j) w.rate[nc + nch + j] = w.ext_value[nc + j] * w.source_current_A[j];
   if (!with_jacobian) return;
 
-  w.mass_slope.setZero();
-  for (std::size_t k = 0; k < elements_.size(); ++k) {
+  // Only the elements with a state-dependent ∂q/∂x stamp here; without any, mass_slope keeps the
+  // zeros it was made with.
+  if (!mass_slope_elements_.empty()) w.mass_slope.setZero();
+  for (const std::size_t k : mass_slope_elements_) {
     ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data(), past_of(k, w, slope_time_s < t_s));
     GlobalStamper st(w, maps_[k].data(), channel_offset_[k]);
     elements_[k]->load_mass_slope(ctx, st);

@@ -162,6 +162,7 @@ class Circuit {
   std::vector<std::string> node_names_;   // free nodes, then fixed nodes
   std::vector<std::vector<int>> maps_;    // per element: local index -> ext index (-1 ground)
   std::vector<int> channel_offset_;       // per element: first global channel
+  std::vector<std::size_t> mass_slope_elements_;  // the elements whose ∂q/∂x depends on the state
   std::vector<StateInfo> states_;
   std::vector<PowerChannelInfo> channels_;
   int n_nodes_ = 0, n_circuit_ = 0, n_fixed_ = 0, n_element_channels_ = 0;

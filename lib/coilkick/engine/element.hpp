@@ -101,8 +101,10 @@ class Element {
   virtual std::vector<PowerChannelSpec> power_channels() const { return {}; }
   // Adds f, ∂f/∂x, ∂f/∂t, ∂q/∂x and the channel powers at the context's instant.
   virtual void load(const ElementContext& ctx, Stamper& out) const = 0;
-  // Only elements with state-dependent ∂q/∂x override this (see Stamper::add_mass_slope).
+  // Only elements with state-dependent ∂q/∂x override this (see Stamper::add_mass_slope), and
+  // they say so in has_mass_slope: the circuit calls load_mass_slope on those elements alone.
   virtual void load_mass_slope(const ElementContext& /*ctx*/, Stamper& /*out*/) const {}
+  virtual bool has_mass_slope() const { return false; }
   // Energy held in the element's fields (J): ½·C·v², ½·L·i², ½·m·v² ...
   virtual double stored_energy_J(const ElementContext& /*ctx*/) const { return 0.0; }
   // First instant strictly after t_s where the element's explicit time dependence has a corner.

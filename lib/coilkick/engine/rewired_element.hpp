@@ -16,6 +16,7 @@ class RewiredElement final : public Element {
   std::vector<PowerChannelSpec> power_channels() const override { return inner_->power_channels(); }
   void load(const ElementContext& ctx, Stamper& out) const override { inner_->load(ctx, out); }
   void load_mass_slope(const ElementContext& ctx, Stamper& out) const override { inner_->load_mass_slope(ctx, out); }
+  bool has_mass_slope() const override { return inner_->has_mass_slope(); }
   double stored_energy_J(const ElementContext& ctx) const override { return inner_->stored_energy_J(ctx); }
   double next_corner_after_s(double t_s) const override { return inner_->next_corner_after_s(t_s); }
 

@@ -136,13 +136,13 @@ bool Waveform::local_time(double t_s, double& local_s) const {
   return true;
 }
 
-double Waveform::value(double t_s) const {
+double Waveform::value_at(double t_s) const {
   double local = 0.0;
   if (!local_time(t_s, local)) return points_.front().second;  // periodic: low outside periods
   return pattern_value(points_, local);
 }
 
-double Waveform::slope(double t_s) const {
+double Waveform::slope_at(double t_s) const {
   double local = 0.0;
   if (!local_time(t_s, local)) return 0.0;
   return pattern_slope(points_, local);

@@ -65,6 +65,7 @@ class ArmatureCoil final : public engine::Element {
   std::vector<engine::PowerChannelSpec> power_channels() const override;
   void load(const engine::ElementContext& ctx, engine::Stamper& out) const override;
   void load_mass_slope(const engine::ElementContext& ctx, engine::Stamper& out) const override;
+  bool has_mass_slope() const override { return !p_.hold_closed; }
   double stored_energy_J(const engine::ElementContext& ctx) const override;
   const ArmatureCoilParameters& parameters() const { return p_; }
 
