@@ -362,7 +362,8 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
   }
   Eigen::MatrixXd& g_minus_k = w.scratch_slope;
   g_minus_k = w.flow_slope - w.mass_slope;
-  w.jacobian.setZero();
+  // Every row's first nc columns are written below, at every call; the energy columns stay the
+  // zeros make_workspace put there (no rate depends on an energy).
   auto jcc = w.jacobian.topLeftCorner(nc, nc);
   jcc = g_minus_k.topLeftCorner(nc, nc);
   w.lu.solve_columns_in_place(jcc);
@@ -379,11 +380,18 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
     const int p = nc + j;
     const double v = w.ext_value[p];
     // i_s = M_p·ẋ − f_p;  ∂i_s/∂x = M_pc·J_cc + K_pc − G_pc
+    // A source node with no capacitance to the free nodes (the usual case) has M_pc = 0: its
+    // products are skipped (they would add exact zeros).
+    const bool coupled = !w.mass.row(p).head(nc).isZero(0.0);
     Eigen::RowVectorXd& di_dx = w.scratch_row;
-    di_dx.noalias() = w.mass.row(p).head(nc) * jcc;
-    di_dx -= g_minus_k.row(p).head(nc);
+    if (coupled) {
+      di_dx.noalias() = w.mass.row(p).head(nc) * jcc;
+      di_dx -= g_minus_k.row(p).head(nc);
+    } else {
+      di_dx = -g_minus_k.row(p).head(nc);
+    }
     w.jacobian.row(nc + nch + j).head(nc) = v * di_dx;
-    double di_dt = w.mass.row(p).head(nc).dot(w.time_rate.head(nc));
+    double di_dt = coupled ? w.mass.row(p).head(nc).dot(w.time_rate.head(nc)) : 0.0;
     if (sources_move) di_dt += (-g_minus_k.row(p).segment(nc, nf)).dot(vdot_f);
     di_dt -= w.flow_time_rate[p];
     w.time_rate[nc + nch + j] = vdot_f[j] * w.source_current_A[j] + v * di_dt;
