@@ -43,8 +43,11 @@ GoldenBracket golden_section(double a, double b, double tol, S&& s, double enoug
 
 EventLocator::EventLocator(const std::vector<EventSpec>& specs, int state_size,
                            double time_tolerance_s)
-    : specs_(specs), scratch_x_(static_cast<std::size_t>(state_size)),
-      scratch_rate_(static_cast<std::size_t>(state_size)), tol_(time_tolerance_s) {
+    : specs_(specs), tol_(time_tolerance_s) {
+  for (auto& s : samples_) {
+    s.x.resize(static_cast<std::size_t>(state_size));
+    s.rate.resize(static_cast<std::size_t>(state_size));
+  }
   for (const auto& s : specs_) outcomes_.push_back({s.name, std::nullopt, std::nan("")});
   end_time_.assign(specs_.size(), std::nan(""));
   end_value_.assign(specs_.size(), std::nan(""));
@@ -61,10 +64,26 @@ double EventLocator::probe_at_end(std::size_t k, double t1, const double* x1, co
   return end_value_[k];
 }
 
+void EventLocator::forget_samples() {
+  for (auto& s : samples_) s.t = std::numeric_limits<double>::quiet_NaN();
+}
+
 double EventLocator::probe_at(const EventSpec& e, double t, const Interpolant& f) {
-  double* rates = e.probe.reads_rates() ? scratch_rate_.data() : nullptr;
-  f(t, scratch_x_.data(), rates);
-  return e.probe(t, scratch_x_.data(), rates);
+  const bool wants_rates = e.probe.reads_rates();
+  Sample* held = nullptr;
+  for (auto& s : samples_) {
+    if (s.t == t) held = &s;
+  }
+  if (!held || (wants_rates && !held->rates_valid)) {
+    if (!held) {
+      held = &samples_[next_sample_];
+      next_sample_ = (next_sample_ + 1) % kSamplesKept;
+    }
+    f(t, held->x.data(), wants_rates ? held->rate.data() : nullptr);
+    held->t = t;
+    held->rates_valid = wants_rates;
+  }
+  return e.probe(t, held->x.data(), wants_rates ? held->rate.data() : nullptr);
 }
 
 void EventLocator::start(double t_s, const double* x, const double* rates) {
@@ -94,6 +113,7 @@ double EventLocator::locate_crossing(const EventSpec& e, double a, double ga, do
 }
 
 void EventLocator::refine_extremum(std::size_t k, double a, double b, const Interpolant& f) {
+  forget_samples();  // another step's interpolant
   const auto& e = specs_[k];
   const double sign = e.kind == EventSpec::Kind::maximum ? 1.0 : -1.0;
   const GoldenBracket g = golden_section(a, b, tol_, [&](double t) { return sign * probe_at(e, t, f); });
@@ -106,6 +126,7 @@ void EventLocator::refine_extremum(std::size_t k, double a, double b, const Inte
 double EventLocator::on_step(double t0, const double* x0, const double* r0, double t1,
                              const double* x1, const double* r1, const Interpolant& f,
                              const KeepInterpolant& keep) {
+  forget_samples();  // a new step's interpolant
   double stop_at = std::numeric_limits<double>::infinity();
   for (std::size_t k = 0; k < specs_.size(); ++k) {
     const auto& e = specs_[k];

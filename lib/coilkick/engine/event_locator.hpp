@@ -10,6 +10,7 @@
 // leaves within one step is not seen (steps are short against the features of interest). Every
 // probe value at a step's end is reused as the next step's start.
 #include <functional>
+#include <limits>
 #include <vector>
 
 #include "coilkick/engine/probe.hpp"
@@ -40,7 +41,18 @@ class EventLocator {
  private:
   const std::vector<EventSpec>& specs_;
   std::vector<EventOutcome> outcomes_;
-  std::vector<double> scratch_x_, scratch_rate_;
+  // The last few instants interpolated in the step at hand (the probes of one step sample the
+  // same instants, and interpolating the whole state is most of a voltage probe's cost): each
+  // with its states and, when rates_valid, its rates. Emptied for a new step or interpolant.
+  struct Sample {
+    double t = std::numeric_limits<double>::quiet_NaN();
+    bool rates_valid = false;
+    std::vector<double> x, rate;
+  };
+  static constexpr int kSamplesKept = 4;  // the ends and three interior instants of one step
+  Sample samples_[kSamplesKept];
+  int next_sample_ = 0;
+  void forget_samples();
   std::vector<double> end_time_, end_value_;  // each probe at the last step's end
   struct Kept {                                // per extremum: the step to refine in finish()
     double a = 0.0, b = 0.0;
