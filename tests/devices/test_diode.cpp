@@ -180,3 +180,85 @@ TEST_CASE("stored energy of a nonlinear junction charge equals the integral of v
     CHECK(c.stored_energy_J(c.element_index("d"), 0.0, x.data(), w) == rel(integral).epsilon(1e-6));
   }
 }
+
+TEST_CASE("a diode's junction for the operating-point Newton: dV/d(ln I) of the Shockley law with series resistance") {
+  // V = n·V_T·ln(1 + I/I_s) + R_s·I (Shockley 1949, with the series resistance) gives
+  // dV/d(ln I) = n·V_T·I/(I + I_s) + R_s·I, reported as n·V_T + R_s·(I + I_s): the same to I_s/I
+  // (below e^-10 on the exponential part). Checked against I/(dI/dV) from central differences
+  // of the model's own current (h = 1 µV against n·V_T = 46 mV: truncation ~(h/n·V_T)² = 5e-10,
+  // rounding ~1e-16·n·V_T/h = 5e-12), to 1e-7 plus that I_s/I.
+  const DiodeParameters p = test_rectifier();
+  const PhysicalDiode d("d", "a", "k", p);
+  const double nvt = p.emission_coefficient * thermal_voltage_V(25.0);
+  auto report = [&](double v) {
+    const double values[2] = {v, 0.0};
+    const int map[2] = {0, 1};
+    std::vector<coilkick::engine::JunctionState> out;
+    d.junction_states(coilkick::engine::ElementContext(0.0, values, values, map), out);
+    REQUIRE(out.size() == 1);
+    CHECK(out[0].anode == 0);
+    CHECK(out[0].cathode == 1);
+    return out[0];
+  };
+  for (double v : {0.7, 0.9, 1.1}) {
+    CAPTURE(v);
+    const auto j = report(v);
+    CHECK(j.exponential);
+    const double h = 1e-6, i = current(d, v);
+    const double di_dv = (current(d, v + h) - current(d, v - h)) / (2.0 * h);
+    CHECK(j.log_slope_V == rel(i / di_dv).epsilon(1e-7 + p.saturation_current_A / i));
+    CHECK(j.log_slope_V == rel(nvt + p.series_resistance_ohm * (i + p.saturation_current_A)).epsilon(1e-7));
+  }
+  // Near the saturation current (V_j < 10·n·V_T) and on the limited exponential's straight
+  // continuation (beyond the 1 kA critical current: V > 40 V with R_s = 40 mΩ) it is not on the
+  // exponential; nor in reverse.
+  CHECK_FALSE(report(0.3).exponential);
+  CHECK_FALSE(report(100.0).exponential);
+  CHECK_FALSE(report(-5.0).exponential);
+}
+
+TEST_CASE("a node held by leakage between a reverse diode and a forward junction: the DC point from a cold start") {
+  // 12 V supply; the switch node held near 0.29 V by 400 Ω from the supply and 10 Ω to ground;
+  // a diode from the switch node to `mid` (reverse biased) and a junction from the supply to
+  // `mid` (forward): `mid` sits where the junction's forward current equals the diode's reverse
+  // leakage, a fraction of a volt below the supply. From the cold guess (every node at 0 V) the
+  // junction starts 12 V forward, and plain Newton walks it down one n·V_T per iteration
+  // (measured: more than 30 iterations); with the junctions' extension of the step
+  // (engine/operating_point.cpp) it arrives within 10, so Newton alone (no continuation after a
+  // failure) is given 20. The point itself against the balance solved here by fixed-point
+  // iteration of the Shockley laws (Shockley 1949) with each diode's minimum conductance.
+  using namespace coilkick::engine;
+  const DiodeParameters leak = test_rectifier();  // 5 nA, n = 1.8
+  DiodeParameters forward;
+  forward.saturation_current_A = 1e-14;
+  forward.emission_coefficient = 1.3;
+  const double vs = 12.0, r_top = 400.0, r_bottom = 10.0;
+  Network net;
+  net.add_voltage_source("supply", "supply", Waveform::constant(vs));
+  net.add_resistor("top", "supply", "sw", r_top);
+  net.add_resistor("bottom", "sw", Network::ground, r_bottom);
+  net.add(make_diode("blocking", "sw", "mid", leak, ModelLevel::physical));
+  net.add(make_diode("held", "supply", "mid", forward, ModelLevel::physical));
+  const Circuit c(net);
+  OperatingPointOptions o;
+  o.maximum_iterations = 20;
+  o.minimum_conductance_S = 0.0;  // every node here has a DC path; the balance below has none
+  const auto op = solve_by_newton(c, guess_state(c, 0.0), o);
+  const double vt = thermal_voltage_V(25.0), g = leak.minimum_conductance_S;
+  // The blocking diode's reverse current at these volts (no series-resistance drop at nanoamperes).
+  double sw = vs * r_bottom / (r_top + r_bottom), mid = vs - 0.3;
+  for (int k = 0; k < 200; ++k) {
+    const double reverse = leak.saturation_current_A * (1.0 - std::exp(-(mid - sw) / (leak.emission_coefficient * vt))) + g * (mid - sw);
+    // The held junction carries it (less its own minimum conductance's share).
+    double v_held = vs - mid;
+    v_held = forward.emission_coefficient * vt * std::log1p((reverse - g * v_held) / forward.saturation_current_A);
+    mid = vs - v_held;
+    sw = (vs / r_top + reverse) / (1.0 / r_top + 1.0 / r_bottom);
+  }
+  // 1e-8 V: ten times the Newton step at which the solver stops (1e-9 V); its convergence is
+  // quadratic there, so the point is far closer than that step.
+  CHECK(op.values[c.state_index("node:mid")] == rel(mid).epsilon(1e-8 / mid));
+  CHECK(op.values[c.state_index("node:sw")] == rel(sw).epsilon(1e-8 / sw));
+  CHECK(vs - mid > 0.2);  // a fraction of a volt: the junction carries nanoamperes
+  CHECK(vs - mid < 0.5);
+}

@@ -89,6 +89,14 @@ class PhysicalDiode final : public TerminalDevice<PhysicalDiode, 2> {
   const DiodeParameters& parameters() const { return p_; }
   bool has_charges() const { return p_.zero_bias_capacitance_F > 0.0 || p_.transit_time_s > 0.0; }
 
+  // The forward junction, anode → cathode. (The breakdown knee is not listed: its scale
+  // current is the test current, so "far above it" would be hundreds of amperes.)
+  bool has_junctions() const override { return true; }
+  void junction_states(const engine::ElementContext& ctx, std::vector<engine::JunctionState>& out) const override {
+    const BranchJunction f = branch_junction(ctx.value(0) - ctx.value(1), c_.forward);
+    out.push_back({0, 1, f.log_slope_V, f.exponential});
+  }
+
   template <class S>
   void currents(const S* v, S* i) const { currents_and_charges(v, i, static_cast<S*>(nullptr)); }
   template <class S>

@@ -26,6 +26,15 @@ BreakdownKnee make_breakdown_knee(double breakdown_voltage_V, double test_curren
   return k;
 }
 
+BranchJunction branch_junction(double u, const ExpBranch& b) {
+  const double uj = b.series_resistance_ohm == 0.0 ? u : branch_junction_voltage_V(u, b);
+  const double x = (uj - b.offset_V) / b.emission_voltage_V;
+  BranchJunction j;
+  j.exponential = x > kExponentialFrom && x <= b.x_crit;
+  j.log_slope_V = b.emission_voltage_V + (j.exponential ? b.series_resistance_ohm * b.scale_current_A * std::exp(x) : 0.0);
+  return j;
+}
+
 double branch_junction_voltage_V(double u, const ExpBranch& b) {
   // g(u_j) = u_j + R·I(u_j) − u is increasing; bracket the root and run Newton with bisection
   // as a safeguard.

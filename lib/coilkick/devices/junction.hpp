@@ -137,6 +137,17 @@ S branch_junction_current(const S& uj, const ExpBranch& b) {
 // Junction voltage u_j for terminal voltage u (double precision, safeguarded Newton).
 double branch_junction_voltage_V(double u, const ExpBranch& b);
 
+// The branch at terminal voltage u as a junction for the operating-point Newton
+// (engine::JunctionState, terminals filled in by the caller): on its exponential part when the
+// exponent lies between kExponentialFrom (the current e^10 times the scale current) and the
+// limit x_crit; dv/d(ln I) = n·V_T + R·I_s·e^x there.
+constexpr double kExponentialFrom = 10.0;
+struct BranchJunction {
+  double log_slope_V = 0.0;
+  bool exponential = false;
+};
+BranchJunction branch_junction(double u, const ExpBranch& b);
+
 // Branch current I(u) through the series resistance, with exact derivatives in S.
 template <class S>
 S branch_current(const S& u, const ExpBranch& b, S* junction_voltage = nullptr) {

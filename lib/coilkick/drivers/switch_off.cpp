@@ -26,7 +26,7 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   // Every channel reads the board's on-state and off-state (one DC point each).
   std::vector<ChannelRun> channels;
   channels.push_back({channel_driver_spec(spec, 0), &b, solve_on_state(spec, b, circuit, starts ? &starts->on : nullptr), {}});
-  const engine::CircuitState off_point = solve_off_point(spec, b, circuit, starts ? &starts->off : nullptr);
+  const engine::CircuitState off_point = solve_off_point(spec, b, circuit, starts ? &starts->off : &channels.front().on.state);
   for (std::size_t k = 0; k < b.channels.size(); ++k) {
     const DriverSpec one = channel_driver_spec(spec, k + 1);
     channels.push_back({one, &b.channels[k], read_on_state(one, b.channels[k], circuit, channels.front().on.state), {}});

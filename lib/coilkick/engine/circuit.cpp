@@ -138,6 +138,7 @@ Circuit::Circuit(const Network& network)
     for (int i = 0; i < ni; ++i) map.push_back(first_internal[k] + i);
     maps_.push_back(std::move(map));
     if (e->has_mass_slope()) mass_slope_elements_.push_back(k);
+    if (e->has_junctions()) junction_elements_.push_back(k);
   }
   // Power channels: element channels, then one per voltage source.
   for (const auto& e : elements_) {
@@ -395,6 +396,20 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
     if (sources_move) di_dt += (-g_minus_k.row(p).segment(nc, nf)).dot(vdot_f);
     di_dt -= w.flow_time_rate[p];
     w.time_rate[nc + nch + j] = vdot_f[j] * w.source_current_A[j] + v * di_dt;
+  }
+}
+
+void Circuit::junctions_at(double t_s, const double* x, Workspace& w, std::vector<CircuitJunction>& out) const {
+  out.clear();
+  for (int i = 0; i < n_circuit_; ++i) w.ext_value[i] = x[i];
+  for (int j = 0; j < n_fixed_; ++j) w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
+  for (const std::size_t k : junction_elements_) {
+    const auto& map = maps_[k];
+    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), map.data());
+    w.junction_scratch.clear();
+    elements_[k]->junction_states(ctx, w.junction_scratch);
+    auto state = [&](int local) { return map[static_cast<std::size_t>(local)] < n_circuit_ ? map[static_cast<std::size_t>(local)] : -1; };
+    for (const auto& j : w.junction_scratch) out.push_back({state(j.anode), state(j.cathode), j.log_slope_V, j.exponential});
   }
 }
 

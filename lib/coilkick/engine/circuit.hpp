@@ -40,6 +40,14 @@ struct PowerChannelInfo {
   PowerChannelSpec::Kind kind = PowerChannelSpec::Kind::dissipated;
 };
 
+// A junction (JunctionState) in the circuit's states: anode and cathode are state indices, or
+// -1 for ground or a node a source fixes (it does not move in a Newton step).
+struct CircuitJunction {
+  int anode = -1, cathode = -1;
+  double log_slope_V = 0.0;
+  bool exponential = false;
+};
+
 // Scratch storage for evaluations. One per thread; sized by Circuit::make_workspace().
 struct Workspace {
   Eigen::VectorXd ext_value, ext_rate;  // circuit states then fixed-node voltages
@@ -61,6 +69,7 @@ struct Workspace {
   Eigen::VectorXd local_flow;  // one element's own rows (terminal_current_A)
   Eigen::MatrixXd local_mass;
   std::vector<double> history_values, history_rates_before, history_rates_after;  // one point of the delay history
+  std::vector<JunctionState> junction_scratch;
   Eigen::VectorXd history_x, history_rate;  // a point of a step's dense output
   // The operating-point solve: elements that read their past see none (their DC model).
   bool operating_point = false;
@@ -151,6 +160,9 @@ class Circuit {
     double absolute = 0.0, relative = 0.0;
   };
   void record_history(const DenseStep& step, KinkTolerance kink_tolerance, Workspace& w) const;
+  // The junctions of every element that has them, at (t, x) (a DC point: no history), into `out`.
+  void junctions_at(double t_s, const double* x, Workspace& w, std::vector<CircuitJunction>& out) const;
+  bool has_junctions() const { return !junction_elements_.empty(); }
   // Rows of the circuit part that are node KCL rows (true) or element states (false).
   bool is_node_row(int state) const { return state < n_nodes_; }
 
@@ -163,6 +175,7 @@ class Circuit {
   std::vector<std::vector<int>> maps_;    // per element: local index -> ext index (-1 ground)
   std::vector<int> channel_offset_;       // per element: first global channel
   std::vector<std::size_t> mass_slope_elements_;  // the elements whose ∂q/∂x depends on the state
+  std::vector<std::size_t> junction_elements_;    // the elements with junctions (has_junctions)
   std::vector<StateInfo> states_;
   std::vector<PowerChannelInfo> channels_;
   int n_nodes_ = 0, n_circuit_ = 0, n_fixed_ = 0, n_element_channels_ = 0;

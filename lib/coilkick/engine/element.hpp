@@ -43,6 +43,18 @@ struct PowerChannelSpec {
   Kind kind = Kind::dissipated;
 };
 
+// A junction of an element at one point, for the operating-point Newton (operating_point.cpp):
+// its current grows as exp(v/log_slope_V) with the voltage v from terminal `anode` to terminal
+// `cathode` (local indices; a reverse breakdown lists its terminals swapped). `exponential`:
+// the point lies on the exponential part (far above the saturation current, below the limited
+// exponential's straight continuation), where one Newton step moves v by at most ~log_slope_V
+// towards a current it should fall to.
+struct JunctionState {
+  int anode = 0, cathode = 1;
+  double log_slope_V = 0.0;  // dv/d(ln I) at the point: n·V_T, plus the series resistance's I·R
+  bool exponential = false;
+};
+
 // Read-only view of the unknowns one element sees at one instant.
 class ElementContext {
  public:
@@ -105,6 +117,10 @@ class Element {
   // they say so in has_mass_slope: the circuit calls load_mass_slope on those elements alone.
   virtual void load_mass_slope(const ElementContext& /*ctx*/, Stamper& /*out*/) const {}
   virtual bool has_mass_slope() const { return false; }
+  // The element's junctions at the context's point (appended to `out`), for elements whose
+  // has_junctions is true; see JunctionState.
+  virtual bool has_junctions() const { return false; }
+  virtual void junction_states(const ElementContext& /*ctx*/, std::vector<JunctionState>& /*out*/) const {}
   // Energy held in the element's fields (J): ½·C·v², ½·L·i², ½·m·v² ...
   virtual double stored_energy_J(const ElementContext& /*ctx*/) const { return 0.0; }
   // First instant strictly after t_s where the element's explicit time dependence has a corner.

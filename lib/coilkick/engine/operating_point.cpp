@@ -84,6 +84,45 @@ Eigen::VectorXd newton_step(const Eigen::MatrixXd& g, const Eigen::VectorXd& r, 
   return full.solve(-r);
 }
 
+// How far along the Newton step dx the junctions ask to go: a forward junction high on its
+// exponential (a node between a reverse diode and a Zener from a cold guess, the Zener's forward
+// voltage a volt too high) is walked down by Newton one log-slope s per iteration (the step
+// predicts the current I·(1 + Δv/s) and lands where the exponential has I/e), while the voltage
+// that carries the predicted current lies s·ln(1 + Δv/s) away — the junction-voltage limiting
+// of the circuit-simulation literature (from memory), here taken downwards. The factor is the
+// smallest such ratio over the junctions the step moves down by at least s/2; 1 when a
+// junction on its exponential would rise (the backtracking then guards it), when none moves down
+// so far, or when any state those junctions do not join still moves by more than its tolerance
+// (`moving`): the extension is for the last stretch, where only such a node is left to settle.
+// At most kLongestExtension. Derivation: docs/derivations.md, "A junction walked down".
+constexpr double kLongestExtension = 64.0;
+double junction_extension(const std::vector<CircuitJunction>& junctions, const Eigen::VectorXd& dx,
+                          std::vector<char>& moving) {
+  double factor = kLongestExtension;
+  bool any = false;
+  for (const auto& j : junctions) {
+    if (!j.exponential) continue;
+    const double dv = (j.anode >= 0 ? dx[j.anode] : 0.0) - (j.cathode >= 0 ? dx[j.cathode] : 0.0);
+    const double s = j.log_slope_V;
+    if (dv > -0.5 * s) {
+      if (dv > 1e-3 * s) return 1.0;
+      continue;
+    }
+    // The current the step predicts, over the present one; at or below zero (the linear model
+    // reverses the junction, or its ratio is below the rounding of 1 + Δv/s) no target voltage.
+    const double predicted = 1.0 + dv / s;
+    if (!(predicted > 0.0)) return 1.0;
+    factor = std::min(factor, s * std::log(predicted) / dv);
+    any = true;
+    if (j.anode >= 0) moving[static_cast<std::size_t>(j.anode)] = 0;
+    if (j.cathode >= 0) moving[static_cast<std::size_t>(j.cathode)] = 0;
+  }
+  for (const char m : moving) {
+    if (m) return 1.0;
+  }
+  return any ? std::max(1.0, factor) : 1.0;
+}
+
 // Newton with backtracking from the guess, row i with the minimum conductance gmin[i] to ground;
 // throws SimulationError if it does not converge.
 CircuitState newton(const Circuit& circuit, const CircuitState& guess, const OperatingPointOptions& options,
@@ -96,6 +135,8 @@ CircuitState newton(const Circuit& circuit, const CircuitState& guess, const Ope
   Eigen::VectorXd x = guess.values;
   x.tail(x.size() - nc).setZero();
   Eigen::VectorXd r, r_try, x_try;
+  std::vector<CircuitJunction> junctions;
+  std::vector<char> moving;
   circuit.assemble(t, t, x.data(), w);
   residual(circuit, w, x.head(nc), gmin, r);
   double norm = 0.0;  // relative to the row scales, set in each iteration
@@ -121,8 +162,18 @@ CircuitState newton(const Circuit& circuit, const CircuitState& guess, const Ope
       out.values.head(nc) += dx;
       return out;
     }
-    // Backtracking: halve the step until the weighted residual decreases.
-    double lambda = 1.0;
+    // The junctions' extension of the step, tried first; then backtracking: halve the step
+    // until the weighted residual decreases.
+    double extension = 1.0;
+    if (circuit.has_junctions()) {
+      circuit.junctions_at(t, x.data(), w, junctions);
+      moving.assign(static_cast<std::size_t>(nc), 0);
+      for (int i = 0; i < nc; ++i) {
+        moving[static_cast<std::size_t>(i)] = std::abs(dx[i]) > state_tolerance(circuit, i, options) + options.relative_tolerance * std::abs(x[i]);
+      }
+      extension = junction_extension(junctions, dx, moving);
+    }
+    double lambda = extension > 1.0 ? extension : 1.0;
     double norm_try = 0.0;
     for (int k = 0; k < 30; ++k) {
       x_try = x;
@@ -130,8 +181,8 @@ CircuitState newton(const Circuit& circuit, const CircuitState& guess, const Ope
       circuit.assemble(t, t, x_try.data(), w);
       residual(circuit, w, x_try.head(nc), gmin, r_try);
       norm_try = relative_norm(r_try, scale);
-      if (std::isfinite(norm_try) && norm_try <= norm * (1.0 - 1e-4 * lambda)) break;
-      lambda *= 0.5;
+      if (std::isfinite(norm_try) && norm_try <= norm * (1.0 - 1e-4 * std::min(lambda, 1.0))) break;
+      lambda = lambda > 1.0 ? 1.0 : 0.5 * lambda;
     }
     x = x_try;
     r = r_try;

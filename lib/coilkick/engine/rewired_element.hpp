@@ -17,6 +17,8 @@ class RewiredElement final : public Element {
   void load(const ElementContext& ctx, Stamper& out) const override { inner_->load(ctx, out); }
   void load_mass_slope(const ElementContext& ctx, Stamper& out) const override { inner_->load_mass_slope(ctx, out); }
   bool has_mass_slope() const override { return inner_->has_mass_slope(); }
+  bool has_junctions() const override { return inner_->has_junctions(); }
+  void junction_states(const ElementContext& ctx, std::vector<JunctionState>& out) const override { inner_->junction_states(ctx, out); }
   double stored_energy_J(const ElementContext& ctx) const override { return inner_->stored_energy_J(ctx); }
   double next_corner_after_s(double t_s) const override { return inner_->next_corner_after_s(t_s); }
 
