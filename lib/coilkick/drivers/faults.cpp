@@ -8,6 +8,7 @@
 #include "coilkick/devices/diode.hpp"
 #include "coilkick/devices/mosfet.hpp"
 #include "coilkick/drivers/driver_network.hpp"
+#include "coilkick/drivers/off_state.hpp"
 #include "coilkick/drivers/switch_off.hpp"
 #include "coilkick/engine/circuit.hpp"
 #include "coilkick/engine/errors.hpp"
@@ -125,7 +126,13 @@ FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::stri
     }
     for (const auto& [n, p] : heat) fc.on_state_heat_W.emplace_back(n, p);
     if (run_switch_off && std::abs(fc.coil_current_on_A) > 1e-6) {
-      auto r = simulate_switch_off(spec, b);
+      // A fault that keeps the coil energised: the DC points just solved start the run's own
+      // (where the circuits have one shape: no cable), so that its off point is known before the
+      // run, which then runs once — not first as if the driver blocked (switch_off.cpp). Where the
+      // driver blocks, the run is the plain one.
+      const bool keeps_current = std::abs(fc.coil_current_off_A) >= kBlockingCurrentFraction * std::abs(fc.coil_current_on_A);
+      const OperatingPoints starts{on, off};
+      auto r = simulate_switch_off(spec, b, keeps_current ? &starts : nullptr);
       fc.switch_off_run = true;
       fc.switch_off = k == 0 ? r.metrics : r.channels[k].metrics;
       fc.checks = k == 0 ? r.checks : r.channels[k].checks;

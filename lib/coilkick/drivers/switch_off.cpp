@@ -26,12 +26,26 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   // Every channel reads the board's on-state and off-state (one DC point each).
   std::vector<ChannelRun> channels;
   channels.push_back({channel_driver_spec(spec, 0), &b, solve_on_state(spec, b, circuit, starts ? &starts->on : nullptr), {}});
-  const engine::CircuitState off_point = solve_off_point(spec, b, circuit, starts ? &starts->off : &channels.front().on.state);
   for (std::size_t k = 0; k < b.channels.size(); ++k) {
     const DriverSpec one = channel_driver_spec(spec, k + 1);
     channels.push_back({one, &b.channels[k], read_on_state(one, b.channels[k], circuit, channels.front().on.state), {}});
   }
-  for (auto& ch : channels) ch.off = read_off_state(ch.spec, *ch.built, b.network, circuit, off_point, ch.on.coil_current_A);
+  auto read_off = [&](const engine::CircuitState& off_point) {
+    bool all = true;
+    for (auto& ch : channels) {
+      ch.off = read_off_state(ch.spec, *ch.built, b.network, circuit, off_point, ch.on.coil_current_A);
+      all = all && ch.off.blocks;
+    }
+    return all;
+  };
+  // The off point: from the given start, or — with a hold, which needs it first, or the armature
+  // model, whose off point has its own start — before the run; otherwise after the run, from its
+  // last point (a few Newton iterations where the cold guess or the on-state take dozens,
+  // walking the drive's junctions off). That run assumes that the driver blocks and does not
+  // grow its horizon; it runs again where the off point says otherwise (a fault), or where the
+  // driver blocks but the decay was not seen yet.
+  const bool off_first = starts != nullptr || spec.has_periodic_drive() || b.armature;
+  if (off_first) read_off(solve_off_point(spec, b, circuit, starts ? &starts->off : &channels.front().on.state));
   const OnState& on = channels.front().on;
   const OffState& off = channels.front().off;
 
@@ -46,7 +60,15 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
     channels.front().on.state = start;
     channels.front().on.coil_current_A = start.values[circuit.state_index("coil.current")];
   }
-  const SwitchOffTransient run = run_switch_off_transient(spec, channels, circuit, start);
+  SwitchOffTransient run = run_switch_off_transient(spec, channels, circuit, start, off_first);
+  if (!off_first) {
+    const engine::TransientResult& r = *run.result;
+    engine::CircuitState last;
+    last.time_s = r.end_time_s();
+    last.values = r.states().row(r.states().rows() - 1).transpose();
+    const bool blocks = read_off(solve_off_point(spec, b, circuit, &last));
+    if (!blocks || !run.decay_observed) run = run_switch_off_transient(spec, channels, circuit, start);
+  }
 
   out.spec = spec;
   out.transient = run.result;

@@ -131,7 +131,7 @@ bool observed(const engine::TransientResult& r, const ChannelRun& ch) {
 }  // namespace
 
 SwitchOffTransient run_switch_off_transient(const DriverSpec& board_spec, const std::vector<ChannelRun>& channels, const Circuit& c,
-                                            const engine::CircuitState& start) {
+                                            const engine::CircuitState& start, bool grow_horizon) {
   const DriverSpec& spec = channels.front().spec;
   const BuiltDriver& b = *channels.front().built;
   const double release_s = b.armature ? relay_datasheet(spec).release_time_s : 0.0;
@@ -160,7 +160,7 @@ SwitchOffTransient run_switch_off_transient(const DriverSpec& board_spec, const 
     out.decay_observed = blocks;
     for (const auto& ch : channels) out.decay_observed = out.decay_observed && observed(*out.result, ch);
     // Only an automatic horizon grows, and only while the coil can still de-energise.
-    if (out.decay_observed || !automatic || !blocks || attempt == kHorizonRetries || span >= kLongestAutomaticSpan_s) {
+    if (out.decay_observed || !automatic || !blocks || !grow_horizon || attempt == kHorizonRetries || span >= kLongestAutomaticSpan_s) {
       return out;
     }
     span = std::min(span * kHorizonGrowth, std::max(span, kLongestAutomaticSpan_s));

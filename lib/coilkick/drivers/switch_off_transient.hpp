@@ -40,9 +40,11 @@ struct ChannelRun {
 // The board's switch-off from `start`: every channel's events (named built->local(...)), the
 // board's (rail, common clamp); the run ends once every channel has decayed. The first channel's
 // analysis settings apply. decay_observed: in every channel. `board_spec` is the board's own
-// (with its channels; one channel: the driver's). Throws engine::SimulationError if the
-// integration fails.
+// (with its channels; one channel: the driver's). An automatic horizon (no analysis stop time)
+// grows while the decay is not seen, unless `grow_horizon` is false (a run before the off point
+// is known). Throws engine::SimulationError if the integration fails.
 SwitchOffTransient run_switch_off_transient(const DriverSpec& board_spec, const std::vector<ChannelRun>& channels,
-                                            const engine::Circuit& c, const engine::CircuitState& start);
+                                            const engine::Circuit& c, const engine::CircuitState& start,
+                                            bool grow_horizon = true);
 
 }  // namespace coilkick::drivers
