@@ -436,15 +436,19 @@ double Circuit::terminal_current_A(int element, int terminal, double t_s, const 
 
 void Circuit::load_element_alone(int element, double t_s, const double* x, const double* rates,
                                  Workspace& w) const {
-  for (int i = 0; i < n_circuit_; ++i) {
-    w.ext_value[i] = x[i];
-    w.ext_rate[i] = rates[i];
-  }
-  for (int j = 0; j < n_fixed_; ++j) {
-    w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
-    w.ext_rate[n_circuit_ + j] = sources_[j].voltage_V.slope(t_s);
-  }
   const auto& map = maps_[static_cast<std::size_t>(element)];
+  // Only the unknowns this element reads (a probe calls this at every sample).
+  for (const int i : map) {
+    if (i < 0) continue;
+    if (i < n_circuit_) {
+      w.ext_value[i] = x[i];
+      w.ext_rate[i] = rates[i];
+    } else {
+      const auto& v = sources_[static_cast<std::size_t>(i - n_circuit_)].voltage_V;
+      w.ext_value[i] = v.value(t_s);
+      w.ext_rate[i] = v.slope(t_s);
+    }
+  }
   LocalStamper st(w.local_flow, w.local_mass, static_cast<int>(map.size()));
   ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), map.data(),
                      past_of(static_cast<std::size_t>(element), w));
