@@ -164,6 +164,9 @@ Circuit::Circuit(const Network& network)
     history_channels += n;
   }
   if (history_channels > 0) history_.p = std::make_shared<DelayHistory>(history_channels);
+  // M moves only with a state-dependent charge (the elements of mass_slope_elements_) or with a
+  // line's form (its quasi-static lag).
+  mass_constant_ = mass_slope_elements_.empty() && !history_;
   check_every_node_has_capacitance();
 }
 
@@ -331,8 +334,8 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
   const int nc = n_circuit_, nf = n_fixed_, nch = n_element_channels_;
   const auto vdot_f = w.ext_rate.segment(nc, nf);
   // M is often the same as at the last evaluation (pwl devices, fixed capacitors and coils):
-  // factor it only when it changed.
-  if (!(w.lu_of.rows() == nc && w.lu_of == w.mass.topLeftCorner(nc, nc))) {
+  // factor it only when it changed — never again once factored where it cannot change.
+  if (!(w.lu_of.rows() == nc && (mass_constant_ || w.lu_of == w.mass.topLeftCorner(nc, nc)))) {
     w.lu_of = w.mass.topLeftCorner(nc, nc);
     w.lu.compute(w.lu_of);
   }
@@ -519,20 +522,20 @@ double Circuit::next_corner_after_s(double t_s) const {
 }
 
 int Circuit::state_index(const std::string& name) const {
-  std::vector<std::string> names;
   for (std::size_t k = 0; k < states_.size(); ++k) {
     if (states_[k].name == name) return static_cast<int>(k);
-    names.push_back(states_[k].name);
   }
+  std::vector<std::string> names;
+  for (const auto& s : states_) names.push_back(s.name);
   throw std::invalid_argument("circuit: no state named '" + name + "'" + did_you_mean(name, names));
 }
 
 int Circuit::element_index(const std::string& name) const {
-  std::vector<std::string> names;
   for (std::size_t k = 0; k < elements_.size(); ++k) {
     if (elements_[k]->name() == name) return static_cast<int>(k);
-    names.push_back(elements_[k]->name());
   }
+  std::vector<std::string> names;
+  for (const auto& e : elements_) names.push_back(e->name());
   throw std::invalid_argument("circuit: no element named '" + name + "'" + did_you_mean(name, names));
 }
 

@@ -176,6 +176,7 @@ class Circuit {
   std::vector<int> channel_offset_;       // per element: first global channel
   std::vector<std::size_t> mass_slope_elements_;  // the elements whose ∂q/∂x depends on the state
   std::vector<std::size_t> junction_elements_;    // the elements with junctions (has_junctions)
+  bool mass_constant_ = false;                    // M the same at every evaluation
   std::vector<StateInfo> states_;
   std::vector<PowerChannelInfo> channels_;
   int n_nodes_ = 0, n_circuit_ = 0, n_fixed_ = 0, n_element_channels_ = 0;
