@@ -34,11 +34,11 @@ const std::vector<std::pair<std::string, ClampKind>>& clamp_kinds() {
 }
 template <class E>
 E parse(const std::vector<std::pair<std::string, E>>& table, const std::string& word, const char* what) {
-  std::vector<std::string> names;
   for (const auto& [n, e] : table) {
     if (n == word) return e;
-    names.push_back(n);
   }
+  std::vector<std::string> names;  // only to say what is close
+  for (const auto& entry : table) names.push_back(entry.first);
   std::string hint = engine::did_you_mean(word, names);
   if (hint.empty()) {  // nothing close: name them all (a handful)
     hint = " (one of:";

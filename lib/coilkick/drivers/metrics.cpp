@@ -25,11 +25,11 @@ bool Metrics::has(const std::string& name) const {
 }
 
 double Metrics::get(const std::string& name) const {
-  std::vector<std::string> names;
   for (const auto& [n, v] : items_) {
     if (n == name) return v;
-    names.push_back(n);
   }
+  std::vector<std::string> names;  // only to say what is close
+  for (const auto& item : items_) names.push_back(item.first);
   throw std::invalid_argument("no metric named '" + name + "'" + engine::did_you_mean(name, names));
 }
 

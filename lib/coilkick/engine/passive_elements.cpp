@@ -23,11 +23,12 @@ void Resistor::load(const ElementContext& ctx, Stamper& out) const {
   const double i = g * v;  // from a to b through the resistor
   out.add_flow(0, -i);
   out.add_flow(1, i);
+  out.add_power(0, v * i);
+  if (!out.wants_slopes()) return;  // a Rosenbrock stage: rates only
   out.add_flow_slope(0, 0, -g);
   out.add_flow_slope(0, 1, g);
   out.add_flow_slope(1, 0, g);
   out.add_flow_slope(1, 1, -g);
-  out.add_power(0, v * i);
   out.add_power_slope(0, 0, 2.0 * g * v);
   out.add_power_slope(0, 1, -2.0 * g * v);
 }

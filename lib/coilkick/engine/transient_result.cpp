@@ -10,11 +10,11 @@
 namespace coilkick::engine {
 
 double EnergyReport::channel_J(const std::string& name) const {
-  std::vector<std::string> names;
   for (const auto& c : channels) {
     if (c.name == name) return c.energy_J;
-    names.push_back(c.name);
   }
+  std::vector<std::string> names;  // only to say what is close
+  for (const auto& c : channels) names.push_back(c.name);
   throw std::invalid_argument("energy report: no channel named '" + name + "'" + did_you_mean(name, names));
 }
 
@@ -25,11 +25,11 @@ TransientResult::TransientResult(Circuit circuit, std::vector<double> times_s, R
       rates_(std::move(rates)), events_(std::move(events)), energy_(std::move(energy)), stats_(stats) {}
 
 const EventOutcome& TransientResult::event(const std::string& name) const {
-  std::vector<std::string> names;
   for (const auto& e : events_) {
     if (e.name == name) return e;
-    names.push_back(e.name);
   }
+  std::vector<std::string> names;  // only to say what is close
+  for (const auto& e : events_) names.push_back(e.name);
   throw std::invalid_argument("transient result: no event named '" + name + "'" + did_you_mean(name, names));
 }
 

@@ -22,22 +22,23 @@ inline void stamp_winding(const ElementContext& ctx, Stamper& out, double r_ohm,
 
   out.add_flow(a, -it);
   out.add_flow(b, it);
+  out.add_flow(k, vl);
+  out.add_power(0, r_ohm * it * it);
+  if (gc > 0.0) out.add_power(1, gc * vl * vl);
+  if (!out.wants_slopes()) return;  // a Rosenbrock stage: rates only
   out.add_flow_slope(a, a, -dit_dv);
   out.add_flow_slope(a, b, dit_dv);
   out.add_flow_slope(a, k, -dit_di);
   out.add_flow_slope(b, a, dit_dv);
   out.add_flow_slope(b, b, -dit_dv);
   out.add_flow_slope(b, k, dit_di);
-  out.add_flow(k, vl);
   out.add_flow_slope(k, a, dvl_dv);
   out.add_flow_slope(k, b, -dvl_dv);
   out.add_flow_slope(k, k, dvl_di);
-  out.add_power(0, r_ohm * it * it);
   out.add_power_slope(0, a, 2.0 * r_ohm * it * dit_dv);
   out.add_power_slope(0, b, -2.0 * r_ohm * it * dit_dv);
   out.add_power_slope(0, k, 2.0 * r_ohm * it * dit_di);
   if (gc > 0.0) {
-    out.add_power(1, gc * vl * vl);
     out.add_power_slope(1, a, 2.0 * gc * vl * dvl_dv);
     out.add_power_slope(1, b, -2.0 * gc * vl * dvl_dv);
     out.add_power_slope(1, k, 2.0 * gc * vl * dvl_di);
