@@ -19,23 +19,43 @@ void SmallLu::compute(const ConstMatrixRef& a) {
       }
     }
   }
-  for (int k = 0; k < n_; ++k) {
+  eliminate();
+}
+
+// The elimination on raw pointers (column-major, leading dimension n), each column updated only
+// in the rows whose multiplier is not zero — the other rows would subtract exact zeros: M and the
+// stage matrices are mostly zeros (a node couples to its few neighbours).
+__attribute__((optimize("no-tree-vectorize"))) void SmallLu::eliminate() {
+  const int n = n_;
+  double* a = lu_.data();
+  rows_.resize(static_cast<std::size_t>(n));
+  int* rows = rows_.data();
+  for (int k = 0; k < n; ++k) {
+    double* col_k = a + static_cast<std::ptrdiff_t>(k) * n;
     int p = k;
-    double best = std::abs(lu_(k, k));
-    for (int i = k + 1; i < n_; ++i) {
-      if (std::abs(lu_(i, k)) > best) {
-        best = std::abs(lu_(i, k));
+    double best = std::abs(col_k[k]);
+    for (int i = k + 1; i < n; ++i) {
+      if (std::abs(col_k[i]) > best) {
+        best = std::abs(col_k[i]);
         p = i;
       }
     }
     pivot_[static_cast<std::size_t>(k)] = p;
-    if (p != k) lu_.row(k).swap(lu_.row(p));
-    const double inv = 1.0 / lu_(k, k);
-    for (int i = k + 1; i < n_; ++i) lu_(i, k) *= inv;
-    for (int j = k + 1; j < n_; ++j) {
-      const double u = lu_(k, j);
+    if (p != k) {
+      for (int c = 0; c < n; ++c) std::swap(a[k + static_cast<std::ptrdiff_t>(c) * n], a[p + static_cast<std::ptrdiff_t>(c) * n]);
+    }
+    const double inv = 1.0 / col_k[k];
+    int m = 0;
+    for (int i = k + 1; i < n; ++i) {
+      col_k[i] *= inv;
+      if (col_k[i] != 0.0) rows[m++] = i;
+    }
+    if (m == 0) continue;
+    for (int j = k + 1; j < n; ++j) {
+      double* col_j = a + static_cast<std::ptrdiff_t>(j) * n;
+      const double u = col_j[k];
       if (u == 0.0) continue;
-      for (int i = k + 1; i < n_; ++i) lu_(i, j) -= lu_(i, k) * u;
+      for (int r = 0; r < m; ++r) col_j[rows[r]] -= col_k[rows[r]] * u;
     }
   }
 }

@@ -26,7 +26,9 @@ class SmallLu {
   Eigen::MatrixXd lu_;
   std::vector<int> pivot_;
   int n_ = 0;
-  bool diagonal_ = false;  // no off-diagonal entry (M of grounded capacitances and coils): solves divide
+  bool diagonal_ = false;
+  std::vector<int> rows_;  // scratch of compute: the rows with a nonzero multiplier
+  void eliminate();  // no off-diagonal entry (M of grounded capacitances and coils): solves divide
 };
 
 }  // namespace coilkick::engine
