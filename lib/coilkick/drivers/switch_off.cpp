@@ -43,7 +43,7 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   // last point (a few Newton iterations where the cold guess or the on-state take dozens,
   // walking the drive's junctions off). That run assumes that the driver blocks and does not
   // grow its horizon; it runs again where the off point says otherwise (a fault), or where the
-  // driver blocks but the decay was not seen yet.
+  // driver blocks but the decay was not seen yet within an automatic horizon.
   const bool off_first = starts != nullptr || spec.has_periodic_drive() || b.armature;
   if (off_first) read_off(solve_off_point(spec, b, circuit, starts ? &starts->off : &channels.front().on.state));
   const OnState& on = channels.front().on;
@@ -67,7 +67,9 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
     last.time_s = r.end_time_s();
     last.values = r.states().row(r.states().rows() - 1).transpose();
     const bool blocks = read_off(solve_off_point(spec, b, circuit, &last));
-    if (!blocks || !run.decay_observed) run = run_switch_off_transient(spec, channels, circuit, start);
+    // (A stop time of the file's own is a horizon that does not grow: nothing to run again for.)
+    const bool automatic_horizon = !(spec.analysis.stop_time_s > 0.0);
+    if (!blocks || (!run.decay_observed && automatic_horizon)) run = run_switch_off_transient(spec, channels, circuit, start);
   }
 
   out.spec = spec;
