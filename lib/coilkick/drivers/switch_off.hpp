@@ -4,7 +4,10 @@
 //  1. on-state: the DC operating point with the drive high (on_state.hpp); with a peak-and-hold
 //     drive, the pull-in and the PWM's periodic steady state (hold.hpp), which the switch-off
 //     then starts from;
-//  2. off-state: the DC point the switch-off heads for, and whether it blocks the supply (off_state.hpp);
+//  2. off-state: the DC point the switch-off heads for, and whether it blocks the supply
+//     (off_state.hpp) — solved after the transient from its last point where nothing needs it
+//     first (switch_off.cpp says when; the transient then assumes it blocks and runs again where
+//     it does not);
 //  3. transient: the drive's falling edge at drive.switch_off_at_s, events, stop rule (switch_off_transient.hpp);
 //  4. metrics and waveforms (switch_off_metrics.hpp);
 //  5. rating checks (switch_off_checks.hpp).
