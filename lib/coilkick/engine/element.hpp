@@ -45,10 +45,9 @@ struct PowerChannelSpec {
 
 // A junction of an element at one point, for the operating-point Newton (operating_point.cpp):
 // its current grows as exp(v/log_slope_V) with the voltage v from terminal `anode` to terminal
-// `cathode` (local indices; a reverse breakdown lists its terminals swapped). `exponential`:
-// the point lies on the exponential part (far above the saturation current, below the limited
-// exponential's straight continuation), where one Newton step moves v by at most ~log_slope_V
-// towards a current it should fall to.
+// `cathode` (local indices). `exponential`: the point lies on the exponential part (far above
+// the saturation current, below the limited exponential's straight continuation), where one
+// Newton step moves v by at most ~log_slope_V towards a current it should fall to.
 struct JunctionState {
   int anode = 0, cathode = 1;
   double log_slope_V = 0.0;  // dv/d(ln I) at the point: n·V_T, plus the series resistance's I·R

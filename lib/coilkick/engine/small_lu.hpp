@@ -26,9 +26,9 @@ class SmallLu {
   Eigen::MatrixXd lu_;
   std::vector<int> pivot_;
   int n_ = 0;
-  bool diagonal_ = false;
+  bool diagonal_ = false;  // no off-diagonal entry (M of grounded capacitances and coils): solves divide
   std::vector<int> rows_;  // scratch of compute: the rows with a nonzero multiplier
-  void eliminate();  // no off-diagonal entry (M of grounded capacitances and coils): solves divide
+  void eliminate();        // the factorisation of lu_ in place (compute)
 };
 
 }  // namespace coilkick::engine

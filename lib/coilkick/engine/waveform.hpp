@@ -31,10 +31,10 @@ class Waveform {
 
   // (A constant waveform answers inline: every evaluation of a circuit reads its sources.) A NaN
   // time (a failed trial step) gives NaN, which the integrator rejects.
-  double value(double t_s) const { return points_.size() == 1 && period_ == 0.0 && t_s == t_s ? points_.front().second : value_at(t_s); }
+  double value(double t_s) const { return constant_at(t_s) ? points_.front().second : value_at(t_s); }
   // Slope of the segment that contains the instant `t_s`; at a corner this is the slope of the
   // segment that starts there (right-continuous).
-  double slope(double t_s) const { return points_.size() == 1 && period_ == 0.0 && t_s == t_s ? 0.0 : slope_at(t_s); }
+  double slope(double t_s) const { return constant_at(t_s) ? 0.0 : slope_at(t_s); }
   // First corner strictly after t_s, if any.
   std::optional<double> next_corner_after(double t_s) const;
   // A short description, e.g. "edge 5 -> 0 at 1e-3 s over 2e-8 s".
@@ -49,6 +49,7 @@ class Waveform {
   int count_ = 0;        // periods, 0 = unlimited
   std::string description_;
 
+  bool constant_at(double t_s) const { return points_.size() == 1 && period_ == 0.0 && t_s == t_s; }  // NaN t: not answered here
   double value_at(double t_s) const;
   double slope_at(double t_s) const;
   // Maps t to the position within the pattern; returns false if t lies outside all periods.
