@@ -89,9 +89,9 @@ BjtDerived derive_bjt(const BjtParameters& p) {
   d.beta_f = p.forward_beta * std::pow(ratio, p.beta_temperature_exponent);
   d.beta_r = p.reverse_beta * std::pow(ratio, p.beta_temperature_exponent);
   d.xcrit = std::log(p.critical_current_A / d.is + 1.0);
-  d.be_depletion = {p.base_emitter_capacitance_F, p.base_emitter_built_in_potential_V,
+  d.be_depletion = DepletionParameters{p.base_emitter_capacitance_F, p.base_emitter_built_in_potential_V,
                     p.base_emitter_grading_coefficient, p.depletion_linearization_fraction};
-  d.bc_depletion = {p.base_collector_capacitance_F, p.base_collector_built_in_potential_V,
+  d.bc_depletion = DepletionParameters{p.base_collector_capacitance_F, p.base_collector_built_in_potential_V,
                     p.base_collector_grading_coefficient, p.depletion_linearization_fraction};
   d.has_breakdown = std::isfinite(p.collector_emitter_breakdown_voltage_V);
   if (d.has_breakdown) {

@@ -85,7 +85,7 @@ void check_bjt_parameters(const std::string& owner, const BjtParameters& p);
 struct BjtDerived {
   double sign;  // +1 NPN, −1 PNP
   double vt, is, beta_f, beta_r, xcrit;
-  DepletionParameters be_depletion, bc_depletion;
+  DepletionCurve be_depletion, bc_depletion;
   bool has_breakdown;
   ExpBranch breakdown;
   double breakdown_knee_V, breakdown_resistance_ohm;

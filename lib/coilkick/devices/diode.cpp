@@ -54,7 +54,7 @@ DiodeCurves derive_diode_curves(const DiodeParameters& p) {
   c.forward.series_resistance_ohm = p.series_resistance_ohm;
   c.forward.minus_one = 1.0;
   c.forward.set_critical_current(p.critical_current_A);
-  c.depletion = {p.zero_bias_capacitance_F, p.built_in_potential_V, p.grading_coefficient,
+  c.depletion = DepletionParameters{p.zero_bias_capacitance_F, p.built_in_potential_V, p.grading_coefficient,
                  p.depletion_linearization_fraction};
   // pwl forward segment: tangent at the reference current.
   const double iref = p.pwl_reference_current_A;

@@ -72,7 +72,7 @@ struct DiodeCurves {
   bool has_breakdown = false;
   ExpBranch breakdown;          // in the reverse voltage u = −v
   double breakdown_voltage_V;   // at the simulated temperature, at the test current
-  DepletionParameters depletion;
+  DepletionCurve depletion;
   // pwl segments
   double knee_voltage_V, on_resistance_ohm, breakdown_knee_V, breakdown_resistance_ohm;
 };

@@ -79,20 +79,34 @@ struct DepletionParameters {
   double linearization_fraction = 0.5;  // f_c: linear above f_c·V_bi (Getreu 1976, ch. 3, from memory)
 };
 
+// The depletion charge's constants, derived once from the parameters: a device keeps its curve,
+// and an evaluation no longer computes the powers that do not depend on the voltage.
+struct DepletionCurve {
+  DepletionCurve() = default;
+  DepletionCurve(const DepletionParameters& p)  // NOLINT(google-explicit-constructor): parameters name their curve
+      : c0(p.zero_bias_capacitance_F),
+        vb(p.built_in_potential_V),
+        m(p.grading_coefficient),
+        vf(p.linearization_fraction * p.built_in_potential_V),
+        scale(c0 * vb / (1.0 - m)),
+        qf(scale * (1.0 - std::pow(1.0 - p.linearization_fraction, 1.0 - m))),
+        k(c0 / std::pow(1.0 - p.linearization_fraction, 1.0 + m)),
+        linear(1.0 - p.linearization_fraction * (1.0 + m)),
+        quadratic(m / (2.0 * vb)),
+        vf_squared(vf * vf) {}
+  double c0 = 0.0, vb = 0.7, m = 0.5, vf = 0.35;
+  double scale = 0.0;                   // C_j0·V_bi/(1 − m)
+  double qf = 0.0, k = 0.0;             // the charge at vf; C_j0/(1 − fc)^(1 + m)
+  double linear = 0.0, quadratic = 0.0, vf_squared = 0.0;  // 1 − fc·(1 + m); m/(2·V_bi); vf²
+};
+
 template <class S>
-S depletion_charge_C(const S& v, const DepletionParameters& p) {
-  const double c0 = p.zero_bias_capacitance_F;
-  if (c0 == 0.0) return S(0.0);
-  const double vb = p.built_in_potential_V, m = p.grading_coefficient, fc = p.linearization_fraction;
-  const double vf = fc * vb;
-  if (value_of(v) < vf) {
-    return c0 * vb / (1.0 - m) * (1.0 - pow(1.0 - v / vb, 1.0 - m));
-  }
-  const double qf = c0 * vb / (1.0 - m) * (1.0 - std::pow(1.0 - fc, 1.0 - m));
-  const double k = c0 / std::pow(1.0 - fc, 1.0 + m);
-  const S dv = v - vf;
+S depletion_charge_C(const S& v, const DepletionCurve& d) {
+  if (d.c0 == 0.0) return S(0.0);
+  if (value_of(v) < d.vf) return d.scale * (1.0 - pow(1.0 - v / d.vb, 1.0 - d.m));
   // C(v) = k·(1 − fc·(1 + m) + m·v/V_bi) integrated from vf.
-  return qf + k * ((1.0 - fc * (1.0 + m)) * dv + m / (2.0 * vb) * (v * v - vf * vf));
+  const S dv = v - d.vf;
+  return d.qf + d.k * (d.linear * dv + d.quadratic * (v * v - d.vf_squared));
 }
 
 struct ExpBranch {
