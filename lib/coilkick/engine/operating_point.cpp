@@ -173,17 +173,23 @@ CircuitState newton(const Circuit& circuit, const CircuitState& guess, const Ope
       }
       extension = junction_extension(junctions, dx, moving);
     }
+    // The first try is usually taken: it assembles the slopes the next iteration needs; a
+    // shorter step's try assembles the residual alone (the same values), and the point taken
+    // gets its slopes afterwards.
     double lambda = extension > 1.0 ? extension : 1.0;
     double norm_try = 0.0;
+    bool with_slopes = true;
     for (int k = 0; k < 30; ++k) {
       x_try = x;
       x_try.head(nc) += lambda * dx;
-      circuit.assemble(t, t, x_try.data(), w);
+      with_slopes = k == 0;
+      circuit.assemble(t, t, x_try.data(), w, with_slopes);
       residual(circuit, w, x_try.head(nc), gmin, r_try);
       norm_try = relative_norm(r_try, scale);
       if (std::isfinite(norm_try) && norm_try <= norm * (1.0 - 1e-4 * std::min(lambda, 1.0))) break;
       lambda = lambda > 1.0 ? 1.0 : 0.5 * lambda;
     }
+    if (!with_slopes) circuit.assemble(t, t, x_try.data(), w);
     x = x_try;
     r = r_try;
     norm = norm_try;
