@@ -65,4 +65,21 @@ inline coilkick::drivers::DriverSpec valve_case() {
   return s;
 }
 
+// The same driver at the scenario's default integration tolerances.
+inline coilkick::drivers::DriverSpec at_default_tolerances(coilkick::drivers::DriverSpec s) {
+  const coilkick::drivers::AnalysisSpec d;
+  s.analysis.relative_tolerance = d.relative_tolerance;
+  s.analysis.voltage_tolerance_V = d.voltage_tolerance_V;
+  s.analysis.current_tolerance_A = d.current_tolerance_A;
+  return s;
+}
+
+// The same driver at tight ones (1 nV, 1 pA and the given relative tolerance): a convergence reference.
+inline coilkick::drivers::DriverSpec at_tight_tolerances(coilkick::drivers::DriverSpec s, double relative_tolerance) {
+  s.analysis.relative_tolerance = relative_tolerance;
+  s.analysis.voltage_tolerance_V = 1e-9;
+  s.analysis.current_tolerance_A = 1e-12;
+  return s;
+}
+
 }  // namespace test_support

@@ -102,14 +102,9 @@ TEST_CASE("armature driver: the operate time at the scenario's tolerance is that
   // the make instant, milliseconds after the edge, must still be that of a run at relative
   // tolerance 1e-11 (its operate run at 1e-9, 1 nV). 1e-5 is a hundred times below the 0.1 % this
   // project holds its metrics to, and above what was measured (fan relay 4e-7, valve 1.4e-6).
-  auto spec = armature_case(drivers::ClampKind::diode);
-  spec.analysis.relative_tolerance = 1e-6;  // the scenario default
-  const auto built = drivers::build_driver_network(spec, test_support::catalogue());
-  const double t_default = drivers::simulate_operate_time_s(spec, built);
-  auto tight = spec;
-  tight.analysis.relative_tolerance = 1e-11;
-  tight.analysis.voltage_tolerance_V = 1e-9;
-  tight.analysis.current_tolerance_A = 1e-12;
+  const auto spec = test_support::at_default_tolerances(armature_case(drivers::ClampKind::diode));
+  const double t_default = drivers::simulate_operate_time_s(spec, drivers::build_driver_network(spec, test_support::catalogue()));
+  const auto tight = test_support::at_tight_tolerances(spec, 1e-11);
   const double t_tight = drivers::simulate_operate_time_s(tight, drivers::build_driver_network(tight, test_support::catalogue()));
   CHECK(t_default == rel(t_tight).epsilon(1e-5));
 }

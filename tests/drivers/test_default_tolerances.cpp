@@ -10,25 +10,6 @@
 
 using namespace coilkick;
 
-namespace {
-
-drivers::DriverSpec at_defaults(drivers::DriverSpec s) {
-  const drivers::AnalysisSpec d;
-  s.analysis.relative_tolerance = d.relative_tolerance;
-  s.analysis.voltage_tolerance_V = d.voltage_tolerance_V;
-  s.analysis.current_tolerance_A = d.current_tolerance_A;
-  return s;
-}
-
-drivers::DriverSpec tight(drivers::DriverSpec s) {
-  s.analysis.relative_tolerance = 1e-10;
-  s.analysis.voltage_tolerance_V = 1e-9;
-  s.analysis.current_tolerance_A = 1e-12;
-  return s;
-}
-
-}  // namespace
-
 TEST_CASE("default tolerances: every clamp's metrics equal a tight run's") {
   using drivers::ClampKind;
   for (const auto& base : {test_support::relay_case(false), test_support::valve_case()}) {
@@ -38,8 +19,8 @@ TEST_CASE("default tolerances: every clamp's metrics equal a tight run's") {
       spec.clamp.kind = kind;
       CAPTURE(spec.supply.voltage_V);
       CAPTURE(drivers::to_string(kind));
-      const auto a = drivers::simulate_switch_off(at_defaults(spec), test_support::catalogue()).metrics;
-      const auto b = drivers::simulate_switch_off(tight(spec), test_support::catalogue()).metrics;
+      const auto a = drivers::simulate_switch_off(test_support::at_default_tolerances(spec), test_support::catalogue()).metrics;
+      const auto b = drivers::simulate_switch_off(test_support::at_tight_tolerances(spec, 1e-10), test_support::catalogue()).metrics;
       // Measured: ≤ 1.3e-6 of the tight run's value, except the clamp's peak current ≤ 2.5e-4
       // (a diode's current at the instant it takes over the coil, refined on the dense output:
       // 3.9e-4 with the earlier default of 1 µV). Bounds: ten times the first, the second within
