@@ -13,6 +13,8 @@
 #include "coilkick/drivers/energy_account.hpp"
 #include "coilkick/drivers/hold.hpp"
 #include "coilkick/drivers/switch_off.hpp"
+#include "coilkick/catalogue/catalogue.hpp"
+#include "coilkick/scenario/scenario.hpp"
 #include "driver_fixture.hpp"
 
 using namespace coilkick::drivers;
@@ -75,6 +77,39 @@ TEST_CASE("hold: in the steady state the supply's energy per period is the heat 
   // tolerance. 1e-6 leaves margin over both.
   CHECK(in == rel(heat).epsilon(1e-6));
   CHECK(h.supply_energy_per_period_J > 0.0);
+}
+
+TEST_CASE("hold with the valve's plunger: a periodic state balanced off the stop is refused, not returned") {
+  // The bundled demo (models/scenarios/greenhouse_valve_hold.toml, invented values) with a
+  // diode + 47 Ω clamp. Shooting's Newton lands on a periodic state with the plunger ~0.17 mm off
+  // its stop, where the coil's pull just balances the spring: a saddle, whose largest multiplier
+  // of one period exceeds 1 (Floquet theory, engine/periodic_steady_state.hpp), and which the
+  // valve never settles in. It had been returned as the hold: ripple 1.6 mA, release 1.19 ms,
+  // against 1.0 mA and 1.86 ms of the state the periods reach one by one.
+  auto sc = coilkick::scenario::read_scenario_file(
+      coilkick::catalogue::default_models_directory() + "/scenarios/greenhouse_valve_hold.toml", test_support::catalogue());
+  DriverSpec s = sc.driver;
+  s.clamp.kind = ClampKind::diode_resistor;
+  const auto b = build_driver_network(s, test_support::catalogue());
+  REQUIRE(b.armature.has_value());
+  const HoldResult h = solve_hold(s, b, true);
+  CHECK(h.steady.largest_multiplier > 1.001);
+  CHECK(h.steady.method == coilkick::engine::PeriodicMethod::direct);
+  CHECK(h.steady.note.find("repels") != std::string::npos);
+  // The plunger rests on its closed stop (the residual gap, within the stop's compression).
+  const auto& c = h.period->circuit();
+  const double gap = h.period_end.values[c.state_index("coil.gap")];
+  CHECK(gap == rel(b.armature->mechanics.residual_gap_m).epsilon(1e-3));
+  // The ripple by volt-seconds on the closed coil (inductor volt-second balance, R. W. Erickson
+  // and D. Maksimović, Fundamentals of Power Electronics, 2nd ed., §2.2): over the on-time D·T
+  // the coil sees V − I·R, so ΔI = (V − I·R)·D·T/L(residual gap). Tolerance 3 %: the switch's
+  // drop (~0.1 Ω·0.11 A against 18 V), its turn-on and turn-off delays (~0.1 µs each, shifting
+  // the on-time they bound by less than their difference), the current's curvature over the
+  // on-time (D·T/τ ≈ 3e-3) and the core-loss path in parallel with the winding.
+  const double L = b.armature->magnetic.inductance_H(b.armature->mechanics.residual_gap_m);
+  const double T = 1.0 / s.hold.pwm_frequency_Hz, on = s.hold.pwm_duty * T;
+  const double v_on = s.supply.voltage_V - h.average_current_A * b.coil_resistance_ohm;
+  CHECK(h.maximum_current_A - h.minimum_current_A == rel(v_on * on / L).epsilon(0.03));
 }
 
 TEST_CASE("hold: the duty for a target average current, and a current-controlled pull-in") {

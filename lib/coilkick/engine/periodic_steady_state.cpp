@@ -12,6 +12,12 @@
 namespace coilkick::engine {
 namespace {
 
+// A converged shooting whose largest multiplier of one period exceeds 1 by more than this is a
+// periodic state that repels (see the header). The sensitivities are finite differences of
+// 1e-5 of each state's size along replayed steps (Shooter::fd_step), good to ~1e-5 of the
+// multipliers; a slowly decaying coil's multiplier is e^(−T·R/L), just below 1.
+constexpr double kRepellingMultiplier = 1.0 + 1e-3;
+
 // The coupled circuit states (not the energy accumulators).
 Eigen::Index coupled_count(const Circuit& c) { return static_cast<Eigen::Index>(c.circuit_state_count()); }
 
@@ -114,6 +120,8 @@ struct Shooter {
       // Far from the steady state every state may look fast (a coil at zero current behind a
       // diode's megohms of dynamic resistance): then every state counts, and Newton goes on.
       if (!any_slow) fast.assign(static_cast<std::size_t>(n), false);
+      // The multipliers of one period: the eigenvalues of ∂Φ/∂x = jac + I.
+      out.largest_multiplier = (jac + Eigen::MatrixXd::Identity(n, n)).eigenvalues().cwiseAbs().maxCoeff();
       const Eigen::VectorXd step = jac.fullPivLu().solve(-r);
       if (!step.allFinite()) return false;
       // Halving line search on the scaled residual.
@@ -215,11 +223,19 @@ PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& 
     } catch (const SimulationError& e) {
       s.out.note = std::string("a shooting period failed (") + e.what() + ")";
     }
+    const bool repels = done && s.out.largest_multiplier > kRepellingMultiplier;
+    if (repels) {
+      done = false;
+      std::ostringstream m;
+      m << "shooting converged to a periodic state the circuit does not settle in (a multiplier of one period of magnitude "
+        << s.out.largest_multiplier << ": it repels, like an armature balanced off its stop)";
+      s.out.note = m.str();
+    }
     if (done) {
       s.out.method = PeriodicMethod::shooting;
     }
     // The direct periods go on from the last Newton iterate (closer than the guess, unless a
-    // run failed).
+    // run failed or the iterate is a repelling state).
     if (s.out.note.empty()) x = trial;
     if (!done) {
       std::ostringstream m;

@@ -10,7 +10,19 @@
 // Where Newton does not converge, the periods are simulated one by one until the state stops
 // moving (the remaining distance estimated from the contraction between periods), and the result
 // says so. Energy accumulators are not part of the state here (they only grow).
+//
+// Newton finds any periodic state, also one the circuit never settles in: a plunger balanced
+// off its stop where the coil's pull just equals the spring's (a saddle: nudged closer it
+// snaps shut, nudged away it falls open), the middle state of a bistable pair. A periodic state
+// attracts only if every multiplier of one period — the eigenvalues of the sensitivity matrix
+// ∂Φ_T/∂x there — lies inside the unit circle (Floquet theory; e.g. T. S. Parker and
+// L. O. Chua, Practical Numerical Algorithms for Chaotic Systems, Springer 1989, on periodic
+// solutions and their Poincaré maps — from memory). A converged shooting whose largest
+// multiplier exceeds 1 by more than the finite differences' noise is not a result: the periods
+// are then simulated one by one from the guess, where the circuit itself goes, and the note says
+// why.
 #include <functional>
+#include <limits>
 #include <string>
 
 #include "coilkick/engine/state.hpp"
@@ -38,6 +50,9 @@ struct PeriodicSteadyState {
   int newton_iterations = 0;
   long period_runs = 0;           // one-period simulations, sensitivity columns included
   double distance_in_error_scales = 0.0;  // the convergence measure at the end
+  // Shooting: the largest magnitude among the multipliers of one period at the last Newton
+  // step (< 1: the periodic state attracts). NaN where no sensitivity matrix was taken.
+  double largest_multiplier = std::numeric_limits<double>::quiet_NaN();
   std::string note;               // why shooting gave way to direct periods (empty otherwise)
 };
 
