@@ -131,12 +131,15 @@ void DefineResults(py::module_& m) {
             d["steady_state_method"] = h->steady.method == engine::PeriodicMethod::shooting ? "shooting" : "direct periods";
             d["newton_iterations"] = h->steady.newton_iterations;
             d["periods_simulated"] = h->steady.period_runs;
+            d["largest_multiplier"] = h->steady.largest_multiplier;
             d["note"] = h->steady.note;
             return std::move(d);
           },
           "with a PWM hold (scenario [hold]): dict with 'pull_in' and 'period' (each 'time_s' — from the drive's "
           "rising edge, and from the period's start at the falling edge — and 'coil_current_A'), 'period_s', 'duty', "
-          "how the steady state was found ('steady_state_method', 'newton_iterations', 'periods_simulated', 'note'); "
+          "how the steady state was found ('steady_state_method', 'newton_iterations', 'periods_simulated', "
+          "'largest_multiplier' — of one period at shooting's last Newton step, < 1 where the state attracts; NaN "
+          "without shooting —, 'note'); "
           "None without a hold");
 
   m.def(

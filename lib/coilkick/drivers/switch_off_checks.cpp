@@ -21,6 +21,13 @@ RatingCheck graded(const std::string& name, double value, double pass_limit, dou
 }
 
 std::string si(double v, const char* unit) { return format_si(v, unit, 4); }
+// A ratio to four significant digits.
+std::string ratio(double v) {
+  std::ostringstream o;
+  o.precision(4);
+  o << v;
+  return o.str();
+}
 
 struct Checker {
   const DriverSpec& spec;
@@ -228,7 +235,9 @@ struct Checker {
     out.push_back({"hold_steady_state", shot ? CheckStatus::pass : CheckStatus::warn, h.steady.distance_in_error_scales,
                    10.0, "1",
                    shot ? "the hold's periodic steady state by shooting (" + std::to_string(h.steady.newton_iterations) +
-                              " Newton steps, " + std::to_string(h.steady.period_runs) + " periods simulated)"
+                              " Newton steps, " + std::to_string(h.steady.period_runs) +
+                              " periods simulated; it attracts: largest multiplier of one period " +
+                              ratio(h.steady.largest_multiplier) + ")"
                         : h.steady.note + " (" + std::to_string(h.steady.period_runs) + " periods)"});
   }
 
