@@ -206,26 +206,29 @@ class PwlBjt final : public TerminalDevice<PwlBjt, 3> {
   bool has_charges() const { return false; }
   const BjtDerived& segments() const { return d_; }
   bool has_breakdown() const { return d_.has_breakdown; }
+  // Corners: base–emitter knee (slot 0), the Early factor's vce = 0 (1), the saturation line's
+  // knee (2), saturation against the active line (3), breakdown knee (4).
+  static constexpr int kPieceSlots = 5;
 
   // breakdown: see TerminalDevice (the breakdown line apart, when not null).
   template <class S>
-  void currents(const S* v, S* i, S* breakdown = nullptr) const {
+  void currents(const S* v, S* i, S* breakdown = nullptr, engine::PieceChoices* pieces = nullptr) const {
     const double sg = d_.sign, g = p_.minimum_conductance_S;
     const S vbe = sg * (v[1] - v[2]), vce = sg * (v[0] - v[2]);
     S ib = g * vbe;
     S ic = g * vce;
-    if (value_of(vbe) > d_.be_knee_V) {
+    if (engine::piece_past(pieces, 0, value_of(vbe) - d_.be_knee_V)) {
       const S ib_on = (vbe - d_.be_knee_V) / d_.be_resistance_ohm;
       ib = ib + ib_on;
       // Early effect on the active line (output conductance): without it a partly-on switch is an
       // ideal current source and the coil rings undamped with the node capacitance.
-      const S early = std::isinf(p_.forward_early_voltage_V) || value_of(vce) <= 0.0 ? S(1.0) : 1.0 + vce / p_.forward_early_voltage_V;
+      const S early = std::isinf(p_.forward_early_voltage_V) || !engine::piece_past(pieces, 1, value_of(vce)) ? S(1.0) : 1.0 + vce / p_.forward_early_voltage_V;
       const S active = d_.beta_f * ib_on * early;
       const S sat = (vce - d_.sat_knee_V) / d_.sat_resistance_ohm;
-      if (value_of(sat) > 0.0) ic = ic + (value_of(sat) < value_of(active) ? sat : active);
+      if (engine::piece_past(pieces, 2, value_of(sat))) ic = ic + (engine::piece_past(pieces, 3, value_of(active) - value_of(sat)) ? sat : active);
     }
     S ibr(0.0);
-    if (d_.has_breakdown && value_of(vce) > d_.breakdown_knee_V) ibr = (vce - d_.breakdown_knee_V) / d_.breakdown_resistance_ohm;
+    if (d_.has_breakdown && engine::piece_past(pieces, 4, value_of(vce) - d_.breakdown_knee_V)) ibr = (vce - d_.breakdown_knee_V) / d_.breakdown_resistance_ohm;
     if (!breakdown) ic = ic + ibr;
     i[0] = sg * ic;
     i[1] = sg * ib;

@@ -139,16 +139,15 @@ class PwlDiode final : public TerminalDevice<PwlDiode, 2> {
   std::string kind() const override { return "diode (pwl)"; }
   bool has_charges() const { return false; }
   const DiodeCurves& segments() const { return c_; }
+  // The forward knee's two corners (slots 0, 1) and the breakdown knee's (2, 3).
+  static constexpr int kPieceSlots = 4;
 
   template <class S>
-  void currents(const S* v, S* i) const {
+  void currents(const S* v, S* i, engine::PieceChoices* pieces = nullptr) const {
     const S u = v[0] - v[1];
     S ia = p_.minimum_conductance_S * u;
-    const double uv = value_of(u);
-    if (uv > c_.knee_voltage_V - kPwlKneeRounding_V) ia = ia + knee_ramp(u - c_.knee_voltage_V) / c_.on_resistance_ohm;
-    if (c_.has_breakdown && -uv > c_.breakdown_knee_V - kPwlKneeRounding_V) {
-      ia = ia - knee_ramp(-u - c_.breakdown_knee_V) / c_.breakdown_resistance_ohm;
-    }
+    ia = ia + knee_ramp(u - c_.knee_voltage_V, pieces, 0) / c_.on_resistance_ohm;
+    if (c_.has_breakdown) ia = ia - knee_ramp(-u - c_.breakdown_knee_V, pieces, 2) / c_.breakdown_resistance_ohm;
     i[0] = ia;
     i[1] = -ia;
   }

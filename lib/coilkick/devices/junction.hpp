@@ -21,6 +21,7 @@
 #include <limits>
 
 #include "coilkick/devices/dual.hpp"
+#include "coilkick/engine/element.hpp"
 
 namespace coilkick::devices {
 
@@ -64,12 +65,19 @@ S exp_limited(const S& x, double x_crit, S* slope = nullptr) {
 // (a Zener held at its forward knee by a leakage path, say) then chatters between the segments
 // and the integrator takes tens of thousands of steps.
 inline constexpr double kPwlKneeRounding_V = 1e-4;
+// Its two corners (−w/2, +w/2) are the slots `slot` and `slot + 1` of a piece record. Held on
+// the parabola, it is the parabola only within its width: its continuation is no segment of the
+// curve (the quadratic would grow without bound over a step), and the curve is C¹ there.
 template <class S>
-S knee_ramp(const S& x, double width = kPwlKneeRounding_V) {
+[[gnu::always_inline]] inline S knee_ramp(const S& x, engine::PieceChoices* pieces = nullptr, int slot = 0, double width = kPwlKneeRounding_V) {
   const double xv = value_of(x);
-  if (xv <= -0.5 * width) return S(0.0);
-  if (xv < 0.5 * width) return (x + 0.5 * width) * (x + 0.5 * width) / (2.0 * width);
-  return x;
+  if (!engine::piece_past(pieces, slot, xv + 0.5 * width)) return S(0.0);
+  if (engine::piece_past(pieces, slot + 1, xv - 0.5 * width, true)) return x;
+  if (pieces && pieces->holds(slot + 1)) {
+    if (xv <= -0.5 * width) return S(0.0);
+    if (xv >= 0.5 * width) return x;
+  }
+  return (x + 0.5 * width) * (x + 0.5 * width) / (2.0 * width);
 }
 
 struct DepletionParameters {

@@ -130,25 +130,28 @@ class PwlMosfet final : public TerminalDevice<PwlMosfet, 3> {
   bool has_charges() const { return p_.gate_source_capacitance_F > 0.0 || p_.gate_drain_capacitance_F > 0.0; }
   const MosfetDerived& segments() const { return d_; }
   bool has_breakdown() const { return d_.has_breakdown; }
+  // Corners: vds = 0 (slot 0: forward or reverse), the channel's threshold (1), ohmic against
+  // saturated (2), the body diode's knee (3), the avalanche knee (4).
+  static constexpr int kPieceSlots = 5;
 
   // breakdown: see TerminalDevice (the avalanche line apart, when not null).
   template <class S>
-  void currents(const S* v, S* i, S* breakdown = nullptr) const {
+  void currents(const S* v, S* i, S* breakdown = nullptr, engine::PieceChoices* pieces = nullptr) const {
     const double sg = d_.sign, g = p_.minimum_conductance_S;
     const S vgs = sg * (v[1] - v[2]), vds = sg * (v[0] - v[2]);
-    const bool forward = value_of(vds) >= 0.0;
+    const bool forward = engine::piece_past(pieces, 0, value_of(vds), true);
     const S vov = (forward ? vgs : vgs - vds) - d_.vth;
     const S vmag = forward ? vds : -vds;
     S ich(0.0);
-    if (value_of(vov) > 0.0) {
+    if (engine::piece_past(pieces, 1, value_of(vov))) {
       const S sat = d_.pwl_transconductance_S * vov, ohm = vmag / d_.on_resistance_ohm;
-      ich = value_of(ohm) < value_of(sat) ? ohm : sat;
+      ich = engine::piece_past(pieces, 2, value_of(sat) - value_of(ohm)) ? ohm : sat;
     }
     S id = (forward ? ich : -ich) + g * vds;
     const auto& b = d_.body_curves;
-    if (-value_of(vds) > b.knee_voltage_V) id = id - (-vds - b.knee_voltage_V) / b.on_resistance_ohm;
+    if (engine::piece_past(pieces, 3, -value_of(vds) - b.knee_voltage_V)) id = id - (-vds - b.knee_voltage_V) / b.on_resistance_ohm;
     S iav(0.0);
-    if (d_.has_breakdown && value_of(vds) > d_.breakdown_knee_V) iav = (vds - d_.breakdown_knee_V) / d_.breakdown_resistance_ohm;
+    if (d_.has_breakdown && engine::piece_past(pieces, 4, value_of(vds) - d_.breakdown_knee_V)) iav = (vds - d_.breakdown_knee_V) / d_.breakdown_resistance_ohm;
     if (!breakdown) id = id + iav;
     i[0] = sg * id;
     i[1] = sg * (g * vgs);

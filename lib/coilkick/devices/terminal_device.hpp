@@ -40,6 +40,14 @@ struct has_breakdown_split : std::false_type {};
 template <class Model>
 struct has_breakdown_split<Model, std::void_t<decltype(std::declval<const Model&>().has_breakdown())>> : std::true_type {};
 
+// A piecewise-linear model numbers its corners (engine::PieceChoices) with
+//   static constexpr int kPieceSlots = K;
+// and takes a last argument `engine::PieceChoices* pieces` in currents (after `breakdown`).
+template <class Model, class = void>
+struct piece_slots_of : std::integral_constant<int, 0> {};
+template <class Model>
+struct piece_slots_of<Model, std::void_t<decltype(Model::kPieceSlots)>> : std::integral_constant<int, Model::kPieceSlots> {};
+
 template <class Model, int N>
 class TerminalDevice : public engine::Element {
  public:
@@ -84,11 +92,7 @@ class TerminalDevice : public engine::Element {
         model().currents_and_charges(v.data(), i.data(), with_charges ? q.data() : nullptr);
       }
     } else {
-      if constexpr (has_breakdown_split<Model>::value) {
-        model().currents(v.data(), i.data(), breakdown);
-      } else {
-        model().currents(v.data(), i.data());
-      }
+      currents_of(v.data(), i.data(), breakdown, ctx.pieces());
       if (with_charges) model().charges(v.data(), q.data());
     }
     S p(0.0), pb(0.0);
@@ -115,6 +119,15 @@ class TerminalDevice : public engine::Element {
       for (int k = 0; k < N; ++k) {
         for (int j = 0; j < N; ++j) out.add_mass(k, j, q[idx(k)].g[idx(j)]);
       }
+    }
+  }
+
+  int piece_slot_count() const override { return piece_slots_of<Model>::value; }
+  void choose_pieces(const engine::ElementContext& ctx) const override {
+    if constexpr (piece_slots_of<Model>::value > 0) {
+      std::array<double, N> v{}, i{}, ib{};
+      for (int k = 0; k < N; ++k) v[idx(k)] = ctx.value(k);
+      currents_of(v.data(), i.data(), splits_breakdown() ? ib.data() : nullptr, ctx.pieces());
     }
   }
 
@@ -174,6 +187,22 @@ class TerminalDevice : public engine::Element {
     return false;
   }
   static constexpr std::size_t idx(int k) { return static_cast<std::size_t>(k); }
+  template <class S>
+  void currents_of(const S* v, S* i, S* breakdown, [[maybe_unused]] engine::PieceChoices* pieces) const {
+    if constexpr (has_breakdown_split<Model>::value) {
+      if constexpr (piece_slots_of<Model>::value > 0) {
+        model().currents(v, i, breakdown, pieces);
+      } else {
+        model().currents(v, i, breakdown);
+      }
+    } else {
+      if constexpr (piece_slots_of<Model>::value > 0) {
+        model().currents(v, i, pieces);
+      } else {
+        model().currents(v, i);
+      }
+    }
+  }
 };
 
 }  // namespace coilkick::devices

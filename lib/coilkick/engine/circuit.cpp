@@ -164,6 +164,12 @@ Circuit::Circuit(const Network& network)
     history_channels += n;
   }
   if (history_channels > 0) history_.p = std::make_shared<DelayHistory>(history_channels);
+  for (std::size_t k = 0; k < elements_.size(); ++k) {
+    piece_offset_.push_back(piece_slots_);
+    const int n = elements_[k]->piece_slot_count();
+    if (n > 0) piece_elements_.push_back(k);
+    piece_slots_ += n;
+  }
   // M moves only with a state-dependent charge (the elements of mass_slope_elements_) or with a
   // line's form (its quasi-static lag).
   mass_constant_ = mass_slope_elements_.empty() && !history_;
@@ -211,6 +217,8 @@ Workspace Circuit::make_workspace() const {
   for (const auto& m : maps_) locals = std::max(locals, m.size());
   w.local_flow = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(locals));
   w.local_mass = Eigen::MatrixXd::Zero(static_cast<Eigen::Index>(locals), static_cast<Eigen::Index>(locals));
+  w.pieces.assign(static_cast<std::size_t>(piece_slots_), 0);
+  w.free_pieces.assign(static_cast<std::size_t>(piece_slots_), 0);
   return w;
 }
 
@@ -320,10 +328,19 @@ void Circuit::assemble(double t_s, double slope_time_s, const double* x, Workspa
     w.power_time_rate.setZero();
     w.power_slope.setZero();
   }
-  for (std::size_t k = 0; k < elements_.size(); ++k) {
-    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data(), past_of(k, w, slope_time_s < t_s));
+  auto load = [&](std::size_t k, PieceChoices* pieces) {
+    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data(), past_of(k, w, slope_time_s < t_s), pieces);
     GlobalStamper st(w, maps_[k].data(), channel_offset_[k], with_slopes);
     elements_[k]->load(ctx, st);
+  };
+  // (Without piecewise-linear elements no record is made: a smooth circuit pays nothing for it.)
+  if (piece_slots_ == 0) {
+    for (std::size_t k = 0; k < elements_.size(); ++k) load(k, nullptr);
+  } else {
+    for (std::size_t k = 0; k < elements_.size(); ++k) {
+      PieceChoices pieces(w.pieces.data() + piece_offset_[k], w.hold_pieces, w.free_pieces.data() + piece_offset_[k]);
+      load(k, &pieces);
+    }
   }
   for (int i = 0; i < n_nodes_; ++i) w.mass(i, i) += stray_F_;
 }
@@ -399,6 +416,16 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
     if (sources_move) di_dt += (-g_minus_k.row(p).segment(nc, nf)).dot(vdot_f);
     di_dt -= w.flow_time_rate[p];
     w.time_rate[nc + nch + j] = vdot_f[j] * w.source_current_A[j] + v * di_dt;
+  }
+}
+
+void Circuit::choose_pieces(double t_s, const double* x, Workspace& w) const {
+  for (int i = 0; i < n_circuit_; ++i) w.ext_value[i] = x[i];
+  for (int j = 0; j < n_fixed_; ++j) w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
+  for (const std::size_t k : piece_elements_) {
+    PieceChoices pieces(w.pieces.data() + piece_offset_[k], false);
+    ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data(), {}, &pieces);
+    elements_[k]->choose_pieces(ctx);
   }
 }
 

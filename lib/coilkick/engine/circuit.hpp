@@ -74,6 +74,11 @@ struct Workspace {
   // The operating-point solve: elements that read their past see none (their DC model).
   bool operating_point = false;
   bool quasi_static = false;  // lines couple their ends without delay (steps longer than it)
+  // The pieces of the piecewise-linear elements (PieceChoices; Circuit::piece_slot_count slots):
+  // evaluations decide them into `pieces`, or, with hold_pieces, read them from there.
+  std::vector<unsigned char> pieces;
+  std::vector<unsigned char> free_pieces;  // corners decided even while holding (a run sets them)
+  bool hold_pieces = false;
 };
 
 class Circuit {
@@ -135,6 +140,10 @@ class Circuit {
   // builds its own circuit per run). Before a run, and in the operating-point solve
   // (Workspace::operating_point), those elements are at their DC point.
   bool has_history() const { return static_cast<bool>(history_); }
+  // Slots of the piecewise-linear elements' corners (Element::piece_slot_count), all elements.
+  int piece_slot_count() const { return piece_slots_; }
+  // Decides the pieces at (t, x) into w.pieces, evaluating nothing else.
+  void choose_pieces(double t_s, const double* x, Workspace& w) const;
   // The longest step a run may take: the shortest delay at which an element reads its past.
   double shortest_delay_s() const { return shortest_delay_s_; }
   // The longest step from t_s that reads at most `pieces` pieces of any line's past: a step over
@@ -181,6 +190,9 @@ class Circuit {
   std::vector<PowerChannelInfo> channels_;
   int n_nodes_ = 0, n_circuit_ = 0, n_fixed_ = 0, n_element_channels_ = 0;
   std::vector<int> history_offset_;          // per element: its first history channel
+  std::vector<int> piece_offset_;            // per element: its first piece slot
+  std::vector<std::size_t> piece_elements_;  // the elements with pieces
+  int piece_slots_ = 0;
   // Null: no element reads its past. A copy of the circuit (a TransientResult keeps one) copies
   // the history, so that the result keeps its own run's past when the circuit runs again.
   struct OwnHistory {

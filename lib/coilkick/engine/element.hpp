@@ -54,12 +54,45 @@ struct JunctionState {
   bool exponential = false;
 };
 
+// Which piece of its curves a piecewise-linear element is on (the straight segment past a knee,
+// the saturated or the active line ...): one yes/no per corner, at slots the element numbers
+// 0..piece_slot_count()−1. Each corner has a margin, a function of the unknowns that crosses zero
+// there (> 0: the piece past the corner). To `decide` is to choose by the margin's sign and write
+// the choice; to `hold` is to read the choice written earlier, whatever the margin says — a run
+// holds the pieces of a step's start over that step, so the step integrates one smooth
+// right-hand side, and looks for a changed choice along the step afterwards (a switching
+// function, Hairer, Nørsett & Wanner, Solving Ordinary Differential Equations I, 2nd ed., §II.6).
+// A corner the run has set `free` (the state slides along it) is decided even while holding.
+class PieceChoices {
+ public:
+  PieceChoices(unsigned char* choices, bool hold, const unsigned char* free = nullptr)
+      : choices_(choices), free_(free), hold_(hold) {}
+  // The choice at `slot` for a corner with this margin; `at_zero`: the choice when it is 0.
+  bool past(int slot, double margin, bool at_zero = false) {
+    if (!hold_ || (free_ && free_[slot])) choices_[slot] = margin > 0.0 || (at_zero && margin == 0.0);
+    return choices_[slot] != 0;
+  }
+  // Whether the choice at `slot` is held.
+  bool holds(int slot) const { return hold_ && !(free_ && free_[slot]); }
+
+ private:
+  unsigned char* choices_;
+  const unsigned char* free_;
+  bool hold_;
+};
+
+// The choice of a corner when there is no record (a device evaluated outside a circuit).
+inline bool piece_past(PieceChoices* pieces, int slot, double margin, bool at_zero = false) {
+  if (pieces) return pieces->past(slot, margin, at_zero);
+  return margin > 0.0 || (at_zero && margin == 0.0);
+}
+
 // Read-only view of the unknowns one element sees at one instant.
 class ElementContext {
  public:
   ElementContext(double time_s, const double* values, const double* rates, const int* map,
-                 DelayedValues past = {})
-      : time_s_(time_s), values_(values), rates_(rates), map_(map), past_(past) {}
+                 DelayedValues past = {}, PieceChoices* pieces = nullptr)
+      : time_s_(time_s), values_(values), rates_(rates), map_(map), past_(past), pieces_(pieces) {}
   double time_s() const { return time_s_; }
   // Terminal voltage (V) or internal state value for a local index (ground reads 0).
   double value(int local) const { return map_[local] < 0 ? 0.0 : values_[map_[local]]; }
@@ -68,6 +101,8 @@ class ElementContext {
   // The element's recorded past (Element::history_channel_count), or null at a DC operating
   // point (the operating-point solve, or before a run).
   const DelayedValues* past() const { return past_.history ? &past_ : nullptr; }
+  // The record of a piecewise-linear element's pieces (Element::piece_slot_count), or null.
+  PieceChoices* pieces() const { return pieces_; }
 
  private:
   double time_s_;
@@ -75,6 +110,7 @@ class ElementContext {
   const double* rates_;
   const int* map_;
   DelayedValues past_;
+  PieceChoices* pieces_;
 };
 
 // Where elements write their contributions (local indices, see above).
@@ -120,6 +156,10 @@ class Element {
   // has_junctions is true; see JunctionState.
   virtual bool has_junctions() const { return false; }
   virtual void junction_states(const ElementContext& /*ctx*/, std::vector<JunctionState>& /*out*/) const {}
+  // A piecewise-linear element: how many corners it numbers in PieceChoices (0: a smooth one).
+  virtual int piece_slot_count() const { return 0; }
+  // Chooses its pieces at the context's point into ctx.pieces() (deciding), nothing else.
+  virtual void choose_pieces(const ElementContext& /*ctx*/) const {}
   // Energy held in the element's fields (J): ½·C·v², ½·L·i², ½·m·v² ...
   virtual double stored_energy_J(const ElementContext& /*ctx*/) const { return 0.0; }
   // First instant strictly after t_s where the element's explicit time dependence has a corner.

@@ -5,6 +5,7 @@
 // a step ending on a corner uses the slope before the corner.
 #include <algorithm>
 #include <limits>
+#include <vector>
 
 #include <Eigen/Dense>
 
@@ -29,6 +30,7 @@ struct OdeSystem {
   double full_time = std::numeric_limits<double>::quiet_NaN();
   Eigen::VectorXd full_rate, full_time_rate;
   Eigen::MatrixXd full_jacobian;
+  std::vector<unsigned char> full_pieces;  // the pieces it decided (Circuit::choose_pieces)
 
   void full_evaluation(const Eigen::VectorXd& x, double t) {
     if (full_time == t && full_at.size() == x.size() && full_at == x) return;
@@ -39,6 +41,7 @@ struct OdeSystem {
     full_rate = w.rate;
     full_time_rate = w.time_rate;
     full_jacobian = w.jacobian;
+    if (!w.pieces.empty()) full_pieces = w.pieces;
   }
   // Rates at a stage of the step being attempted, or at a point inside an accepted step however
   // long ago (events): no corner lies inside a step, so the slope time falls in t's segment.

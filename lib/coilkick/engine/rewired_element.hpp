@@ -19,6 +19,8 @@ class RewiredElement final : public Element {
   bool has_mass_slope() const override { return inner_->has_mass_slope(); }
   bool has_junctions() const override { return inner_->has_junctions(); }
   void junction_states(const ElementContext& ctx, std::vector<JunctionState>& out) const override { inner_->junction_states(ctx, out); }
+  int piece_slot_count() const override { return inner_->piece_slot_count(); }
+  void choose_pieces(const ElementContext& ctx) const override { inner_->choose_pieces(ctx); }
   double stored_energy_J(const ElementContext& ctx) const override { return inner_->stored_energy_J(ctx); }
   double next_corner_after_s(double t_s) const override { return inner_->next_corner_after_s(t_s); }
 

@@ -1,5 +1,6 @@
 #include "coilkick/engine/transient.hpp"
 
+#include <algorithm>
 #include <chrono>
 #include <cmath>
 #include <limits>
@@ -26,6 +27,17 @@ constexpr int kPastPiecesPerStep = 3;
 // tolerances 1e-5..1e-7 (README, "Speed"): 10 delays kept the steps at the delay; 30, 100 and 300
 // alike, 20–70× fewer steps; results within each run's own spread across tolerances.
 constexpr double kQuasiStaticFirstStepDelays = 100.0;
+// A step that held its pieces is looked at this many times along its dense output (the last at
+// its end) for a changed piece; the first change is then located by bisection to this fraction of
+// the step. A change found within kPieceChangeAtStart of the step's start is one the start point
+// sits on (a node resting at a corner): that step is redone deciding its pieces at every stage.
+constexpr int kPieceSamples = 4;
+constexpr double kPieceChangeWidth = 1e-10;
+constexpr double kPieceChangeAtStart = 1e-6;
+// A corner freed because the state slid along it is held again once its piece has stayed the
+// same from start to end of this many accepted steps in a row (the slide is over: an active
+// clamp's onset, whose end, milliseconds later, is a change to locate again).
+constexpr int kStepsToHoldAgain = 3;
 
 void check_options(const TransientOptions& o, double t0) {
   auto bad = [](const char* field, const char* rule, double v) {
@@ -92,7 +104,7 @@ class TransientRun {
         n_(static_cast<Eigen::Index>(circuit.state_count())),
         atol_(absolute_tolerances(circuit, options, initial.values.data())),
         w_(circuit.make_workspace()),
-        sys_{circuit, w_, stats_, initial.time_s, {}, std::numeric_limits<double>::quiet_NaN(), {}, {}, {}},
+        sys_{circuit, w_, stats_, initial.time_s, {}, std::numeric_limits<double>::quiet_NaN(), {}, {}, {}, {}},
         stepper_(make_rosenbrock_step(options.step_method, static_cast<int>(n_), circuit.circuit_state_count())),
         locator_(events, static_cast<int>(n_), options.event_time_tolerance_s),
         x_(initial.values),
@@ -122,7 +134,25 @@ class TransientRun {
       const bool lands_on_target = size_step();
       sys_.step_start = t_;
       sys_.full_evaluation(x_, t_);
+      // Pieces held over the attempt: its stages see the pieces of its start.
+      const bool hold = holds_pieces_ && hold_this_step_;
+      if (hold && enter_pieces_) {
+        // Landed on a change of piece: the step after it takes the pieces past the change (at
+        // the point itself they are a toss-up), its start evaluated on them.
+        w_.pieces = pieces_past_change_;
+        w_.hold_pieces = true;
+        sys_.full_time = std::numeric_limits<double>::quiet_NaN();
+        sys_.full_evaluation(x_, t_);
+        enter_pieces_ = false;
+        just_entered_ = true;
+      }
+      if (hold) {
+        w_.pieces = sys_.full_pieces;
+        w_.hold_pieces = true;
+      }
+      if (holds_pieces_) start_pieces_ = sys_.full_pieces;
       stepper_->attempt(x_, t_, dt_, {sys_.full_rate, sys_.full_jacobian, sys_.full_time_rate}, stage_rates_, x_new_, x_err_);
+      w_.hold_pieces = false;
       StepError e = scaled_step_error(x_, x_new_, x_err_, sys_.full_rate, dt_, atol_, options_.relative_tolerance);
       worst_state_ = e.worst_state;
       last_nonfinite_ = !e.finite;
@@ -134,6 +164,7 @@ class TransientRun {
         reject(e);
         continue;
       }
+      if (hold && piece_changes_inside(lands_on_target)) continue;
       if (accept(e, lands_on_target)) break;  // a stopping event
     }
     return result();
@@ -155,6 +186,16 @@ class TransientRun {
   StepController control_;
   Eigen::VectorXd x_, x_new_, x_err_, rate_old_;
   double t_, dt_ = 0.0, next_corner_ = 0.0, target_ = 0.0, proposed_dt_ = 0.0;
+  // Piecewise-linear elements: their pieces are held over each attempt (PieceChoices), and an
+  // attempt along which one changes is redone to the change (piece_change_).
+  const bool holds_pieces_ = circuit_.piece_slot_count() > 0 && !replaying();
+  bool hold_this_step_ = true;
+  double piece_change_ = std::numeric_limits<double>::infinity();
+  std::vector<unsigned char> held_, pieces_past_change_;
+  bool enter_pieces_ = false, just_entered_ = false;
+  std::vector<unsigned char> pieces_before_change_, start_pieces_;
+  std::vector<int> steady_free_steps_;
+  Eigen::VectorXd piece_x_;
   DenseStep dense_;
   std::vector<double> times_, rec_x_, rec_rate_;
   int rejections_in_a_row_ = 0, worst_state_ = 0;
@@ -218,7 +259,7 @@ class TransientRun {
       dt_ = target_ - t_;
       return true;
     }
-    target_ = std::min(next_corner_, options_.stop_time_s);
+    target_ = std::min({next_corner_, options_.stop_time_s, piece_change_});
     const double remaining = target_ - t_;
     const double min_step = std::max(options_.minimum_step_s, 64.0 * std::numeric_limits<double>::epsilon() * std::abs(t_));
     if (options_.maximum_step_s > 0.0) dt_ = std::min(dt_, options_.maximum_step_s);
@@ -249,6 +290,88 @@ class TransientRun {
       fail(m.str());
     }
     return lands_on_target;
+  }
+
+  // The attempt held the pieces of its start; its states past a change of piece are those of the
+  // wrong piece. Looks for a change along the attempt's dense output; if there is one, sets the
+  // next attempt to end at its first instant (or, at the start itself, to decide its pieces at
+  // every stage) and returns true. The end of an attempt that lands on a change found before is
+  // that change, and is not looked at.
+  bool piece_changes_inside(bool lands_on_target) {
+    const double t0 = t_, t1 = lands_on_target ? target_ : t_ + dt_;
+    dense_.t0 = t0;
+    dense_.t1 = t1;
+    dense_.x0 = x_;
+    dense_.x1 = x_new_;
+    stepper_->dense_output(dense_.c3, dense_.c4);
+    held_ = sys_.full_pieces;
+    piece_x_.resize(n_);
+    auto changed = [&](double t) {
+      dense_.at(t, piece_x_.data(), nullptr);
+      w_.pieces = held_;
+      circuit_.choose_pieces(t, piece_x_.data(), w_);
+      for (std::size_t q = 0; q < held_.size(); ++q) {
+        if (!w_.free_pieces[q] && w_.pieces[q] != held_[q]) return true;
+      }
+      return false;
+    };
+    const bool end_is_change = lands_on_target && t1 == piece_change_;
+    double lo = t0, hi = std::numeric_limits<double>::quiet_NaN();
+    for (int k = 1; k <= kPieceSamples; ++k) {
+      if (k == kPieceSamples && end_is_change) break;
+      const double tk = k == kPieceSamples ? t1 : t0 + (t1 - t0) * k / kPieceSamples;
+      if (changed(tk)) {
+        hi = tk;
+        break;
+      }
+      lo = tk;
+    }
+    if (std::isnan(hi)) return false;
+    const double width = std::max(kPieceChangeWidth * (t1 - t0), 64.0 * std::numeric_limits<double>::epsilon() * std::abs(t1));
+    while (hi - lo > width) {
+      const double mid = 0.5 * (lo + hi);
+      if (changed(mid)) hi = mid;
+      else lo = mid;
+    }
+    ++stats_.rejected_steps;
+    // Straight back to a piece just left: the state slides along the corner (a node held at a
+    // clamp's knee), where neither piece holds over any step. Such a corner is freed — decided at
+    // every evaluation, as without holding — until it settles (hold_settled_corners_again).
+    bool back = false;
+    if (just_entered_) {
+      changed(hi);
+      for (std::size_t q = 0; q < held_.size(); ++q) {
+        if (!w_.free_pieces[q] && held_[q] != pieces_before_change_[q] && w_.pieces[q] == pieces_before_change_[q]) {
+          back = true;
+          w_.free_pieces[q] = 1;
+        }
+      }
+    }
+    // A second change inside the step redone to the first: its pieces do not settle over it.
+    if (back || end_is_change || hi - t0 <= kPieceChangeAtStart * (t1 - t0)) {
+      hold_this_step_ = false;
+    } else {
+      piece_change_ = hi;
+      changed(hi);
+      pieces_past_change_ = w_.pieces;
+      pieces_before_change_ = held_;
+    }
+    return true;
+  }
+
+  // After an accepted step: a freed corner whose piece was the same at the step's start and end
+  // kStepsToHoldAgain times in a row is held again.
+  void hold_settled_corners_again() {
+    steady_free_steps_.resize(start_pieces_.size(), 0);
+    for (std::size_t q = 0; q < start_pieces_.size(); ++q) {
+      if (!w_.free_pieces[q]) continue;
+      if (sys_.full_pieces[q] != start_pieces_[q]) {
+        steady_free_steps_[q] = 0;
+      } else if (++steady_free_steps_[q] >= kStepsToHoldAgain) {
+        w_.free_pieces[q] = 0;
+        steady_free_steps_[q] = 0;
+      }
+    }
   }
 
   void reject(const StepError& e) {
@@ -289,6 +412,13 @@ class TransientRun {
     // With a line, kinks arrive one delay after they left, often just after another point: a
     // step cut short to land on one says nothing about the step after it.
     if (lands_on_target && circuit_.has_history()) dt_next = std::max(dt_next, proposed_dt_);
+    hold_this_step_ = true;
+    just_entered_ = false;
+    if (holds_pieces_) hold_settled_corners_again();
+    if (t_new >= piece_change_) {
+      piece_change_ = std::numeric_limits<double>::infinity();
+      enter_pieces_ = true;
+    }
     if (std::isfinite(stop_at)) {
       dense_.at(stop_at, x_.data(), nullptr);  // record() evaluates the rates there
       t_ = stop_at;
