@@ -299,11 +299,7 @@ class TransientRun {
   // that change, and is not looked at.
   bool piece_changes_inside(bool lands_on_target) {
     const double t0 = t_, t1 = lands_on_target ? target_ : t_ + dt_;
-    dense_.t0 = t0;
-    dense_.t1 = t1;
-    dense_.x0 = x_;
-    dense_.x1 = x_new_;
-    stepper_->dense_output(dense_.c3, dense_.c4);
+    dense_of_attempt(t0, t1);
     held_ = sys_.full_pieces;
     piece_x_.resize(n_);
     auto changed = [&](double t) {
@@ -383,16 +379,21 @@ class TransientRun {
     dt_ = control_.after_rejection(dt_, e);
   }
 
+  // The last attempt's dense output, from (t0, x_) to (t1, x_new_).
+  void dense_of_attempt(double t0, double t1) {
+    dense_.t0 = t0;
+    dense_.t1 = t1;
+    dense_.x0 = x_;
+    dense_.x1 = x_new_;
+    stepper_->dense_output(dense_.c3, dense_.c4);
+  }
+
   // Returns true when a stopping event ended the run inside this step.
   bool accept(const StepError& e, bool lands_on_target) {
     rejections_in_a_row_ = 0;
     ++stats_.accepted_steps;
     const double t_old = t_, t_new = lands_on_target ? target_ : t_ + dt_;
-    dense_.t0 = t_old;
-    dense_.t1 = t_new;
-    dense_.x0 = x_;
-    dense_.x1 = x_new_;
-    stepper_->dense_output(dense_.c3, dense_.c4);
+    dense_of_attempt(t_old, t_new);
     rate_old_ = sys_.full_rate;              // the full evaluation at the start of the step
     sys_.full_evaluation(x_new_, t_new);     // at its end: probes read it, the next step starts there
     circuit_.record_history(dense_, {options_.voltage_tolerance_V, options_.relative_tolerance}, w_);
