@@ -419,9 +419,13 @@ void Circuit::evaluate(double t_s, double slope_time_s, const double* x, Workspa
   }
 }
 
-void Circuit::choose_pieces(double t_s, const double* x, Workspace& w) const {
+void Circuit::set_point_values(double t_s, const double* x, Workspace& w) const {
   for (int i = 0; i < n_circuit_; ++i) w.ext_value[i] = x[i];
   for (int j = 0; j < n_fixed_; ++j) w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
+}
+
+void Circuit::choose_pieces(double t_s, const double* x, Workspace& w) const {
+  set_point_values(t_s, x, w);
   for (const std::size_t k : piece_elements_) {
     PieceChoices pieces(w.pieces.data() + piece_offset_[k], false);
     ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data(), {}, &pieces);
@@ -431,8 +435,7 @@ void Circuit::choose_pieces(double t_s, const double* x, Workspace& w) const {
 
 void Circuit::junctions_at(double t_s, const double* x, Workspace& w, std::vector<CircuitJunction>& out) const {
   out.clear();
-  for (int i = 0; i < n_circuit_; ++i) w.ext_value[i] = x[i];
-  for (int j = 0; j < n_fixed_; ++j) w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
+  set_point_values(t_s, x, w);
   for (const std::size_t k : junction_elements_) {
     const auto& map = maps_[k];
     ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), map.data());
@@ -506,8 +509,7 @@ int Circuit::element_with_terminal(const std::string& element, int terminal, con
 }
 
 double Circuit::stored_energy_J(int element, double t_s, const double* x, Workspace& w) const {
-  for (int i = 0; i < n_circuit_; ++i) w.ext_value[i] = x[i];
-  for (int j = 0; j < n_fixed_; ++j) w.ext_value[n_circuit_ + j] = sources_[j].voltage_V.value(t_s);
+  set_point_values(t_s, x, w);
   auto one = [&](std::size_t k) {
     ElementContext ctx(t_s, w.ext_value.data(), w.ext_rate.data(), maps_[k].data(), past_of(k, w));
     return elements_[k]->stored_energy_J(ctx);

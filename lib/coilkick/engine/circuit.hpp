@@ -190,6 +190,8 @@ class Circuit {
   std::vector<PowerChannelInfo> channels_;
   int n_nodes_ = 0, n_circuit_ = 0, n_fixed_ = 0, n_element_channels_ = 0;
   std::vector<int> history_offset_;          // per element: its first history channel
+  // The unknowns of a point (t, x) into w.ext_value: the states, the sources' values.
+  void set_point_values(double t_s, const double* x, Workspace& w) const;
   std::vector<int> piece_offset_;            // per element: its first piece slot
   std::vector<std::size_t> piece_elements_;  // the elements with pieces
   int piece_slots_ = 0;

@@ -65,11 +65,13 @@ struct JunctionState {
 // A corner the run has set `free` (the state slides along it) is decided even while holding.
 class PieceChoices {
  public:
+  // The piece a margin decides: past the corner above 0; `at_zero` at 0.
+  static bool decide(double margin, bool at_zero) { return margin > 0.0 || (at_zero && margin == 0.0); }
   PieceChoices(unsigned char* choices, bool hold, const unsigned char* free = nullptr)
       : choices_(choices), free_(free), hold_(hold) {}
   // The choice at `slot` for a corner with this margin; `at_zero`: the choice when it is 0.
   bool past(int slot, double margin, bool at_zero = false) {
-    if (!hold_ || (free_ && free_[slot])) choices_[slot] = margin > 0.0 || (at_zero && margin == 0.0);
+    if (!hold_ || (free_ && free_[slot])) choices_[slot] = decide(margin, at_zero);
     return choices_[slot] != 0;
   }
   // Whether the choice at `slot` is held.
@@ -83,8 +85,7 @@ class PieceChoices {
 
 // The choice of a corner when there is no record (a device evaluated outside a circuit).
 inline bool piece_past(PieceChoices* pieces, int slot, double margin, bool at_zero = false) {
-  if (pieces) return pieces->past(slot, margin, at_zero);
-  return margin > 0.0 || (at_zero && margin == 0.0);
+  return pieces ? pieces->past(slot, margin, at_zero) : PieceChoices::decide(margin, at_zero);
 }
 
 // Read-only view of the unknowns one element sees at one instant.

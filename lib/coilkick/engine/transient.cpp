@@ -191,7 +191,7 @@ class TransientRun {
   const bool holds_pieces_ = circuit_.piece_slot_count() > 0 && !replaying();
   bool hold_this_step_ = true;
   double piece_change_ = std::numeric_limits<double>::infinity();
-  std::vector<unsigned char> held_, pieces_past_change_;
+  std::vector<unsigned char> pieces_past_change_;
   bool enter_pieces_ = false, just_entered_ = false;
   std::vector<unsigned char> pieces_before_change_, start_pieces_;
   std::vector<int> steady_free_steps_;
@@ -300,14 +300,14 @@ class TransientRun {
   bool piece_changes_inside(bool lands_on_target) {
     const double t0 = t_, t1 = lands_on_target ? target_ : t_ + dt_;
     dense_of_attempt(t0, t1);
-    held_ = sys_.full_pieces;
+    const auto& held = start_pieces_;  // the attempt's stages saw these
     piece_x_.resize(n_);
     auto changed = [&](double t) {
       dense_.at(t, piece_x_.data(), nullptr);
-      w_.pieces = held_;
+      w_.pieces = held;
       circuit_.choose_pieces(t, piece_x_.data(), w_);
-      for (std::size_t q = 0; q < held_.size(); ++q) {
-        if (!w_.free_pieces[q] && w_.pieces[q] != held_[q]) return true;
+      for (std::size_t q = 0; q < held.size(); ++q) {
+        if (!w_.free_pieces[q] && w_.pieces[q] != held[q]) return true;
       }
       return false;
     };
@@ -330,14 +330,15 @@ class TransientRun {
       else lo = mid;
     }
     ++stats_.rejected_steps;
+    changed(hi);
+    const std::vector<unsigned char> past_change = w_.pieces;
     // Straight back to a piece just left: the state slides along the corner (a node held at a
     // clamp's knee), where neither piece holds over any step. Such a corner is freed — decided at
     // every evaluation, as without holding — until it settles (hold_settled_corners_again).
     bool back = false;
     if (just_entered_) {
-      changed(hi);
-      for (std::size_t q = 0; q < held_.size(); ++q) {
-        if (!w_.free_pieces[q] && held_[q] != pieces_before_change_[q] && w_.pieces[q] == pieces_before_change_[q]) {
+      for (std::size_t q = 0; q < held.size(); ++q) {
+        if (!w_.free_pieces[q] && held[q] != pieces_before_change_[q] && past_change[q] == pieces_before_change_[q]) {
           back = true;
           w_.free_pieces[q] = 1;
         }
@@ -348,9 +349,8 @@ class TransientRun {
       hold_this_step_ = false;
     } else {
       piece_change_ = hi;
-      changed(hi);
-      pieces_past_change_ = w_.pieces;
-      pieces_before_change_ = held_;
+      pieces_past_change_ = past_change;
+      pieces_before_change_ = held;
     }
     return true;
   }
