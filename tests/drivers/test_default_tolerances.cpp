@@ -4,6 +4,7 @@
 #include <doctest/doctest.h>
 
 #include <cmath>
+#include <string>
 #include <utility>
 #include <vector>
 
@@ -44,13 +45,13 @@ void every_clamp_against_tight(const std::vector<drivers::DriverSpec>& drivers_t
 }  // namespace
 
 TEST_CASE("default tolerances: every clamp's metrics equal a tight run's") {
-  // Measured: ≤ 1.3e-6 of the tight run's value, except the clamp's peak current ≤ 2.5e-4
-  // (a diode's current at the instant it takes over the coil, refined on the dense output:
-  // 3.9e-4 with the earlier default of 1 µV). Bounds: ten times the first, the second within
-  // the 0.1 % bar.
+  // Measured: ≤ 1.2e-6 of the tight run's value (the clamp's peak current had been 2.5e-4 — a
+  // diode's current at the instant it takes over the coil, read from a long step's dense output,
+  // which bulges inside the step; now read from the states integrated to that instant,
+  // engine/inside_step.hpp). Bound: ten times that.
   every_clamp_against_tight({test_support::relay_case(false), test_support::valve_case()},
                             {{"switch_voltage_peak_V", 1e-5}, {"release_time_s", 1e-5}, {"current_decay_time_10pct_s", 1e-5},
-                             {"clamp_energy_J", 1e-5}, {"coil_end_peak_V", 1e-5}, {"clamp_current_peak_A", 5e-4}});
+                             {"clamp_energy_J", 1e-5}, {"coil_end_peak_V", 1e-5}, {"clamp_current_peak_A", 1e-5}});
 }
 
 TEST_CASE("default tolerances at the pwl level: every clamp's metrics equal a tight run's") {
@@ -62,16 +63,71 @@ TEST_CASE("default tolerances at the pwl level: every clamp's metrics equal a ti
   // the default tolerance), a change its stages never saw. Pieces are held over each step and a
   // change is located on the step's dense output (engine/element.hpp, PieceChoices).
   // Measured: ≤ 4.9e-5 of the tight run's value (before the held pieces: the active clamp's
-  // energy 7.7e-4, the valve's diode + resistor switch energy 9.1e-4), except two peaks read
-  // on the valve's plain-diode plateau from the dense output of a step over the diode's own
-  // settling: the switch voltage's peak there is 0.2 mV (8.6e-6) high, which is 2.1e-4 of the
-  // coil's own ~1 V and, through the diode's steep on-line, 8.4e-4 of its peak current.
-  // Bounds: twice the first; for those two, the 0.1 % bar.
+  // energy 7.7e-4, the valve's diode + resistor switch energy 9.1e-4; before the extremum's value
+  // was read from states integrated to its instant, engine/inside_step.hpp, two peaks on the
+  // valve's plain-diode plateau, read from the dense output of a step over the diode's own
+  // settling, were 2.1e-4 (coil-end voltage) and 8.4e-4 (the diode's current, through its steep
+  // on-line)). Bound: twice that.
   auto relay = test_support::relay_case(false);
   relay.switch_.board_stray_capacitance_F = 1e-12;
   auto valve = test_support::valve_case();
   relay.analysis.model_level = valve.analysis.model_level = devices::ModelLevel::pwl;
   every_clamp_against_tight({relay, valve}, {{"switch_voltage_peak_V", 1e-4}, {"release_time_s", 1e-4},
                                              {"current_decay_time_10pct_s", 1e-4}, {"clamp_energy_J", 1e-4},
-                                             {"switch_energy_J", 1e-4}, {"coil_end_peak_V", 1e-3}, {"clamp_current_peak_A", 1e-3}});
+                                             {"switch_energy_J", 1e-4}, {"coil_end_peak_V", 1e-4}, {"clamp_current_peak_A", 1e-4}});
+}
+
+TEST_CASE("default tolerances at edges a random campaign found: a clamp's peak current, a voltage rising at the run's end") {
+  // Two of 600 random drivers (scripts/tolerance_campaign.py) whose metrics moved by more than the
+  // 0.1 % bar between the default tolerances and a tight run. Invented values.
+  using drivers::ClampKind;
+  using drivers::Topology;
+  // (1) A 19 mA coil on a slow N-MOSFET edge with a small-signal diode, no board capacitance, pwl
+  // devices: the diode's peak current was read 1.3 % high from a bulging dense output (19.24 mA,
+  // more than the coil carried: by Kirchhoff's current law the clamped diode takes the coil's
+  // current less what the switch and ~1 pF of winding capacitance take, so never more than the
+  // coil's current at switch-off, common practice).
+  auto nmos = test_support::valve_case();
+  nmos.analysis.model_level = devices::ModelLevel::pwl;
+  nmos.coil.resistance_at_20C_ohm = 1256.6;
+  nmos.coil.inductance_H = 0.4526;
+  nmos.coil.release_current_A = 5.5e-3;
+  nmos.coil.winding_capacitance_F = 1.2e-12;
+  nmos.switch_.base_resistor_ohm = 1461.0;
+  nmos.switch_.board_stray_capacitance_F = 0.0;
+  nmos.drive.fall_time_s = 192e-9;
+  nmos.clamp.diode_part = "small_signal_diode";
+  // (2) A slow high-side P-MOSFET (64 kΩ gate pull-up: the coil's energy drains through the
+  // switch in ~70 µs) with diode + 8.2 V Zener, physical devices: the coil's reversed voltage is
+  // still rising when the run stops (its energy spent); it was read at the end of the step that
+  // held the stop, past the run's end: 696 mV at the default tolerances against 687 mV.
+  auto pmos = nmos;
+  pmos.analysis.model_level = devices::ModelLevel::physical;
+  pmos.supply.voltage_V = 12.0;
+  pmos.coil.resistance_at_20C_ohm = 683.9;
+  pmos.coil.inductance_H = 1.183e-3;
+  pmos.coil.winding_capacitance_F = 0.0;
+  pmos.switch_.topology = Topology::high_side_pmos;
+  pmos.switch_.part = "pmos_logic_level_60v";
+  pmos.switch_.base_resistor_ohm = 656.5;
+  pmos.switch_.pullup_resistor_ohm = 63.82e3;
+  pmos.switch_.level_shifter_base_resistor_ohm = 1853.0;
+  pmos.switch_.board_stray_capacitance_F = 10e-12;
+  pmos.drive.fall_time_s = 56e-9;
+  pmos.clamp.kind = ClampKind::diode_zener;
+  pmos.clamp.zener_part = "zener_500mw_8v2";
+  // Measured (default against relative 1e-10, 1 nV, 1 pA; before → after): (1) the diode's peak
+  // 1.3e-2 → 5.0e-6, the coil's reversed voltage 4.9e-4 → 1.9e-7; (2) the coil's reversed voltage
+  // 1.2e-2 → 5.2e-7, the switch's peak 6.4e-4 → 2.8e-8, the diode's 115 µA peak 7.7e-5 (unchanged).
+  // Bound: 2e-4, over twice the largest, a fifth of the bar.
+  for (const auto& spec : {nmos, pmos}) {
+    CAPTURE(drivers::to_string(spec.switch_.topology));
+    const auto a = drivers::simulate_switch_off(test_support::at_default_tolerances(spec), test_support::catalogue()).metrics;
+    const auto b = drivers::simulate_switch_off(test_support::at_tight_tolerances(spec, 1e-10), test_support::catalogue()).metrics;
+    for (const std::string m : {"clamp_current_peak_A", "coil_end_peak_V", "switch_voltage_peak_V"}) {
+      CAPTURE(m);
+      CHECK(std::abs(a.get(m) - b.get(m)) <= 2e-4 * std::abs(b.get(m)));
+    }
+    CHECK(a.get("clamp_current_peak_A") <= a.get("coil_current_at_switch_off_A"));
+  }
 }

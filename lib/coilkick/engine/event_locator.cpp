@@ -52,6 +52,7 @@ EventLocator::EventLocator(const std::vector<EventSpec>& specs, int state_size,
   end_time_.assign(specs_.size(), std::nan(""));
   end_value_.assign(specs_.size(), std::nan(""));
   kept_.resize(specs_.size());
+  best_point_ = outcomes_;
 }
 
 double EventLocator::probe_at_start(std::size_t k, double t0, const double* x0, const double* r0) {
@@ -92,6 +93,7 @@ void EventLocator::start(double t_s, const double* x, const double* rates) {
     if (e.kind == EventSpec::Kind::crossing || t_s < e.after_time_s) continue;
     outcomes_[k].time_s = t_s;
     outcomes_[k].value = e.probe(t_s, x, rates);
+    best_point_[k] = outcomes_[k];
   }
 }
 
@@ -112,112 +114,159 @@ double EventLocator::locate_crossing(const EventSpec& e, double a, double ga, do
   return b;
 }
 
-void EventLocator::refine_extremum(std::size_t k, double a, double b, const Interpolant& f) {
-  forget_samples();  // another step's interpolant
+void EventLocator::refine_extremum(std::size_t k, double a, double b, const KeptStep& step) {
   const auto& e = specs_[k];
   const double sign = e.kind == EventSpec::Kind::maximum ? 1.0 : -1.0;
-  const GoldenBracket g = golden_section(a, b, tol_, [&](double t) { return sign * probe_at(e, t, f); });
+  auto search = [&](const Interpolant& f) {
+    forget_samples();  // another interpolant
+    const GoldenBracket g = golden_section(a, b, tol_, [&](double t) { return sign * probe_at(e, t, f); });
+    return 0.5 * (g.a + g.b);
+  };
+  auto value = [&](double t, const Interpolant& f) {
+    forget_samples();
+    return probe_at(e, t, f);
+  };
   // The kept step holds the best sample of the run, so its refined value is the extremum, even
   // where it lies a little below the sample (which may have read the less exact rates).
-  outcomes_[k].time_s = 0.5 * (g.a + g.b);
-  outcomes_[k].value = probe_at(e, *outcomes_[k].time_s, f);
+  double t = search(step.dense), v = value(t, step.dense);
+  if (step.exact) {
+    const double v_exact = value(t, step.exact);
+    if (step.finer && std::abs(v_exact - v) > kDenseAgreement * std::max(std::abs(v_exact), std::abs(v))) {
+      t = search(step.finer(a, b));
+      v = value(t, step.exact);
+    } else {
+      v = v_exact;
+    }
+  }
+  outcomes_[k].time_s = t;
+  outcomes_[k].value = v;
+  if (step.exact && best_point_[k].time_s && better(e.kind, best_point_[k].value, v)) outcomes_[k] = best_point_[k];
+  forget_samples();
 }
 
 double EventLocator::on_step(double t0, const double* x0, const double* r0, double t1,
                              const double* x1, const double* r1, const Interpolant& f,
                              const KeepInterpolant& keep) {
   forget_samples();  // a new step's interpolant
+  // A run that ends inside this step ends there for every other event too: the stopping
+  // crossings first, then the rest up to the earliest of them (a probe still rising when the run
+  // stops — a coil's voltage as its last energy drains — would otherwise read its value at the
+  // step's end, past the run's end, higher the longer the step).
   double stop_at = std::numeric_limits<double>::infinity();
   for (std::size_t k = 0; k < specs_.size(); ++k) {
     const auto& e = specs_[k];
-    if (t1 < e.after_time_s) continue;
-    const double a = std::max(t0, e.after_time_s);
-    if (e.kind == EventSpec::Kind::crossing) {
-      if (outcomes_[k].time_s) continue;  // first occurrence only
-      auto crosses = [&e](double g0, double g1) {
-        const bool falls = g0 > 0.0 && g1 <= 0.0, rises = g0 < 0.0 && g1 >= 0.0;
-        return (e.direction == Direction::falling && falls) || (e.direction == Direction::rising && rises) ||
-               (e.direction == Direction::either && (falls || rises));
-      };
-      double ga = (a == t0 ? probe_at_start(k, t0, x0, r0) : probe_at(e, a, f)) - e.threshold;
-      const double gb = probe_at_end(k, t1, x1, r1) - e.threshold;
-      double b = t1;
-      bool hit = crosses(ga, gb);
-      if (!hit && e.stops_run && t1 > a && ga != 0.0 && (ga > 0.0 ? e.direction != Direction::rising : e.direction != Direction::falling)) {
-        // A run-ending probe can pass its threshold inside one step and come back: a long step
-        // that carries a decaying coil current through zero (where a clamp diode would have
-        // stopped it) has the coil's energy vanish inside the step and grow again. Look for the
-        // probe's turning point towards the threshold inside the step (golden section); where it
-        // lies beyond the threshold the run ends at the crossing before it.
-        const double toward = ga > 0.0 ? -1.0 : 1.0;  // the direction of the threshold
-        // Two probes just inside the ends tell whether it turns: heading for the threshold at the
-        // start, away from it at the end. Only then (rare) is the turning point searched for.
-        const double eps = 1e-6 * (t1 - a);
-        const bool turns = toward * (probe_at(e, a + eps, f) - e.threshold - ga) > 0.0 &&
-                           toward * (gb - (probe_at(e, t1 - eps, f) - e.threshold)) < 0.0;
-        if (turns) {
-          const GoldenBracket g = golden_section(a, t1, tol_, [&](double t) { return toward * (probe_at(e, t, f) - e.threshold); }, 0.0);
-          // The crossing lies between the step's start and the first inner point beyond the threshold.
-          if (g.sc >= 0.0 || g.sd >= 0.0) {
-            hit = true;
-            b = g.sc >= 0.0 ? g.c : g.d;  // c lies before d
-          }
-        }
-      }
-      if (!hit) continue;
-      const double tc = locate_crossing(e, a, ga, b, f);
-      outcomes_[k].time_s = tc;
-      outcomes_[k].value = probe_at(e, tc, f);
-      if (e.stops_run) stop_at = std::min(stop_at, tc);
-      continue;
-    }
-    // Extremum: sample, then refine around the best sample. When the best sample is an end of the
-    // step, one probe just inside it tells whether the extremum lies inside (then refine) or is
-    // the end itself (a monotone stretch, e.g. a spike rising over many steps): refining there
-    // would only confirm it, at ~60 probe calls.
-    constexpr int n = 5;
-    double ts[n], vs[n];
-    ts[0] = a;
-    ts[n - 1] = t1;
-    vs[0] = a == t0 ? probe_at_start(k, t0, x0, r0) : probe_at(e, a, f);
-    vs[n - 1] = probe_at_end(k, t1, x1, r1);
-    // Once an extremum is known, a step whose two ends both lie more than 10 % of it on the far
-    // side cannot hold a better one: the step's error control keeps the states (and so a probe of
-    // them) from swinging that far inside one step and back. Skip it without sampling — probes
-    // such as a device's current cost a full circuit evaluation each.
-    if (outcomes_[k].time_s) {
-      const double best_value = outcomes_[k].value, margin = 0.1 * std::abs(best_value);
-      auto far_worse = [&](double v) { return e.kind == EventSpec::Kind::maximum ? v < best_value - margin : v > best_value + margin; };
-      if (far_worse(vs[0]) && far_worse(vs[n - 1])) continue;
-    }
-    int best = 0;
-    for (int j = 0; j < n; ++j) {
-      ts[j] = a + (t1 - a) * j / (n - 1);
-      if (j > 0 && j < n - 1) vs[j] = probe_at(e, ts[j], f);
-      if (better(e.kind, vs[j], vs[best]) && j > 0) best = j;
-    }
-    if (!better(e.kind, vs[best], outcomes_[k].value) && outcomes_[k].time_s) continue;
-    outcomes_[k].time_s = ts[best];
-    outcomes_[k].value = vs[best];
-    kept_[k].f = nullptr;  // an earlier kept step holds no better sample than this one
-    if (!(t1 > a)) continue;
-    bool interior = best > 0 && best < n - 1;
-    if (!interior) {
-      const double inside = best == 0 ? ts[0] + 1e-3 * (ts[1] - ts[0]) : ts[n - 1] - 1e-3 * (ts[n - 1] - ts[n - 2]);
-      interior = better(e.kind, probe_at(e, inside, f), vs[best]);
-    }
-    // Refining costs ~35 probes; while the extremum may still move to a later step, keep this
-    // step's dense output instead and refine once in finish().
-    if (interior) kept_[k] = {ts[std::max(best - 1, 0)], ts[std::min(best + 1, n - 1)], keep()};
+    if (e.kind == EventSpec::Kind::crossing && e.stops_run && t1 >= e.after_time_s) stop_at = std::min(stop_at, on_crossing(k, t0, x0, r0, t1, x1, r1, f));
+  }
+  const bool stops = stop_at < t1;
+  const double t_end = stops ? stop_at : t1;
+  for (std::size_t k = 0; k < specs_.size(); ++k) {
+    const auto& e = specs_[k];
+    if (t_end < e.after_time_s || (e.kind == EventSpec::Kind::crossing && e.stops_run)) continue;
+    if (e.kind == EventSpec::Kind::crossing) on_crossing(k, t0, x0, r0, t_end, stops ? nullptr : x1, r1, f);
+    else on_extremum(k, t0, x0, r0, t_end, stops ? nullptr : x1, r1, f, keep);
   }
   return stop_at;
 }
 
+double EventLocator::probe_at_step_end(std::size_t k, double t1, const double* x1, const double* r1, const Interpolant& f) {
+  return x1 ? probe_at_end(k, t1, x1, r1) : probe_at(specs_[k], t1, f);
+}
+
+double EventLocator::on_crossing(std::size_t k, double t0, const double* x0, const double* r0, double t1, const double* x1,
+                                 const double* r1, const Interpolant& f) {
+  const auto& e = specs_[k];
+  const double a = std::max(t0, e.after_time_s);
+  if (outcomes_[k].time_s) return std::numeric_limits<double>::infinity();  // first occurrence only
+  auto crosses = [&e](double g0, double g1) {
+    const bool falls = g0 > 0.0 && g1 <= 0.0, rises = g0 < 0.0 && g1 >= 0.0;
+    return (e.direction == Direction::falling && falls) || (e.direction == Direction::rising && rises) ||
+           (e.direction == Direction::either && (falls || rises));
+  };
+  double ga = (a == t0 ? probe_at_start(k, t0, x0, r0) : probe_at(e, a, f)) - e.threshold;
+  const double gb = probe_at_step_end(k, t1, x1, r1, f) - e.threshold;
+  double b = t1;
+  bool hit = crosses(ga, gb);
+  if (!hit && e.stops_run && t1 > a && ga != 0.0 && (ga > 0.0 ? e.direction != Direction::rising : e.direction != Direction::falling)) {
+    // A run-ending probe can pass its threshold inside one step and come back: a long step
+    // that carries a decaying coil current through zero (where a clamp diode would have
+    // stopped it) has the coil's energy vanish inside the step and grow again. Look for the
+    // probe's turning point towards the threshold inside the step (golden section); where it
+    // lies beyond the threshold the run ends at the crossing before it.
+    const double toward = ga > 0.0 ? -1.0 : 1.0;  // the direction of the threshold
+    // Two probes just inside the ends tell whether it turns: heading for the threshold at the
+    // start, away from it at the end. Only then (rare) is the turning point searched for.
+    const double eps = 1e-6 * (t1 - a);
+    const bool turns = toward * (probe_at(e, a + eps, f) - e.threshold - ga) > 0.0 &&
+                       toward * (gb - (probe_at(e, t1 - eps, f) - e.threshold)) < 0.0;
+    if (turns) {
+      const GoldenBracket g = golden_section(a, t1, tol_, [&](double t) { return toward * (probe_at(e, t, f) - e.threshold); }, 0.0);
+      // The crossing lies between the step's start and the first inner point beyond the threshold.
+      if (g.sc >= 0.0 || g.sd >= 0.0) {
+        hit = true;
+        b = g.sc >= 0.0 ? g.c : g.d;  // c lies before d
+      }
+    }
+  }
+  if (!hit) return std::numeric_limits<double>::infinity();
+  const double tc = locate_crossing(e, a, ga, b, f);
+  outcomes_[k].time_s = tc;
+  outcomes_[k].value = probe_at(e, tc, f);
+  return tc;
+}
+
+void EventLocator::on_extremum(std::size_t k, double t0, const double* x0, const double* r0, double t1, const double* x1,
+                               const double* r1, const Interpolant& f, const KeepInterpolant& keep) {
+  const auto& e = specs_[k];
+  const double a = std::max(t0, e.after_time_s);
+  // Extremum: sample, then refine around the best sample. When the best sample is an end of the
+  // step, one probe just inside it tells whether the extremum lies inside (then refine) or is
+  // the end itself (a monotone stretch, e.g. a spike rising over many steps): refining there
+  // would only confirm it, at ~60 probe calls.
+  constexpr int n = 5;
+  double ts[n], vs[n];
+  ts[0] = a;
+  ts[n - 1] = t1;
+  vs[0] = a == t0 ? probe_at_start(k, t0, x0, r0) : probe_at(e, a, f);
+  vs[n - 1] = probe_at_step_end(k, t1, x1, r1, f);
+  // The ends are accepted points (the start only where the step starts at or after the event's
+  // start time): their values are as exact as the states.
+  if (a == t0 && better(e.kind, vs[0], best_point_[k].value)) best_point_[k] = {e.name, t0, vs[0]};
+  if (better(e.kind, vs[n - 1], best_point_[k].value)) best_point_[k] = {e.name, t1, vs[n - 1]};
+  // Once an extremum is known, a step whose two ends both lie more than 10 % of it on the far
+  // side cannot hold a better one: the step's error control keeps the states (and so a probe of
+  // them) from swinging that far inside one step and back. Skip it without sampling — probes
+  // such as a device's current cost a full circuit evaluation each.
+  if (outcomes_[k].time_s) {
+    const double best_value = outcomes_[k].value, margin = 0.1 * std::abs(best_value);
+    auto far_worse = [&](double v) { return e.kind == EventSpec::Kind::maximum ? v < best_value - margin : v > best_value + margin; };
+    if (far_worse(vs[0]) && far_worse(vs[n - 1])) return;
+  }
+  int best = 0;
+  for (int j = 0; j < n; ++j) {
+    ts[j] = a + (t1 - a) * j / (n - 1);
+    if (j > 0 && j < n - 1) vs[j] = probe_at(e, ts[j], f);
+    if (better(e.kind, vs[j], vs[best]) && j > 0) best = j;
+  }
+  if (!better(e.kind, vs[best], outcomes_[k].value) && outcomes_[k].time_s) return;
+  outcomes_[k].time_s = ts[best];
+  outcomes_[k].value = vs[best];
+  kept_[k].step = {};  // an earlier kept step holds no better sample than this one
+  if (!(t1 > a)) return;
+  bool interior = best > 0 && best < n - 1;
+  if (!interior) {
+    const double inside = best == 0 ? ts[0] + 1e-3 * (ts[1] - ts[0]) : ts[n - 1] - 1e-3 * (ts[n - 1] - ts[n - 2]);
+    interior = better(e.kind, probe_at(e, inside, f), vs[best]);
+  }
+  // Refining costs ~35 probes; while the extremum may still move to a later step, keep this
+  // step's dense output instead and refine once in finish().
+  if (interior) kept_[k] = {ts[std::max(best - 1, 0)], ts[std::min(best + 1, n - 1)], keep()};
+}
+
 void EventLocator::finish() {
   for (std::size_t k = 0; k < kept_.size(); ++k) {
-    if (!kept_[k].f) continue;
-    refine_extremum(k, kept_[k].a, kept_[k].b, kept_[k].f);
-    kept_[k].f = nullptr;
+    if (!kept_[k].step.dense) continue;
+    refine_extremum(k, kept_[k].a, kept_[k].b, kept_[k].step);
+    kept_[k].step = {};
   }
 }
 

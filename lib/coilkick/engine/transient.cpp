@@ -10,6 +10,7 @@
 #include "coilkick/engine/dense_step.hpp"
 #include "coilkick/engine/errors.hpp"
 #include "coilkick/engine/event_locator.hpp"
+#include "coilkick/engine/inside_step.hpp"
 #include "coilkick/engine/interrupt.hpp"
 #include "coilkick/engine/ode_system.hpp"
 #include "coilkick/engine/rosenbrock_step.hpp"
@@ -38,6 +39,7 @@ constexpr double kPieceChangeAtStart = 1e-6;
 // same from start to end of this many accepted steps in a row (the slide is over: an active
 // clamp's onset, whose end, milliseconds later, is a change to locate again).
 constexpr int kStepsToHoldAgain = 3;
+
 
 void check_options(const TransientOptions& o, double t0) {
   auto bad = [](const char* field, const char* rule, double v) {
@@ -150,6 +152,7 @@ class TransientRun {
         w_.pieces = sys_.full_pieces;
         w_.hold_pieces = true;
       }
+      attempt_held_ = hold;
       if (holds_pieces_) start_pieces_ = sys_.full_pieces;
       stepper_->attempt(x_, t_, dt_, {sys_.full_rate, sys_.full_jacobian, sys_.full_time_rate}, stage_rates_, x_new_, x_err_);
       w_.hold_pieces = false;
@@ -182,6 +185,7 @@ class TransientRun {
   OdeSystem sys_;
   const StageRates stage_rates_ = [this](double tq, const double* xq, double* rate) { sys_.stage_rates(tq, xq, rate); };
   std::unique_ptr<RosenbrockStep> stepper_;
+  InsideStep inside_{sys_, *stepper_, stage_rates_, atol_, options_.relative_tolerance};
   EventLocator locator_;
   StepController control_;
   Eigen::VectorXd x_, x_new_, x_err_, rate_old_;
@@ -192,7 +196,7 @@ class TransientRun {
   bool hold_this_step_ = true;
   double piece_change_ = std::numeric_limits<double>::infinity();
   std::vector<unsigned char> pieces_past_change_;
-  bool enter_pieces_ = false, just_entered_ = false;
+  bool enter_pieces_ = false, just_entered_ = false, attempt_held_ = false;
   std::vector<unsigned char> pieces_before_change_, start_pieces_;
   std::vector<int> steady_free_steps_;
   Eigen::VectorXd piece_x_;
@@ -398,14 +402,25 @@ class TransientRun {
     sys_.full_evaluation(x_new_, t_new);     // at its end: probes read it, the next step starts there
     circuit_.record_history(dense_, {options_.voltage_tolerance_V, options_.relative_tolerance}, w_);
     auto interp = [this](double tq, double* xo, double* ro) { dense_.at(tq, xo, ro); };
-    // The kept copy (extremum refinement) evaluates the circuit for exact rates.
+    // The kept copy (extremum refinement) evaluates the circuit for exact rates, and can integrate
+    // from the step's start to an instant inside it (refinement runs at the run's end, from
+    // result(), while this run still exists).
     auto keep = [this]() {
       auto d = std::make_shared<const DenseStep>(dense_);
       OdeSystem* sys = &sys_;
-      return EventLocator::Interpolant([d, sys](double tq, double* xo, double* ro) {
+      EventLocator::KeptStep kept;
+      kept.dense = [d, sys](double tq, double* xo, double* ro) {
         d->at(tq, xo, nullptr);
         if (ro) sys->stage_rates(tq, xo, ro);
-      });
+      };
+      if (!circuit_.has_history()) {
+        // The pieces the step's stages saw (none held: decided at every stage).
+        auto pieces = std::make_shared<const std::vector<unsigned char>>(attempt_held_ ? start_pieces_ : std::vector<unsigned char>{});
+        InsideStep* inside = &inside_;
+        kept.exact = [inside, d, pieces](double tq, double* xo, double* ro) { inside->state_at(*d, *pieces, tq, xo, ro); };
+        kept.finer = [inside, d, pieces](double a, double b) { return inside->finer(*d, *pieces, a, b); };
+      }
+      return kept;
     };
     const double stop_at = locator_.on_step(t_old, x_.data(), rate_old_.data(), t_new, x_new_.data(), sys_.full_rate.data(),
                                             interp, keep);
@@ -421,7 +436,10 @@ class TransientRun {
       enter_pieces_ = true;
     }
     if (std::isfinite(stop_at)) {
-      dense_.at(stop_at, x_.data(), nullptr);  // record() evaluates the rates there
+      // The run's last point, integrated to the stop from the step's start (its dense output may
+      // bulge inside the step; inside_step.hpp); record() evaluates the rates there.
+      if (circuit_.has_history()) dense_.at(stop_at, x_.data(), nullptr);
+      else inside_.state_at(dense_, attempt_held_ ? start_pieces_ : std::vector<unsigned char>{}, stop_at, x_.data(), nullptr);
       t_ = stop_at;
       record();
       return true;
