@@ -8,17 +8,66 @@
 #include "coilkick/drivers/switch_off_checks.hpp"
 #include "coilkick/drivers/switch_off_transient.hpp"
 #include "coilkick/engine/circuit.hpp"
+#include "coilkick/engine/errors.hpp"
 
 namespace coilkick::drivers {
 
+namespace {
+
+OperatingPoints points_of(const DriverSpec& spec, const BuiltDriver& b) {
+  const engine::Circuit circuit(b.network);
+  return {solve_on_state(spec, b, circuit).state, solve_off_point(spec, b, circuit)};
+}
+
+// A pwl driver's DC points where Newton and the continuation do not find them from the cold
+// guess: from the same driver's points at the physical level. Newton on piecewise-linear
+// devices can circle between pieces far from the solution (a pwl Darlington's output
+// transistor switching between saturation and the active line at every iteration, from 0 V);
+// the physical curves are smooth and the pwl lines lie on them near the solution, so Newton
+// from there converges. Rethrows the pwl failure where the physical level fails too or its
+// circuit has another shape.
+OperatingPoints pwl_points_from_physical(const DriverSpec& spec, const BuiltDriver& b, const catalogue::Catalogue& parts,
+                                         const engine::OperatingPointError& failure) {
+  DriverSpec smooth = spec;
+  smooth.analysis.model_level = devices::ModelLevel::physical;
+  const BuiltDriver bs = build_driver_network(smooth, parts);
+  const engine::Circuit pwl(b.network), physical(bs.network);
+  if (physical.states().size() != pwl.states().size()) throw failure;
+  for (std::size_t i = 0; i < pwl.states().size(); ++i) {
+    if (physical.states()[i].name != pwl.states()[i].name) throw failure;
+  }
+  OperatingPoints start;
+  try {
+    start = points_of(smooth, bs);
+  } catch (const engine::SimulationError&) {
+    throw failure;
+  }
+  return {solve_on_state(spec, b, pwl, &start.on).state, solve_off_point(spec, b, pwl, &start.off)};
+}
+
+bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == devices::ModelLevel::pwl; }
+
+}  // namespace
+
 SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Catalogue& parts, const OperatingPoints* starts) {
-  return simulate_switch_off(spec, build_driver_network(spec, parts), starts);
+  const BuiltDriver b = build_driver_network(spec, parts);
+  if (starts || !is_pwl(spec)) return simulate_switch_off(spec, b, starts);
+  try {
+    return simulate_switch_off(spec, b, nullptr);
+  } catch (const engine::OperatingPointError& failure) {
+    const OperatingPoints from_physical = pwl_points_from_physical(spec, b, parts, failure);
+    return simulate_switch_off(spec, b, &from_physical);
+  }
 }
 
 OperatingPoints solve_operating_points(const DriverSpec& spec, const catalogue::Catalogue& parts) {
   const BuiltDriver b = build_driver_network(spec, parts);
-  const engine::Circuit circuit(b.network);
-  return {solve_on_state(spec, b, circuit).state, solve_off_point(spec, b, circuit)};
+  try {
+    return points_of(spec, b);
+  } catch (const engine::OperatingPointError& failure) {
+    if (!is_pwl(spec)) throw;
+    return pwl_points_from_physical(spec, b, parts, failure);
+  }
 }
 
 SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b, const OperatingPoints* starts) {

@@ -15,4 +15,10 @@ class SimulationError : public std::runtime_error {
   explicit SimulationError(const std::string& what) : std::runtime_error(what) {}
 };
 
+// A DC operating point that Newton and the pseudo-transient continuation did not find.
+class OperatingPointError : public SimulationError {
+ public:
+  explicit OperatingPointError(const std::string& what) : SimulationError(what) {}
+};
+
 }  // namespace coilkick::engine

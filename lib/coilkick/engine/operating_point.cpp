@@ -79,7 +79,7 @@ Eigen::VectorXd newton_step(const Eigen::MatrixXd& g, const Eigen::VectorXd& r, 
   Eigen::FullPivLU<Eigen::MatrixXd> full(g);
   full.setThreshold(1e-300);
   if (!full.isInvertible()) {
-    throw SimulationError("operating point at t = " + std::to_string(t) + " s: the conductance matrix is singular (a state has no DC path)");
+    throw OperatingPointError("operating point at t = " + std::to_string(t) + " s: the conductance matrix is singular (a state has no DC path)");
   }
   return full.solve(-r);
 }
@@ -206,7 +206,7 @@ CircuitState newton(const Circuit& circuit, const CircuitState& guess, const Ope
     << " Newton iterations; the residual furthest from balance is in '"
     << circuit.states()[static_cast<std::size_t>(worst)].name << "' (" << r[worst] << ", " << std::abs(r[worst] / scale[worst])
     << " of its row's scale)";
-  throw SimulationError(m.str());
+  throw OperatingPointError(m.str());
 }
 
 // Pseudo-transient continuation: implicit-Euler steps of M·ẋ = f with the sources frozen at
@@ -220,16 +220,24 @@ Eigen::VectorXd pseudo_transient(const Circuit& circuit, double t, Eigen::Vector
   residual(circuit, w, x.head(nc), gmin, r);
   double norm = weighted_norm(circuit, r);
   double dt = 1e-10;
+  constexpr double kLargestNodeMove = 0.5;  // V per step
+  Eigen::VectorXd limit = Eigen::VectorXd::Constant(nc, kLargestNodeMove), last_dx = Eigen::VectorXd::Zero(nc);
   for (int it = 0; it < 5000 && norm > 1e-12; ++it) {
     Eigen::MatrixXd a = w.mass.topLeftCorner(nc, nc) / dt - w.flow_slope.topLeftCorner(nc, nc);
     a.diagonal() += gmin;
     Eigen::VectorXd dx = a.partialPivLu().solve(r);
-    // Node voltages move at most 0.5 V per step: the junctions' exponentials stay tractable.
+    // Node voltages move at most 0.5 V per step: the junctions' exponentials stay tractable. A
+    // node whose step reverses its last one has that limit halved (grown back by half per step
+    // that goes on): at the 0.5 V limit a node can circle its solution for good — a pwl
+    // Darlington's output swinging between its saturation and active lines, ±0.5 V about it.
     double scale = 1.0;
     for (int i = 0; i < nc; ++i) {
-      if (circuit.is_node_row(i) && std::abs(dx[i]) > 0.5) scale = std::min(scale, 0.5 / std::abs(dx[i]));
+      if (!circuit.is_node_row(i)) continue;
+      limit[i] = dx[i] * last_dx[i] < 0.0 ? 0.5 * limit[i] : std::min(kLargestNodeMove, 1.5 * limit[i]);
+      if (std::abs(dx[i]) > limit[i]) scale = std::min(scale, limit[i] / std::abs(dx[i]));
     }
     dx *= scale;
+    last_dx = dx;
     Eigen::VectorXd x_try = x;
     x_try.head(nc) += dx;
     circuit.assemble(t, t, x_try.data(), w);
@@ -310,7 +318,7 @@ CircuitState solve_operating_point(const Circuit& circuit, const CircuitState& g
     try {
       return without_node_conductance(circuit, solve_by_newton(circuit, start, options), options);
     } catch (const SimulationError&) {
-      throw SimulationError(std::string(newton_failed.what()) + "; a pseudo-transient continuation did not reach it either");
+      throw OperatingPointError(std::string(newton_failed.what()) + "; a pseudo-transient continuation did not reach it either");
     }
   }
 }
