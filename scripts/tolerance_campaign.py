@@ -8,9 +8,13 @@ Drivers are drawn from a seed each (so any finding is rebuilt from its seed): to
 supply 5–36 V, coil 10 Ω–3 kΩ and 1 mH–3 H (log-uniform), release at 10–60 % of the on-current,
 drive edges 1 ns–1 µs, base/gate resistors, pull-ups, every clamp kind with random parts and
 values, board stray capacitance 0–1 nF, sometimes winding capacitance and core loss, both device
-levels. Invented values. Not a test: a run of 600 drivers takes ~1.5 minutes on two cores.
+levels. With --wiring, some drivers also get the supply's wiring (source resistance and
+inductance, bulk capacitor and its ESR, a reverse-polarity diode) and a cable of 5–150 m to the
+coil, drawn from a second generator so that the drivers without them stay the same. Invented
+values. Not a test: a run of 600 drivers takes ~1.5 minutes on two cores (with --wiring, ~5).
 
     PYTHONPATH=build/python /usr/bin/python3 scripts/tolerance_campaign.py 0 600
+    PYTHONPATH=build/python /usr/bin/python3 scripts/tolerance_campaign.py --wiring 0 300
     PYTHONPATH=build/python /usr/bin/python3 scripts/tolerance_campaign.py --toml 211   # one driver as a scenario file
 """
 import argparse
@@ -32,7 +36,7 @@ TVS = ["tvs_400w_15v", "tvs_400w_24v", "tvs_400w_33v", "tvs_400w_47v"]
 CLAMPS = ["none", "diode", "diode_zener", "diode_resistor", "rc_across_coil", "rc_across_switch", "tvs_across_switch", "active_clamp"]
 METRICS = ["switch_voltage_peak_V", "coil_end_peak_V", "clamp_current_peak_A", "clamp_energy_J", "switch_energy_J",
            "coil_resistance_energy_J", "release_time_s", "current_decay_time_10pct_s", "switch_off_delay_s",
-           "coil_current_at_switch_off_A", "switch_breakdown_energy_J"]
+           "coil_current_at_switch_off_A", "switch_breakdown_energy_J", "supply_rail_peak_rise_V", "cable_energy_J"]
 TIGHT = {"relative_tolerance": 1e-9, "voltage_tolerance": "1 nV", "current_tolerance": "1 pA"}
 BAR = 1e-3
 
@@ -41,7 +45,7 @@ def log_uniform(r, a, b):
     return math.exp(r.uniform(math.log(a), math.log(b)))
 
 
-def driver(seed):
+def driver(seed, wiring=False):
     """The scenario (as a dict of the file's schema) of one seed."""
     r = random.Random(seed)
     topology = r.choice(list(SWITCHES))
@@ -74,11 +78,22 @@ def driver(seed):
         d["coil"]["core_loss_resistance"] = "%g ohm" % log_uniform(r, 100 * ohms, 1e5 * ohms)
     if r.random() < 0.2:
         d["coil"]["winding_capacitance"] = "%g F" % log_uniform(r, 1e-12, 1e-9)
+    if wiring:
+        w = random.Random(seed + 1_000_000)
+        if w.random() < 0.5:
+            d["supply"].update({"source_resistance": "%g ohm" % log_uniform(w, 0.01, 5.0),
+                                "bulk_capacitance": "%g F" % log_uniform(w, 10e-6, 2e-3), "bulk_capacitor_esr": "%g ohm" % log_uniform(w, 0.005, 0.5)})
+            if w.random() < 0.5:
+                d["supply"]["source_inductance"] = "%g H" % log_uniform(w, 0.1e-6, 20e-6)
+            if w.random() < 0.5:
+                d["supply"]["reverse_polarity_diode_part"] = w.choice(DIODES)
+        if w.random() < 0.5:
+            d["cable"] = {"length": "%g m" % log_uniform(w, 5.0, 150.0)}
     return d
 
 
-def run_both(seed):
-    d = driver(seed)
+def run_both(seed, wiring=False):
+    d = driver(seed, wiring)
     out = {"seed": seed, "clamp": d["clamp"]["kind"], "topology": d["switch"]["topology"], "level": d["analysis"]["device_models"]}
     for tag, extra in (("default", {}), ("tight", TIGHT)):
         dd = json.loads(json.dumps(d))
@@ -94,7 +109,8 @@ def run_both(seed):
 def worst_difference(default, tight):
     """The metric that differs most, relative to the tight value (with a floor per unit: 1 mV,
     1 µA, a millionth of the run's energies, 1 ns), and that difference."""
-    energy = sum(abs(tight[k] or 0.0) for k in ("clamp_energy_J", "switch_energy_J", "coil_resistance_energy_J"))
+    energy = sum(abs(tight[k]) for k in ("clamp_energy_J", "switch_energy_J", "coil_resistance_energy_J")
+                 if tight[k] is not None and math.isfinite(tight[k]))
     worst = (0.0, "")
     for k, vt in tight.items():
         vd = default.get(k)
@@ -104,7 +120,7 @@ def worst_difference(default, tight):
             if math.isnan(vt) != math.isnan(vd):
                 worst = max(worst, (math.inf, k))
             continue
-        floor = 1e-3 if k.endswith("_V") else 1e-6 if k.endswith("_A") else 1e-6 * energy if k.endswith("_J") else 1e-9
+        floor = 1e-3 if k.endswith("_V") else 1e-6 if k.endswith("_A") else max(1e-6 * energy, 1e-15) if k.endswith("_J") else 1e-9
         worst = max(worst, (abs(vd - vt) / max(abs(vt), floor), k))
     return worst
 
@@ -115,13 +131,14 @@ def main():
     p.add_argument("last", type=int, nargs="?", default=600)
     p.add_argument("--toml", type=int, metavar="SEED", help="print the scenario file of one seed and stop")
     p.add_argument("--workers", type=int, default=2)
+    p.add_argument("--wiring", action="store_true", help="supply wiring and cables too")
     a = p.parse_args()
     if a.toml is not None:
-        print(toml_text.to_toml(driver(a.toml)))
+        print(toml_text.to_toml(driver(a.toml, a.wiring)))
         return 0
     over, errors, count = [], [], 0
     with ProcessPoolExecutor(a.workers) as ex:
-        for o in ex.map(run_both, range(a.first, a.last)):
+        for o in ex.map(run_both, range(a.first, a.last), [a.wiring] * (a.last - a.first)):
             count += 1
             if "error" in o["default"] or "error" in o["tight"]:
                 errors.append(o)
