@@ -42,8 +42,8 @@ GoldenBracket golden_section(double a, double b, double tol, S&& s, double enoug
 }  // namespace
 
 EventLocator::EventLocator(const std::vector<EventSpec>& specs, int state_size,
-                           double time_tolerance_s)
-    : specs_(specs), tol_(time_tolerance_s) {
+                           double time_tolerance_s, double dense_agreement)
+    : specs_(specs), tol_(time_tolerance_s), dense_agreement_(dense_agreement) {
   for (auto& s : samples_) {
     s.x.resize(static_cast<std::size_t>(state_size));
     s.rate.resize(static_cast<std::size_t>(state_size));
@@ -131,7 +131,7 @@ void EventLocator::refine_extremum(std::size_t k, double a, double b, const Kept
   double t = search(step.dense), v = value(t, step.dense);
   if (step.exact) {
     const double v_exact = value(t, step.exact);
-    if (step.finer && std::abs(v_exact - v) > kDenseAgreement * std::max(std::abs(v_exact), std::abs(v))) {
+    if (step.finer && std::abs(v_exact - v) > dense_agreement_ * std::max(std::abs(v_exact), std::abs(v))) {
       t = search(step.finer(a, b));
       v = value(t, step.exact);
     } else {

@@ -9,7 +9,8 @@
 // replaces the sampled one (the kept interpolant may be more exact than the sampling one). Where
 // the kept step can also give the states at one instant integrated from its start (`exact`), the
 // refined extremum's value is read there; where that differs from the dense output's by more than
-// kDenseAgreement of it, the search is done again on the step in short sub-steps (`finer`); and
+// the run's accuracy (dense_agreement), the search is done again on the step in short sub-steps
+// (`finer`); and
 // an accepted point that beats the refined value keeps the extremum:
 // a dense output may bulge between its ends by more than the step's error (a fast transient that
 // decayed inside the step), and a probe through a steep piece of a pwl curve multiplies that (a
@@ -41,7 +42,10 @@ class EventLocator {
   };
   using KeepInterpolant = std::function<KeptStep()>;
 
-  EventLocator(const std::vector<EventSpec>& specs, int state_size, double time_tolerance_s);
+  // `dense_agreement`: how far (relative) a refined extremum's exact value may lie from its dense
+  // output's before the search is done again in short sub-steps (the run's own accuracy: the
+  // transient passes ten times its relative tolerance).
+  EventLocator(const std::vector<EventSpec>& specs, int state_size, double time_tolerance_s, double dense_agreement = 1e-5);
   // Seeds the extrema with the initial point (states and their rates).
   void start(double t_s, const double* x, const double* rates);
   // Inspects one accepted step, given the states and rates at both ends. Returns the earliest
@@ -63,8 +67,7 @@ class EventLocator {
     bool rates_valid = false;
     std::vector<double> x, rate;
   };
-  static constexpr int kSamplesKept = 4;
-  static constexpr double kDenseAgreement = 1e-5;  // the ends and three interior instants of one step
+  static constexpr int kSamplesKept = 4;  // the ends and three interior instants of one step
   Sample samples_[kSamplesKept];
   int next_sample_ = 0;
   void forget_samples();
@@ -75,7 +78,7 @@ class EventLocator {
   };
   std::vector<Kept> kept_;
   std::vector<EventOutcome> best_point_;       // per extremum: the best value at an accepted point
-  double tol_;
+  double tol_, dense_agreement_;
   double probe_at_start(std::size_t k, double t0, const double* x0, const double* r0);
   double probe_at_end(std::size_t k, double t1, const double* x1, const double* r1);
   // At the end of the part of a step looked at: the accepted point, or (x1 null: the run

@@ -32,7 +32,7 @@ class InsideStep {
   EventLocator::Interpolant finer(const DenseStep& d, const std::vector<unsigned char>& pieces, double a, double b);
 
   static constexpr int kAttempts = 200;
-  static constexpr int kFinerSubSteps = 16;
+  static constexpr int kFinerSubSteps = 8;
 
  private:
   OdeSystem& sys_;

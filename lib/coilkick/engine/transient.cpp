@@ -39,6 +39,9 @@ constexpr double kPieceChangeAtStart = 1e-6;
 // same from start to end of this many accepted steps in a row (the slide is over: an active
 // clamp's onset, whose end, milliseconds later, is a change to locate again).
 constexpr int kStepsToHoldAgain = 3;
+// A refined extremum is searched again in short sub-steps where its exact value and its dense
+// output's differ by more than this many relative tolerances (event_locator.hpp).
+constexpr double kDenseAgreementOfTolerance = 10.0;
 
 
 void check_options(const TransientOptions& o, double t0) {
@@ -108,7 +111,7 @@ class TransientRun {
         w_(circuit.make_workspace()),
         sys_{circuit, w_, stats_, initial.time_s, {}, std::numeric_limits<double>::quiet_NaN(), {}, {}, {}, {}},
         stepper_(make_rosenbrock_step(options.step_method, static_cast<int>(n_), circuit.circuit_state_count())),
-        locator_(events, static_cast<int>(n_), options.event_time_tolerance_s),
+        locator_(events, static_cast<int>(n_), options.event_time_tolerance_s, kDenseAgreementOfTolerance * options.relative_tolerance),
         x_(initial.values),
         x_new_(n_),
         x_err_(n_),
