@@ -228,10 +228,11 @@ void EventLocator::on_extremum(std::size_t k, double t0, const double* x0, const
   ts[n - 1] = t1;
   vs[0] = a == t0 ? probe_at_start(k, t0, x0, r0) : probe_at(e, a, f);
   vs[n - 1] = probe_at_step_end(k, t1, x1, r1, f);
-  // The ends are accepted points (the start only where the step starts at or after the event's
-  // start time): their values are as exact as the states.
+  // The ends that are accepted points (the start where the step starts at or after the event's
+  // start time, the end unless the run stops inside the step): their values are as exact as the
+  // states.
   if (a == t0 && better(e.kind, vs[0], best_point_[k].value)) best_point_[k] = {e.name, t0, vs[0]};
-  if (better(e.kind, vs[n - 1], best_point_[k].value)) best_point_[k] = {e.name, t1, vs[n - 1]};
+  if (x1 && better(e.kind, vs[n - 1], best_point_[k].value)) best_point_[k] = {e.name, t1, vs[n - 1]};
   // Once an extremum is known, a step whose two ends both lie more than 10 % of it on the far
   // side cannot hold a better one: the step's error control keeps the states (and so a probe of
   // them) from swinging that far inside one step and back. Skip it without sampling — probes
