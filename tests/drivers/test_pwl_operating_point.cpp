@@ -1,3 +1,5 @@
+// pwl drivers at their edges: DC points that Newton does not find from the cold guess, and a
+// run that fails saying where to turn.
 // DC points of pwl drivers that Newton does not find from the cold guess. Newton on
 // piecewise-linear devices can circle between pieces: four Darlington drivers of a random
 // campaign (scripts/tolerance_campaign.py, seeds 80, 98, 234, 393; invented values) ended in
@@ -10,6 +12,7 @@
 #include <cmath>
 #include <string>
 
+#include "coilkick/engine/errors.hpp"
 #include "driver_fixture.hpp"
 
 using namespace coilkick;
@@ -73,4 +76,42 @@ TEST_CASE("pwl Darlington drivers whose DC point Newton alone did not find: solv
     // The DC points alone take the same way.
     CHECK_NOTHROW(drivers::solve_operating_points(pwl, test_support::catalogue()));
   }
+}
+
+TEST_CASE("a pwl run that fails says that the physical level has smooth curves, and that level runs it") {
+  // A pwl active clamp on a Darlington (the campaign's seed 23, invented values): its Zener and
+  // two base junctions switch pieces at picoseconds until the step falls below its minimum, an
+  // error at the pwl level (README, "Edges, by random drivers"). The message must say where to
+  // turn, and the turn must work: the same driver at the physical level runs, its switch
+  // clamped above the supply (its active clamp's Zener, common practice). (Once the pwl level
+  // runs such a loop, this case is to check that it does.)
+  auto s = test_support::relay_case(false);
+  s.analysis = drivers::AnalysisSpec{};
+  s.analysis.model_level = devices::ModelLevel::pwl;
+  s.supply.voltage_V = 5.0;
+  s.drive.high_level_V = 5.0;
+  s.drive.fall_time_s = 2.46e-9;
+  s.drive.rise_time_s = 3.77e-9;
+  s.drive.switch_off_at_s = 1e-3;
+  s.coil.resistance_at_20C_ohm = 11.023;
+  s.coil.inductance_H = 11.657e-3;
+  s.coil.release_current_A = 0.1462;
+  s.switch_.topology = drivers::Topology::low_side_darlington;
+  s.switch_.part = "darlington_npn_100v";
+  s.switch_.base_resistor_ohm = 670.0;
+  s.switch_.board_stray_capacitance_F = 0.0;
+  s.clamp.kind = drivers::ClampKind::active_clamp;
+  s.clamp.active_clamp_zener_part = "zener_500mw_33v";
+  s.clamp.diode_part = "rectifier_1a";
+  std::string message;
+  try {
+    drivers::simulate_switch_off(s, test_support::catalogue());
+  } catch (const engine::SimulationError& e) {
+    message = e.what();
+  }
+  CAPTURE(message);
+  CHECK(message.find("analysis.device_models = \"physical\"") != std::string::npos);
+  s.analysis.model_level = devices::ModelLevel::physical;
+  const auto physical = drivers::simulate_switch_off(s, test_support::catalogue()).metrics;
+  CHECK(physical.get("switch_voltage_peak_V") > s.supply.voltage_V);
 }

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <string>
 
 #include "coilkick/drivers/off_state.hpp"
 #include "coilkick/drivers/on_state.hpp"
@@ -47,16 +48,30 @@ OperatingPoints pwl_points_from_physical(const DriverSpec& spec, const BuiltDriv
 
 bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == devices::ModelLevel::pwl; }
 
+// A pwl run that fails says where to turn: at the pwl level a fast loop through a clamp (an active
+// clamp's Zener into a Darlington's base) can switch pieces at picoseconds without end, where the
+// physical curves are smooth.
+[[noreturn]] void rethrow_with_level_hint(const engine::SimulationError& e) {
+  throw engine::SimulationError(std::string(e.what()) +
+                                " (at the pwl device level, whose piecewise-linear curves a fast loop can switch between without end; "
+                                "the physical level, analysis.device_models = \"physical\", has smooth ones)");
+}
+
 }  // namespace
 
 SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Catalogue& parts, const OperatingPoints* starts) {
   const BuiltDriver b = build_driver_network(spec, parts);
-  if (starts || !is_pwl(spec)) return simulate_switch_off(spec, b, starts);
+  if (!is_pwl(spec)) return simulate_switch_off(spec, b, starts);
   try {
-    return simulate_switch_off(spec, b, nullptr);
-  } catch (const engine::OperatingPointError& failure) {
-    const OperatingPoints from_physical = pwl_points_from_physical(spec, b, parts, failure);
-    return simulate_switch_off(spec, b, &from_physical);
+    if (starts) return simulate_switch_off(spec, b, starts);
+    try {
+      return simulate_switch_off(spec, b, nullptr);
+    } catch (const engine::OperatingPointError& failure) {
+      const OperatingPoints from_physical = pwl_points_from_physical(spec, b, parts, failure);
+      return simulate_switch_off(spec, b, &from_physical);
+    }
+  } catch (const engine::SimulationError& e) {
+    rethrow_with_level_hint(e);
   }
 }
 
