@@ -10,11 +10,10 @@
 // the kept step can also give the states at one instant integrated from its start (`exact`), the
 // refined extremum's value is read there; where that differs from the dense output's by more than
 // the run's accuracy (dense_agreement), the search is done again on the step in short sub-steps
-// (`finer`); and
-// an accepted point that beats the refined value keeps the extremum:
-// a dense output may bulge between its ends by more than the step's error (a fast transient that
-// decayed inside the step), and a probe through a steep piece of a pwl curve multiplies that (a
-// clamp diode's current, 1.3 % high on a 19 mA peak before this). A crossing that enters and
+// (`finer`); and an accepted point that beats the refined value keeps the extremum: a dense
+// output may bulge between its ends by more than the step's error (a fast transient that decayed
+// inside the step), and a probe through a steep piece of a pwl curve multiplies that (a clamp
+// diode's current, 1.3 % high on a 19 mA peak before this). A crossing that enters and
 // leaves within one step is not seen (steps are short against the features of interest). Every
 // probe value at a step's end is reused as the next step's start.
 #include <functional>

@@ -43,7 +43,6 @@ constexpr int kStepsToHoldAgain = 3;
 // output's differ by more than this many relative tolerances (event_locator.hpp).
 constexpr double kDenseAgreementOfTolerance = 10.0;
 
-
 void check_options(const TransientOptions& o, double t0) {
   auto bad = [](const char* field, const char* rule, double v) {
     std::ostringstream m;
@@ -386,6 +385,9 @@ class TransientRun {
     dt_ = control_.after_rejection(dt_, e);
   }
 
+  // The pieces the last attempt's stages saw; empty where none were held (decided at every stage).
+  std::vector<unsigned char> pieces_of_attempt() const { return attempt_held_ ? start_pieces_ : std::vector<unsigned char>{}; }
+
   // The last attempt's dense output, from (t0, x_) to (t1, x_new_).
   void dense_of_attempt(double t0, double t1) {
     dense_.t0 = t0;
@@ -417,8 +419,7 @@ class TransientRun {
         if (ro) sys->stage_rates(tq, xo, ro);
       };
       if (!circuit_.has_history()) {
-        // The pieces the step's stages saw (none held: decided at every stage).
-        auto pieces = std::make_shared<const std::vector<unsigned char>>(attempt_held_ ? start_pieces_ : std::vector<unsigned char>{});
+        auto pieces = std::make_shared<const std::vector<unsigned char>>(pieces_of_attempt());
         InsideStep* inside = &inside_;
         kept.exact = [inside, d, pieces](double tq, double* xo, double* ro) { inside->state_at(*d, *pieces, tq, xo, ro); };
         kept.finer = [inside, d, pieces](double a, double b) { return inside->finer(*d, *pieces, a, b); };
@@ -442,7 +443,7 @@ class TransientRun {
       // The run's last point, integrated to the stop from the step's start (its dense output may
       // bulge inside the step; inside_step.hpp); record() evaluates the rates there.
       if (circuit_.has_history()) dense_.at(stop_at, x_.data(), nullptr);
-      else inside_.state_at(dense_, attempt_held_ ? start_pieces_ : std::vector<unsigned char>{}, stop_at, x_.data(), nullptr);
+      else inside_.state_at(dense_, pieces_of_attempt(), stop_at, x_.data(), nullptr);
       t_ = stop_at;
       record();
       return true;

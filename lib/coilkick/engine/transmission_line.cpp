@@ -114,7 +114,7 @@ void TransmissionLine::load(const ElementContext& ctx, Stamper& out) const {
       // cable's high-frequency loss alone, the low-pass of time constant τ_hf on a wave that
       // changes slowly over the delay: (τ_hf·ẇ)²/(4·Z0), with τ·ẇ ≈ u (the lead and the lag add
       // up to the delay). Charging u²/(4·Z0) instead — the lag's share as if it were a lossy
-      // low-pass — heated a cable ringing at 770 Hz 10 % too much.
+      // low-pass — heated a cable whose coil rang at ~900 Hz 11 % too much (docs/derivations.md).
       const double share = p_.high_frequency_loss_time_s / p_.delay_s, qq = q * share * share;
       out.add_power(0, qq * u * u);
       out.add_power_slope(0, op, 2.0 * qq * u * (1.0 + k));
