@@ -10,11 +10,17 @@ drive edges 1 ns–1 µs, base/gate resistors, pull-ups, every clamp kind with r
 values, board stray capacitance 0–1 nF, sometimes winding capacitance and core loss, both device
 levels. With --wiring, some drivers also get the supply's wiring (source resistance and
 inductance, bulk capacitor and its ESR, a reverse-polarity diode) and a cable of 5–150 m to the
-coil, drawn from a second generator so that the drivers without them stay the same. Invented
-values. Not a test: a run of 600 drivers takes ~1.5 minutes on two cores (with --wiring, ~5).
+coil, drawn from a second generator so that the drivers without them stay the same. With --extras,
+drawn from a third: further channels on the same board (their own coils, parts and edges, a
+common clamp pin with a shared Zener or TVS), the armature model (data-sheet times and voltages
+of a random relay or valve) or a PWM hold (pull-in by time or current, duty or average current);
+every channel's metrics and the armature's and hold's are compared too. Invented values. Not a
+test: a run of 600 drivers takes ~1.5 minutes on two cores (with --wiring, ~5; with --extras,
+the armature's calibration makes it ~15).
 
     PYTHONPATH=build/python /usr/bin/python3 scripts/tolerance_campaign.py 0 600
     PYTHONPATH=build/python /usr/bin/python3 scripts/tolerance_campaign.py --wiring 0 300
+    PYTHONPATH=build/python /usr/bin/python3 scripts/tolerance_campaign.py --extras 0 300
     PYTHONPATH=build/python /usr/bin/python3 scripts/tolerance_campaign.py --toml 211   # one driver as a scenario file
 """
 import argparse
@@ -37,6 +43,9 @@ CLAMPS = ["none", "diode", "diode_zener", "diode_resistor", "rc_across_coil", "r
 METRICS = ["switch_voltage_peak_V", "coil_end_peak_V", "clamp_current_peak_A", "clamp_energy_J", "switch_energy_J",
            "coil_resistance_energy_J", "release_time_s", "current_decay_time_10pct_s", "switch_off_delay_s",
            "coil_current_at_switch_off_A", "switch_breakdown_energy_J", "supply_rail_peak_rise_V", "cable_energy_J"]
+BOARD_METRICS = ["common_clamp_energy_J", "common_clamp_current_peak_A", "contact_open_time_s", "operate_time_s",
+                 "armature_speed_at_contact_open_m_per_s", "hold_average_current_A", "hold_ripple_A", "hold_minimum_current_A",
+                 "hold_clamp_energy_per_period_J", "hold_duty", "hold_pull_in_time_s"]
 TIGHT = {"relative_tolerance": 1e-9, "voltage_tolerance": "1 nV", "current_tolerance": "1 pA"}
 BAR = 1e-3
 
@@ -92,15 +101,67 @@ def driver(seed, wiring=False):
     return d
 
 
-def run_both(seed, wiring=False):
+def add_extras(d, seed):
+    """Further channels, the armature model or a PWM hold, from a third generator."""
+    x = random.Random(seed + 2_000_000)
+    kind = x.choice(["channels", "channels", "armature", "hold"])
+    volts = float(d["supply"]["voltage"].split()[0])
+    ohms = float(d["coil"]["resistance"].split()[0])
+    henries = float(d["coil"]["inductance"].split()[0])
+    if kind == "channels":
+        if x.random() < 0.4 and d["switch"]["topology"].startswith("low_side"):
+            d["clamp"]["kind"] = "common_pin"
+            d["common_clamp"] = {"zener_part": x.choice(ZENERS + TVS)}
+        d["channel"] = []
+        for k in range(x.choice([1, 1, 2, 3])):
+            c = {"name": "ch%d" % (k + 2)}
+            if x.random() < 0.7:
+                o, h = log_uniform(x, 10, 3000), log_uniform(x, 1e-3, 3.0)
+                c["coil"] = {"resistance": "%g ohm" % o, "inductance": "%g H" % h,
+                             "release_current": "%g A" % (x.uniform(0.1, 0.6) * volts / o)}
+            if x.random() < 0.5:
+                number, unit = d["drive"]["switch_off_at"].split()
+                edge = float(number) * {"s": 1.0, "ms": 1e-3}[unit]
+                c["drive"] = {"switch_off_at": "%g s" % (edge * (1 + x.choice([0, 1e-6, 1e-3, 0.1])))}
+            d["channel"].append(c)
+    elif kind == "armature":
+        operate = x.uniform(0.5, 0.8) * volts
+        d["coil"].pop("release_current", None)
+        d["coil"]["release_voltage"] = "%g V" % (x.uniform(0.05, 0.3) * volts)
+        d["coil"]["operate_voltage"] = "%g V" % operate
+        tau = henries / ohms
+        d["relay"] = {"armature_model": True, "nominal_voltage": "%g V" % volts,
+                      "operate_time": "%g s" % (x.uniform(1.0, 3.0) * tau + 1e-3),
+                      "release_time": "%g s" % (x.uniform(0.2, 1.0) * tau + 5e-4)}
+        d["coil"].setdefault("core_loss_resistance", "%g ohm" % log_uniform(x, 100 * ohms, 1e4 * ohms))
+    else:
+        h = {"pwm_frequency": "%g Hz" % log_uniform(x, 1e3, 50e3)}
+        h.update({"pull_in_time": "%g s" % (x.uniform(2, 5) * henries / ohms)} if x.random() < 0.5
+                 else {"pull_in_current": "%g A" % (x.uniform(0.5, 0.9) * volts / ohms)})
+        h.update({"pwm_duty": "%g" % x.uniform(0.2, 0.8)} if x.random() < 0.5
+                 else {"average_current": "%g A" % (x.uniform(0.2, 0.7) * volts / ohms)})
+        d["hold"] = h
+    return d
+
+
+def metric_names(d):
+    names = METRICS + BOARD_METRICS
+    for c in d.get("channel", []):
+        names = names + ["%s.%s" % (c["name"], k) for k in METRICS]
+    return names
+
+
+def run_both(seed, wiring=False, extras=False):
     d = driver(seed, wiring)
+    if extras:
+        d = add_extras(d, seed)
     out = {"seed": seed, "clamp": d["clamp"]["kind"], "topology": d["switch"]["topology"], "level": d["analysis"]["device_models"]}
     for tag, extra in (("default", {}), ("tight", TIGHT)):
         dd = json.loads(json.dumps(d))
         dd["analysis"].update(extra)
         try:
             m = coilkick.run(coilkick.scenario_from_dict(dd)).metrics
-            out[tag] = {k: m.get(k) for k in METRICS}
+            out[tag] = {k: m.get(k) for k in metric_names(d)}
         except Exception as e:  # an error is a finding too: reported, not raised
             out[tag] = {"error": "%s: %s" % (type(e).__name__, str(e)[:300])}
     return out
@@ -132,13 +193,16 @@ def main():
     p.add_argument("--toml", type=int, metavar="SEED", help="print the scenario file of one seed and stop")
     p.add_argument("--workers", type=int, default=2)
     p.add_argument("--wiring", action="store_true", help="supply wiring and cables too")
+    p.add_argument("--extras", action="store_true", help="further channels, the armature model or a PWM hold too")
     a = p.parse_args()
     if a.toml is not None:
-        print(toml_text.to_toml(driver(a.toml, a.wiring)))
+        d = driver(a.toml, a.wiring)
+        print(toml_text.to_toml(add_extras(d, a.toml) if a.extras else d))
         return 0
     over, errors, count = [], [], 0
     with ProcessPoolExecutor(a.workers) as ex:
-        for o in ex.map(run_both, range(a.first, a.last), [a.wiring] * (a.last - a.first)):
+        for o in ex.map(run_both, range(a.first, a.last), [a.wiring] * (a.last - a.first),
+                                [a.extras] * (a.last - a.first)):
             count += 1
             if "error" in o["default"] or "error" in o["tight"]:
                 errors.append(o)

@@ -141,3 +141,23 @@ TEST_CASE("armature driver: a coil inductance off the data sheet's scales the ma
   const auto rb = drivers::simulate_switch_off(more, b);
   CHECK(rb.metrics.get("release_time_s") > 1.05 * ra.metrics.get("release_time_s"));
 }
+
+TEST_CASE("armature driver: a driver that never pulls the relay in is told so, by name, not as a solver failure") {
+  // 1 MΩ of base resistor leaves the NPN a few µA of base current, so the coil gets about a
+  // milliampere, well under its release current: no closed armature exists to open (the DC
+  // Newton had ended in "did not converge" on the armature's velocity row). The current the
+  // message names as needed is the release current by the data sheet's release voltage over the
+  // coil's resistance (IEC 61810-1, 3.4 "release voltage": at it the armature drops out; the
+  // calibration sets the spring by that force balance), 1.8 V / 320 Ω = 5.63 mA.
+  auto s = armature_case(drivers::ClampKind::diode);
+  s.switch_.base_resistor_ohm = 1e6;
+  std::string message;
+  try {
+    drivers::simulate_switch_off(s, test_support::catalogue());
+  } catch (const std::invalid_argument& e) {
+    message = e.what();
+  }
+  CAPTURE(message);
+  CHECK(message.find("relay.armature_model: the on-state current of 'coil'") == 0);
+  CHECK(message.find("does not hold its armature closed (that needs 5.63 mA)") != std::string::npos);
+}

@@ -6,6 +6,7 @@
 #include <stdexcept>
 
 #include "coilkick/drivers/copper.hpp"
+#include "coilkick/drivers/si_format.hpp"
 #include "coilkick/engine/closest_name.hpp"
 #include "coilkick/engine/parameter_check.hpp"
 
@@ -95,7 +96,7 @@ void check_hold(const DriverSpec& s) {
   }
   if (h.pwm_frequency_Hz > 10e6) {
     throw std::invalid_argument("hold: pwm_frequency_Hz must be at most 10 MHz (far outside a coil driver), got " +
-                                std::to_string(h.pwm_frequency_Hz));
+                                format_si(h.pwm_frequency_Hz, "Hz"));
   }
   if (std::isnan(h.pull_in_time_s) == std::isnan(h.pull_in_current_A)) {
     throw std::invalid_argument("hold: give pull_in_time_s or pull_in_current_A (one of them)");
@@ -109,7 +110,7 @@ void check_hold(const DriverSpec& s) {
     engine::require_positive("hold", "pull_in_current_A", h.pull_in_current_A);
     if (!(h.pull_in_current_A < i_full)) {
       throw std::invalid_argument("hold: pull_in_current_A must be below the full-drive current (supply over hot coil resistance, " +
-                                  std::to_string(i_full) + " A), got " + std::to_string(h.pull_in_current_A));
+                                  format_si(i_full, "A") + "), got " + format_si(h.pull_in_current_A, "A"));
     }
   }
   if (std::isnan(h.pwm_duty) == std::isnan(h.average_current_A)) {
@@ -123,21 +124,21 @@ void check_hold(const DriverSpec& s) {
     }
     if (std::min(h.pwm_duty, 1.0 - h.pwm_duty) * T < 2.0 * edges) {
       throw std::invalid_argument("hold: pwm_frequency_Hz is too high for the drive's edges: an on- or off-time of " +
-                                  std::to_string(std::min(h.pwm_duty, 1.0 - h.pwm_duty) * T) +
-                                  " s is shorter than twice the rise and fall time (" + std::to_string(2.0 * edges) + " s)");
+                                  format_si(std::min(h.pwm_duty, 1.0 - h.pwm_duty) * T, "s") +
+                                  " is shorter than twice the rise and fall time (" + format_si(2.0 * edges, "s") + ")");
     }
   } else {
     engine::require_positive("hold", "average_current_A", h.average_current_A);
     if (T < 8.0 * edges) {
-      throw std::invalid_argument("hold: pwm_frequency_Hz is too high for the drive's edges: a period of " + std::to_string(T) +
-                                  " s leaves no room for duties beside rise and fall times of " + std::to_string(edges) + " s");
+      throw std::invalid_argument("hold: pwm_frequency_Hz is too high for the drive's edges: a period of " + format_si(T, "s") +
+                                  " leaves no room for duties beside rise and fall times of " + format_si(edges, "s"));
     }
     const double ceiling = std::isnan(h.pull_in_current_A) ? i_full : h.pull_in_current_A;
     if (!(h.average_current_A < ceiling)) {
       throw std::invalid_argument(std::string("hold: average_current_A must be below the ") +
                                   (std::isnan(h.pull_in_current_A) ? "full-drive current (supply over hot coil resistance, "
                                                                    : "pull-in current (") +
-                                  std::to_string(ceiling) + " A), got " + std::to_string(h.average_current_A));
+                                  format_si(ceiling, "A") + "), got " + format_si(h.average_current_A, "A"));
     }
   }
 }
@@ -156,7 +157,7 @@ void check_repeat(const DriverSpec& s) {
   const double edges = 2.0 * (s.drive.rise_time_s + s.drive.fall_time_s);
   if (!(r.on_time_s >= edges) || !(r.period_s - r.on_time_s >= edges)) {
     throw std::invalid_argument("repeat: on_time_s must leave the on- and off-times at least twice the drive's rise and fall time (" +
-                                std::to_string(edges) + " s) inside period_s");
+                                format_si(edges, "s") + ") inside period_s");
   }
   if (r.count < 1 || r.count > kMostRepeatCount) {
     throw std::invalid_argument("repeat: count must be 1 to " + std::to_string(kMostRepeatCount) + ", got " + std::to_string(r.count));

@@ -125,7 +125,8 @@ FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::stri
       if (ch.kind == engine::PowerChannelSpec::Kind::dissipated) heat[ch.element] += w.rate[c.circuit_state_count() + static_cast<int>(k)];
     }
     for (const auto& [n, p] : heat) fc.on_state_heat_W.emplace_back(n, p);
-    if (run_switch_off && std::abs(fc.coil_current_on_A) > 1e-6) {
+    // A relay the faulty driver never operates has no contacts to open: no switch-off run.
+    if (run_switch_off && std::abs(fc.coil_current_on_A) > 1e-6 && !relay::armature_not_held(dc, c, on)) {
       // A fault that keeps the coil energised: the DC points just solved start the run's own
       // (where the circuits have one shape: no cable), so that its off point is known before the
       // run, which then runs once — not first as if the driver blocked (switch_off.cpp). Where the

@@ -5,6 +5,7 @@
 #include <limits>
 #include <sstream>
 #include <stdexcept>
+#include <string>
 
 #include "coilkick/drivers/energy_account.hpp"
 #include "coilkick/drivers/run_options.hpp"
@@ -17,7 +18,7 @@ namespace coilkick::drivers {
 namespace {
 
 const double kNaN = std::numeric_limits<double>::quiet_NaN();
-constexpr int kMostDutySteps = 12;
+constexpr int kMostDutySteps = 30;
 constexpr double kDutyCurrentTolerance = 1e-5;  // relative, on the average current
 
 // The drive network with the logic source's waveform replaced.
@@ -172,34 +173,58 @@ struct HoldSolver {
     return out.steady.state;
   }
 
-  // The duty whose steady state averages hold.average_current: secant on avg(D) − target from
-  // the resistive estimate D = target / full current, kept inside the duties the edges allow.
+  // The duty whose steady state averages hold.average_current. The average rises with the duty
+  // but far from linearly (a slow gate or base turns the switch on late in every period), so a
+  // plain secant can circle: secant steps from the resistive estimate D = target / full current
+  // until the root is bracketed, then false position with the Illinois halving on the bracket
+  // (Dahlquist & Björck, Numerical Methods, §6.2), kept inside the duties the edges allow.
   engine::CircuitState hold_for_current(const engine::CircuitState& guess) {
     const double target = hold.average_current_A;
     const double T = 1.0 / hold.pwm_frequency_Hz;
     const double edges = spec.drive.rise_time_s + spec.drive.fall_time_s;
     const double lo = 2.0 * edges / T, hi = 1.0 - 2.0 * edges / T;
     auto clamp = [&](double d) { return std::min(hi, std::max(lo, d)); };
+    // Out of reach is the description's doing (invalid_argument); not found, the solver's.
+    auto no_duty = [&](const std::string& why) {
+      std::ostringstream m;
+      m << "hold: " << why << " hold.average_current (" << format_si(target, "A") << "); the duties from " << lo
+        << " to " << hi << " allowed by the edges were searched, the last, " << out.duty << ", holds "
+        << format_si(out.average_current_A, "A");
+      return m.str();
+    };
     double d0 = clamp(target / i_full);
     engine::CircuitState x = hold_at(d0, guess);
     double f0 = out.average_current_A - target;
+    if (std::abs(f0) <= kDutyCurrentTolerance * target) return x;
+    double below = f0 < 0.0 ? d0 : kNaN, above = f0 > 0.0 ? d0 : kNaN;  // the bracket's ends
+    double f_below = f0 < 0.0 ? f0 : kNaN, f_above = f0 > 0.0 ? f0 : kNaN;
+    int kept_side = 0;  // the side that stayed in the last step (-1 below, +1 above): Illinois
     double d1 = clamp(d0 * target / std::max(out.average_current_A, 1e-12));
     for (int it = 0; it < kMostDutySteps; ++it) {
+      if (d1 == d0) throw std::invalid_argument(no_duty(f0 < 0.0 ? "even the longest duty stays below" : "even the shortest duty exceeds"));
       x = hold_at(d1, x);
       const double f1 = out.average_current_A - target;
       if (std::abs(f1) <= kDutyCurrentTolerance * target) return x;
-      const double slope = (f1 - f0) / (d1 - d0);
-      if (!(std::abs(slope) > 0.0) || !std::isfinite(slope)) break;
-      d0 = d1;
-      f0 = f1;
-      const double next = clamp(d1 - f1 / slope);
-      if (next == d1) break;  // pinned at a limit of the duty
-      d1 = next;
+      if (f1 < 0.0) {
+        below = d1, f_below = f1;
+        if (kept_side == -1) f_above *= 0.5;
+        kept_side = -1;
+      } else {
+        above = d1, f_above = f1;
+        if (kept_side == 1) f_below *= 0.5;
+        kept_side = 1;
+      }
+      double next;
+      if (std::isnan(below) || std::isnan(above)) {  // not yet bracketed: secant, to the limit at most
+        const double slope = (f1 - f0) / (d1 - d0);
+        next = std::abs(slope) > 0.0 && std::isfinite(slope) && slope > 0.0 ? clamp(d1 - f1 / slope)
+                                                                         : clamp(f1 < 0.0 ? d1 + 0.5 * (hi - d1) : d1 - 0.5 * (d1 - lo));
+      } else {
+        next = below - f_below * (above - below) / (f_above - f_below);
+      }
+      d0 = d1, f0 = f1, d1 = next;
     }
-    std::ostringstream m;
-    m << "hold: no PWM duty between " << lo << " and " << hi << " holds hold.average_current (" << format_si(target, "A")
-      << "); the last duty " << out.duty << " holds " << format_si(out.average_current_A, "A");
-    throw engine::SimulationError(m.str());
+    throw engine::SimulationError(no_duty("no duty found in " + std::to_string(kMostDutySteps) + " steps that holds"));
   }
 };
 

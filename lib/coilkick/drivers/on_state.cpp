@@ -13,8 +13,10 @@ double switch_voltage_V(const BuiltDriver& b, const engine::Circuit& c, double t
 }
 
 OnState solve_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, const engine::CircuitState* start) {
-  if (auto warm = solve_from_start(b, c, start, 0.0)) return read_on_state(spec, b, c, *warm);
-  return read_on_state(spec, b, c, relay::operating_point_with_armatures_closed(b.network, c, 0.0));
+  auto warm = solve_from_start(b, c, start, 0.0);
+  const engine::CircuitState on = warm ? *warm : relay::operating_point_with_armatures_closed(b.network, c, 0.0);
+  relay::require_armatures_closed(b.network, c, on);  // a switch-off of a relay that never operated means nothing
+  return read_on_state(spec, b, c, on);
 }
 
 OnState read_on_state(const DriverSpec& spec, const BuiltDriver& b, const engine::Circuit& c, const engine::CircuitState& state) {

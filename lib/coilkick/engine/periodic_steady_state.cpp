@@ -32,6 +32,15 @@ struct Shooter {
   Shooter(const Circuit& circuit, const TransientOptions& options, const PeriodicOptions& periodic, double start_s)
       : c(circuit), o(options), p(periodic), atol(absolute_tolerances(circuit, options)), t0(start_s) {}
 
+  // A Newton iterate far from any periodic state the circuit settles in (a node pushed past a
+  // junction's breakdown by a linear step) can make a period take millions of tiny steps: a
+  // period is given a hundred times the attempts of the first one (at least 20,000), and fails
+  // past that like any run (shooting then gives way to the periods one by one). The budget is
+  // set by the first period shot (the direct periods keep the run's own budget), and every run
+  // gets what is left of the wall-time budget.
+  static constexpr long kStepBudgetFactor = 100, kLeastStepBudget = 20'000;
+  long step_budget = o.maximum_steps;
+
   // One period from x; `steps` (if given) receives the run's step times, and `replay` (if
   // non-empty) makes the run take exactly those steps.
   Eigen::VectorXd map(const Eigen::VectorXd& x, std::vector<double>* steps = nullptr, const std::vector<double>& replay = {}) {
@@ -43,7 +52,10 @@ struct Shooter {
     run.record_waveforms = steps != nullptr;
     run.progress = nullptr;
     run.replay_step_times_s = replay;
+    run.maximum_wall_time_s = std::max(p.maximum_wall_time_s - elapsed_s(), 1e-3);
+    run.maximum_steps = std::min(run.maximum_steps, step_budget);
     const TransientResult r = simulate(c, s, run);
+    if (steps && step_budget == o.maximum_steps) step_budget = std::max(kLeastStepBudget, kStepBudgetFactor * static_cast<long>(steps->size()));
     if (steps) *steps = r.times_s();
     return r.states().row(r.states().rows() - 1).transpose().head(x.size());
   }
@@ -170,12 +182,12 @@ struct Shooter {
   }
 
   const std::chrono::steady_clock::time_point started = std::chrono::steady_clock::now();
-  bool out_of_time() const {
-    return std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count() > p.maximum_wall_time_s;
-  }
+  double elapsed_s() const { return std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count(); }
+  bool out_of_time() const { return elapsed_s() > p.maximum_wall_time_s; }
 
   bool direct(Eigen::VectorXd& x) {
     fast.clear();  // every state counts here
+    step_budget = o.maximum_steps;
     double previous_change = 0.0;
     for (long k = 0; k < p.maximum_direct_periods; ++k) {
       throw_if_interrupted();

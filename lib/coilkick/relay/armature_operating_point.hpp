@@ -6,6 +6,12 @@
 //    then frees them from that state, so the iteration starts next to the closed solution;
 //  - open: starts every armature at its open stop.
 // Networks without an armature coil get the plain operating point.
+// armature_not_held: for an on-state whose armature rests open (the driver does not energise the
+// coil enough to hold it), a message naming relay.armature_model, the coil's current and the
+// current that would hold it; require_armatures_closed throws it as std::invalid_argument.
+#include <optional>
+#include <string>
+
 #include "coilkick/engine/network.hpp"
 #include "coilkick/engine/operating_point.hpp"
 
@@ -13,6 +19,9 @@ namespace coilkick::relay {
 
 engine::CircuitState operating_point_with_armatures_closed(const engine::Network& network, const engine::Circuit& circuit,
                                                            double time_s);
+std::optional<std::string> armature_not_held(const engine::Network& network, const engine::Circuit& circuit,
+                                             const engine::CircuitState& on);
+void require_armatures_closed(const engine::Network& network, const engine::Circuit& circuit, const engine::CircuitState& on);
 engine::CircuitState operating_point_with_armatures_open(const engine::Network& network, const engine::Circuit& circuit,
                                                          double time_s);
 
