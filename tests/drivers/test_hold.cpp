@@ -305,3 +305,20 @@ TEST_CASE("hold: an average current beyond what the full drive gives is refused 
   CAPTURE(message);
   CHECK(message.find("even the longest duty stays below hold.average_current") != std::string::npos);
 }
+
+TEST_CASE("hold: a pull-in current the driver cannot reach is refused by name") {
+  // The coil's current rises towards (V − switch drop)/R (first-order rise, Nilsson & Riedel,
+  // Electric Circuits, 10th ed., ch. 7); 0.999·V/R lies above that for a MOSFET dropping tens of
+  // millivolts, so no time of full drive reaches it. A description error (invalid_argument).
+  DriverSpec s = held_valve(ClampKind::diode);
+  s.hold.pull_in_time_s = std::nan("");
+  s.hold.pull_in_current_A = 0.999 * 24.0 / (48.0 * (1 + 0.00393 * 40.0));
+  std::string message;
+  try {
+    simulate_switch_off(s, test_support::catalogue());
+  } catch (const std::invalid_argument& e) {
+    message = e.what();
+  }
+  CAPTURE(message);
+  CHECK(message.find("hold: the coil current does not reach hold.pull_in_current") == 0);
+}

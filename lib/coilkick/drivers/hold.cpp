@@ -86,7 +86,7 @@ struct HoldSolver {
       m << "hold: the coil current does not reach hold.pull_in_current (" << format_si(h.pull_in_current_A, "A") << ") within "
         << format_si(stop, "s") << " of full drive (it reaches " << format_si(r.states().bottomRows(1)(0, c.state_index("coil.current")), "A")
         << ")";
-      throw engine::SimulationError(m.str());
+      throw std::invalid_argument(m.str());  // the description asks for more than the driver gives
     }
     out.pull_in_time_s = r.end_time_s();
     const Eigen::VectorXd x = r.states().row(r.states().rows() - 1).transpose();

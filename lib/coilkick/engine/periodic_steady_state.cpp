@@ -55,7 +55,7 @@ struct Shooter {
     run.maximum_wall_time_s = std::max(p.maximum_wall_time_s - elapsed_s(), 1e-3);
     run.maximum_steps = std::min(run.maximum_steps, step_budget);
     const TransientResult r = simulate(c, s, run);
-    if (steps && step_budget == o.maximum_steps) step_budget = std::max(kLeastStepBudget, kStepBudgetFactor * static_cast<long>(steps->size()));
+    if (steps && step_budget == o.maximum_steps) step_budget = std::max(kLeastStepBudget, kStepBudgetFactor * (r.statistics().accepted_steps + r.statistics().rejected_steps));
     if (steps) *steps = r.times_s();
     return r.states().row(r.states().rows() - 1).transpose().head(x.size());
   }
@@ -201,7 +201,9 @@ struct Shooter {
       const double change = scaled_norm(next - x);
       // Distance left from the contraction ρ between periods: change·ρ/(1 − ρ).
       const double rho = previous_change > 0.0 ? change / previous_change : 1.0;
-      const double left = rho < 1.0 ? change * rho / (1.0 - rho) : HUGE_VAL;
+      // A period that maps the state onto itself bit for bit (a pwl circuit's exact fixed point)
+      // has arrived: nothing is left, whatever the last contraction was.
+      const double left = change == 0.0 ? 0.0 : rho < 1.0 ? change * rho / (1.0 - rho) : HUGE_VAL;
       x = next;
       previous_change = change;
       out.distance_in_error_scales = std::max(change, left);
