@@ -127,7 +127,9 @@ def add_extras(d, seed):
     elif kind == "armature":
         operate = x.uniform(0.5, 0.8) * volts
         d["coil"].pop("release_current", None)
-        d["coil"]["release_voltage"] = "%g V" % (x.uniform(0.05, 0.3) * volts)
+        # At least an eighth of the operate voltage: the armature's travel needs that (a lower
+        # one is refused before the run, relay_calibration.cpp).
+        d["coil"]["release_voltage"] = "%g V" % (x.uniform(0.125, 0.4) * operate)
         d["coil"]["operate_voltage"] = "%g V" % operate
         tau = henries / ohms
         d["relay"] = {"armature_model": True, "nominal_voltage": "%g V" % volts,
@@ -138,8 +140,9 @@ def add_extras(d, seed):
         h = {"pwm_frequency": "%g Hz" % log_uniform(x, 1e3, 50e3)}
         h.update({"pull_in_time": "%g s" % (x.uniform(2, 5) * henries / ohms)} if x.random() < 0.5
                  else {"pull_in_current": "%g A" % (x.uniform(0.5, 0.9) * volts / ohms)})
+        ceiling = float(h["pull_in_current"].split()[0]) if "pull_in_current" in h else volts / ohms
         h.update({"pwm_duty": "%g" % x.uniform(0.2, 0.8)} if x.random() < 0.5
-                 else {"average_current": "%g A" % (x.uniform(0.2, 0.7) * volts / ohms)})
+                 else {"average_current": "%g A" % (x.uniform(0.2, 0.8) * ceiling)})
         d["hold"] = h
     return d
 

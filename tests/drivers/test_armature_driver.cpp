@@ -147,8 +147,9 @@ TEST_CASE("armature driver: a driver that never pulls the relay in is told so, b
   // milliampere, well under its release current: no closed armature exists to open (the DC
   // Newton had ended in "did not converge" on the armature's velocity row). The current the
   // message names as needed is the release current by the data sheet's release voltage over the
-  // coil's resistance (IEC 61810-1, 3.4 "release voltage": at it the armature drops out; the
-  // calibration sets the spring by that force balance), 1.8 V / 320 Ω = 5.63 mA.
+  // coil's resistance (the release voltage as IEC 61810-1 defines it, from memory: the voltage at
+  // which the armature drops out; the calibration sets the spring by that force balance),
+  // 1.8 V / 320 Ω = 5.63 mA.
   auto s = armature_case(drivers::ClampKind::diode);
   s.switch_.base_resistor_ohm = 1e6;
   std::string message;

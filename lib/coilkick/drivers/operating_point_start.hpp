@@ -16,9 +16,10 @@ struct OperatingPoints {
 };
 
 // The DC point at time_s from `start`. Empty when there is no start, when it is of another
-// circuit's shape, when the driver has the armature model (its two stable points are found from
-// their own starts, relay/armature_operating_point.hpp), or when Newton does not converge from it
-// — the caller then solves from the cold guess, as without a start.
+// circuit's shape, when Newton does not converge from it, or when it puts an armature on the
+// other side of its make gap than the start (its two stable points are found from their own
+// starts, relay/armature_operating_point.hpp) — the caller then solves from the cold guess, as
+// without a start.
 std::optional<engine::CircuitState> solve_from_start(const BuiltDriver& b, const engine::Circuit& c,
                                                      const engine::CircuitState* start, double time_s);
 

@@ -93,8 +93,8 @@ double largest_core_gap_m(const RelayDatasheet& s) {
   const double hi = (g_open - r * kResidualGap_m) / (r - 1.0);
   if (!(hi > 0.0)) {
     std::ostringstream m;
-    m << "relay: release_voltage_V " << s.release_voltage_V << " is too low against operate_voltage_V " << s.operate_voltage_V
-      << " for the armature travel: with a " << kResidualGap_m * 1e3 << " mm residual gap and "
+    m << "relay: release_voltage_V " << s.release_voltage_V << " V is too low against operate_voltage_V " << s.operate_voltage_V
+      << " V for the armature travel: with a " << kResidualGap_m * 1e3 << " mm residual gap and "
       << g_open * 1e3 << " mm open gap the release voltage must exceed "
       << s.operate_voltage_V * std::sqrt(kForceRiseMargin) * kResidualGap_m / g_open << " V (or give a larger contact_gap_m)";
     throw std::invalid_argument(m.str());
