@@ -223,3 +223,43 @@ TEST_CASE("faults of the supply parts and of extra parts: a shorted bulk capacit
   CHECK(diode_open);
   CHECK(pulldown_open);
 }
+
+TEST_CASE("faults: a board whose supply wiring is cut reads a dead rail, not a failed simulation") {
+  // A 5 V rail through 0.3 Ω and a bulk capacitor, a TVS across the NPN switch (invented values;
+  // the random drivers of scripts/tolerance_campaign.py, --wiring seed 2). With the source
+  // resistance open the board's nodes hang on picoamperes of junction leakage; the DC Newton had
+  // crawled through its 200 iterations there (a node's 1e-17 A that no step removes, weighed
+  // against a row scale of a picoampere per volt) and the fault was listed as "could not be
+  // simulated". A dead board's rail reads about 0 V (common practice: an unpowered board), and
+  // the coil carries no more than the open wiring's leakage.
+  const auto sc = coilkick::scenario::read_scenario_text(R"(
+name = "dead rail"
+[supply]
+voltage = "5 V"
+source_resistance = "0.3 ohm"
+bulk_capacitance = "270 uF"
+bulk_capacitor_esr = "0.16 ohm"
+[drive]
+high_level = "5 V"
+switch_off_at = "0.25 s"
+[coil]
+resistance = "16.2 ohm"
+inductance = "0.8 H"
+release_current = "0.136 A"
+[switch]
+topology = "low_side_npn"
+part = "npn_medium_power_80v"
+base_resistor = "688 ohm"
+[clamp]
+kind = "tvs_across_switch"
+tvs_part = "tvs_400w_33v"
+)", "dead rail", test_support::catalogue());
+  const auto rep = analyse_faults(sc.driver, test_support::catalogue());
+  const FaultCase& f = find(rep, "supply_resistance", "open");
+  CAPTURE(f.error);
+  REQUIRE(f.error.empty());
+  CHECK(std::abs(on(f, "supply")) < 0.05);
+  CHECK(std::abs(off(f, "supply")) < 0.05);
+  CHECK(std::abs(f.coil_current_on_A) < 1e-9);
+  CHECK(has(f, "relay never operates"));
+}

@@ -1,5 +1,6 @@
 #include "coilkick/engine/operating_point.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <sstream>
 
@@ -64,6 +65,22 @@ double relative_norm(const Eigen::VectorXd& r, const Eigen::VectorXd& scale) { r
 // improve on that, every evaluation is that noisy.
 bool residual_at_round_off(const Eigen::VectorXd& r, const Eigen::VectorXd& scale) {
   return r.cwiseQuotient(scale).cwiseAbs().maxCoeff() <= 1e-11;
+}
+
+// A Newton iteration that reduces the residual by less than 1 % ten times in a row has stalled.
+constexpr double kStalledReduction = 1e-2;
+constexpr int kStalledIterations = 10;
+
+// Nothing left to balance: node rows within a thousandth of the current tolerance (femtoamperes
+// by default) or 1e-8 of their row's scale (what the row changes by when its states move by 1e-8
+// of their size), every other row at its round-off.
+bool negligible_residual(const Circuit& c, const Eigen::VectorXd& r, const Eigen::VectorXd& scale, const OperatingPointOptions& o) {
+  for (int i = 0; i < r.size(); ++i) {
+    const bool ok = c.is_node_row(i) ? std::abs(r[i]) <= std::max(1e-3 * o.current_tolerance_A, 1e-8 * scale[i])
+                                     : std::abs(r[i]) <= 1e-11 * scale[i];
+    if (!ok) return false;
+  }
+  return true;
 }
 
 // The Newton step −G⁻¹·r by partial pivoting (small_lu: a third of full pivoting's work at these
@@ -140,6 +157,7 @@ CircuitState newton(const Circuit& circuit, const CircuitState& guess, const Ope
   circuit.assemble(t, t, x.data(), w);
   residual(circuit, w, x.head(nc), gmin, r);
   double norm = 0.0;  // relative to the row scales, set in each iteration
+  int stalled = 0;    // iterations in a row that reduced the residual by less than kStalledReduction
   for (int it = 0; it < options.maximum_iterations; ++it) {
     throw_if_interrupted();
     Eigen::MatrixXd g = w.flow_slope.topLeftCorner(nc, nc);
@@ -190,9 +208,21 @@ CircuitState newton(const Circuit& circuit, const CircuitState& guess, const Ope
       lambda = lambda > 1.0 ? 1.0 : 0.5 * lambda;
     }
     if (!with_slopes) circuit.assemble(t, t, x_try.data(), w);
+    stalled = norm_try > (1.0 - kStalledReduction) * norm ? stalled + 1 : 0;
     x = x_try;
     r = r_try;
     norm = norm_try;
+    // Stalled where nothing is left to balance (negligible_residual). A board whose supply is cut
+    // (a fault) has nodes held by picoamperes of junction leakage through near-singular
+    // conductances: a node keeps ~1e-17 A that no Newton step removes, the line search weighs it
+    // against a row scale of a picoampere per volt, and the step it asks for would move a
+    // floating rail by tens of millivolts — Newton crawls there for all its iterations.
+    if (stalled >= kStalledIterations && negligible_residual(circuit, r, scale, options)) {
+      CircuitState out;
+      out.time_s = t;
+      out.values = x;
+      return out;
+    }
   }
   // Name the row furthest from balance relative to its own scale.
   circuit.assemble(t, t, x.data(), w);
