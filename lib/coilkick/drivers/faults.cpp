@@ -1,6 +1,7 @@
 #include "coilkick/drivers/faults.hpp"
 
 #include <cmath>
+#include <optional>
 #include <set>
 #include <sstream>
 
@@ -97,8 +98,39 @@ std::string channel_prefix(const DriverSpec& spec, std::size_t k) { return k == 
 
 // DC readings and, where the coil carries current, the switch-off — as channel k sees them (its
 // coil's current, its metrics and checks).
+// The faulty board's DC points (drive on, and long after the drive's fall), relays operated where
+// they can be. A pwl board whose DC Newton fails from the cold guess (a pwl Darlington circling
+// between its pieces) starts from the same faulty board's points at the physical level, as
+// drivers/switch_off does for a run; `from_physical` then says so.
+OperatingPoints fault_dc_points(const engine::Network& dc, const engine::Circuit& c, double t_late, const BuiltDriver* smooth,
+                                bool& from_physical) {
+  from_physical = false;
+  try {
+    return {relay::operating_point_with_armatures_closed(dc, c, 0.0), relay::operating_point_with_armatures_closed(dc, c, t_late)};
+  } catch (const engine::OperatingPointError& failure) {
+    if (!smooth) throw;
+    const engine::Network smooth_dc = with_cables_as_cores(smooth->network);
+    const engine::Circuit sc(smooth_dc);
+    if (sc.states().size() != c.states().size()) throw failure;
+    for (std::size_t i = 0; i < c.states().size(); ++i) {
+      if (sc.states()[i].name != c.states()[i].name) throw failure;
+    }
+    OperatingPoints start;
+    try {
+      start = {relay::operating_point_with_armatures_closed(smooth_dc, sc, 0.0),
+               relay::operating_point_with_armatures_closed(smooth_dc, sc, t_late)};
+    } catch (const engine::SimulationError&) {
+      throw failure;
+    }
+    from_physical = true;
+    return {engine::solve_operating_point(c, engine::CircuitState{0.0, start.on.values}),
+            engine::solve_operating_point(c, engine::CircuitState{t_late, start.off.values})};
+  }
+}
+
+// `smooth`: the same faulty board at the physical level, for a pwl board (else null).
 FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::string& part, const std::string& fault,
-                   bool run_switch_off, std::size_t k = 0) {
+                   bool run_switch_off, std::size_t k = 0, const BuiltDriver* smooth = nullptr) {
   FaultCase fc;
   fc.part = part;
   fc.fault = fault;
@@ -107,8 +139,10 @@ FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::stri
     const engine::Network dc = with_cables_as_cores(b.network);
     const engine::Circuit c(dc);
     const double t_late = spec.drive.switch_off_at_s + spec.drive.fall_time_s + 1.0;
-    const auto on = relay::operating_point_with_armatures_closed(dc, c, 0.0);
-    const auto off = relay::operating_point_with_armatures_closed(dc, c, t_late);
+    bool from_physical = false;
+    const OperatingPoints points = fault_dc_points(dc, c, t_late, smooth, from_physical);
+    const engine::CircuitState& on = points.on;
+    const engine::CircuitState& off = points.off;
     for (const auto& n : c.node_names()) {
       if (n == "logic" || (n.size() > 6 && n.compare(n.size() - 6, 6, ".logic") == 0)) continue;  // logic outputs' internal source nodes
       fc.readings.push_back({n, c.node_voltage_V(n, 0.0, on.values.data()), c.node_voltage_V(n, t_late, off.values.data())});
@@ -130,10 +164,10 @@ FaultCase evaluate(const DriverSpec& spec, const BuiltDriver& b, const std::stri
       // A fault that keeps the coil energised: the DC points just solved start the run's own
       // (where the circuits have one shape: no cable), so that its off point is known before the
       // run, which then runs once — not first as if the driver blocked (switch_off.cpp). Where the
-      // driver blocks, the run is the plain one.
+      // driver blocks, the run is the plain one — unless only the physical level's start found the
+      // points, which the run then needs as well.
       const bool keeps_current = std::abs(fc.coil_current_off_A) >= kBlockingCurrentFraction * std::abs(fc.coil_current_on_A);
-      const OperatingPoints starts{on, off};
-      auto r = simulate_switch_off(spec, b, keeps_current ? &starts : nullptr);
+      auto r = simulate_switch_off(spec, b, keeps_current || from_physical ? &points : nullptr);
       fc.switch_off_run = true;
       fc.switch_off = k == 0 ? r.metrics : r.channels[k].metrics;
       fc.checks = k == 0 ? r.checks : r.channels[k].checks;
@@ -235,14 +269,10 @@ const std::vector<std::string>& symptom_names() {
   return n;
 }
 
-FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& parts, const std::function<void(int, int)>& progress) {
-  const BuiltDriver healthy = build_driver_network(spec, parts);
-  FaultReport rep;
-  rep.healthy = evaluate(spec, healthy, "none", "healthy", true);
-  if (!rep.healthy.error.empty()) throw engine::SimulationError("healthy driver: " + rep.healthy.error);
-  for (std::size_t k = 1; k <= spec.channels.size(); ++k) rep.healthy_channels.push_back(evaluate(spec, healthy, "none", "healthy", true, k));
-
-  std::vector<std::pair<std::pair<std::string, std::string>, BuiltDriver>> cases;
+// Every fault the analysis injects into the healthy board, in order: (part, fault) and the faulty board.
+using FaultCases = std::vector<std::pair<std::pair<std::string, std::string>, BuiltDriver>>;
+FaultCases fault_cases(const DriverSpec& spec, const BuiltDriver& healthy) {
+  FaultCases cases;
   auto add_case = [&](const std::string& part, const std::string& fault, Injector& inj) { cases.push_back({{part, fault}, inj.out}); };
   // A coil opens, or 30 % of its turns short (`shorted`: the same coil with fewer turns).
   auto coil_faults = [&](const std::string& n, std::shared_ptr<const engine::Element> shorted) {
@@ -322,15 +352,42 @@ FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& p
     low.out.network.set_source_waveform("supply", engine::Waveform::constant(kLowSupply * spec.supply.voltage_V));
     add_case("supply", "low (75 %)", low);
   }
+  return cases;
+}
+
+FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& parts, const std::function<void(int, int)>& progress) {
+  const BuiltDriver healthy = build_driver_network(spec, parts);
+  const FaultCases cases = fault_cases(spec, healthy);
+  // A pwl board's faults at the physical level, the DC starts where the pwl Newton fails.
+  std::optional<BuiltDriver> smooth_healthy;
+  FaultCases smooth_cases;
+  if (spec.analysis.model_level == devices::ModelLevel::pwl) {
+    DriverSpec smooth = spec;
+    smooth.analysis.model_level = devices::ModelLevel::physical;
+    smooth_healthy = build_driver_network(smooth, parts);
+    smooth_cases = fault_cases(smooth, *smooth_healthy);
+  }
+  const auto smooth_of = [&](std::size_t i) -> const BuiltDriver* {
+    return i < smooth_cases.size() && smooth_cases[i].first == cases[i].first ? &smooth_cases[i].second : nullptr;
+  };
+  const BuiltDriver* smooth_board = smooth_healthy ? &*smooth_healthy : nullptr;
+  FaultReport rep;
+  rep.healthy = evaluate(spec, healthy, "none", "healthy", true, 0, smooth_board);
+  if (!rep.healthy.error.empty()) throw engine::SimulationError("healthy driver: " + rep.healthy.error);
+  for (std::size_t k = 1; k <= spec.channels.size(); ++k) {
+    rep.healthy_channels.push_back(evaluate(spec, healthy, "none", "healthy", true, k, smooth_board));
+  }
+
   int done = 0;
-  for (const auto& [id, built] : cases) {
+  for (std::size_t i = 0; i < cases.size(); ++i) {
+    const auto& [id, built] = cases[i];
     if (progress) progress(done++, static_cast<int>(cases.size()));
     DriverSpec s = spec;
     if (id.first == "supply") s.supply.voltage_V *= kLowSupply;
     const std::size_t k = channel_of(spec, id.first);
     const bool coil_open = (id.first == channel_prefix(spec, k) + "coil" && id.second == "open") ||
                            (id.first == "cable" && id.second.rfind("open", 0) == 0);
-    FaultCase f = evaluate(s, built, id.first, id.second, !coil_open, k);
+    FaultCase f = evaluate(s, built, id.first, id.second, !coil_open, k, smooth_of(i));
     classify(f, rep.healthy_for(f.channel), s, built, parts);
     rep.faults.push_back(std::move(f));
   }

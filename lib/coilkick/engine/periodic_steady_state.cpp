@@ -55,7 +55,10 @@ struct Shooter {
     run.maximum_wall_time_s = std::max(p.maximum_wall_time_s - elapsed_s(), 1e-3);
     run.maximum_steps = std::min(run.maximum_steps, step_budget);
     const TransientResult r = simulate(c, s, run);
-    if (steps && step_budget == o.maximum_steps) step_budget = std::max(kLeastStepBudget, kStepBudgetFactor * (r.statistics().accepted_steps + r.statistics().rejected_steps));
+    if (steps && step_budget == o.maximum_steps) {
+      const long attempts = r.statistics().accepted_steps + r.statistics().rejected_steps;
+      step_budget = std::max(kLeastStepBudget, kStepBudgetFactor * attempts);
+    }
     if (steps) *steps = r.times_s();
     return r.states().row(r.states().rows() - 1).transpose().head(x.size());
   }
