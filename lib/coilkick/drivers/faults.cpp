@@ -10,6 +10,7 @@
 #include "coilkick/devices/mosfet.hpp"
 #include "coilkick/drivers/driver_network.hpp"
 #include "coilkick/drivers/off_state.hpp"
+#include "coilkick/drivers/operating_point_start.hpp"
 #include "coilkick/drivers/switch_off.hpp"
 #include "coilkick/engine/circuit.hpp"
 #include "coilkick/engine/errors.hpp"
@@ -111,10 +112,7 @@ OperatingPoints fault_dc_points(const engine::Network& dc, const engine::Circuit
     if (!smooth) throw;
     const engine::Network smooth_dc = with_cables_as_cores(smooth->network);
     const engine::Circuit sc(smooth_dc);
-    if (sc.states().size() != c.states().size()) throw failure;
-    for (std::size_t i = 0; i < c.states().size(); ++i) {
-      if (sc.states()[i].name != c.states()[i].name) throw failure;
-    }
+    if (!same_state_names(sc, c)) throw failure;
     OperatingPoints start;
     try {
       start = {relay::operating_point_with_armatures_closed(smooth_dc, sc, 0.0),

@@ -5,6 +5,14 @@
 
 namespace coilkick::drivers {
 
+bool same_state_names(const engine::Circuit& a, const engine::Circuit& b) {
+  if (a.states().size() != b.states().size()) return false;
+  for (std::size_t i = 0; i < a.states().size(); ++i) {
+    if (a.states()[i].name != b.states()[i].name) return false;
+  }
+  return true;
+}
+
 std::optional<engine::CircuitState> solve_from_start(const BuiltDriver& b, const engine::Circuit& c,
                                                      const engine::CircuitState* start, double time_s) {
   if (!start || start->values.size() != c.state_count()) return std::nullopt;

@@ -20,6 +20,10 @@ struct OperatingPoints {
 // other side of its make gap than the start (its two stable points are found from their own
 // starts, relay/armature_operating_point.hpp) — the caller then solves from the cold guess, as
 // without a start.
+// Whether two circuits have the same states in the same order (a point of one can start the other:
+// the same board at the two device levels).
+bool same_state_names(const engine::Circuit& a, const engine::Circuit& b);
+
 std::optional<engine::CircuitState> solve_from_start(const BuiltDriver& b, const engine::Circuit& c,
                                                      const engine::CircuitState* start, double time_s);
 

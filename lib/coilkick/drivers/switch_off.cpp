@@ -33,10 +33,7 @@ OperatingPoints pwl_points_from_physical(const DriverSpec& spec, const BuiltDriv
   smooth.analysis.model_level = devices::ModelLevel::physical;
   const BuiltDriver bs = build_driver_network(smooth, parts);
   const engine::Circuit pwl(b.network), physical(bs.network);
-  if (physical.states().size() != pwl.states().size()) throw failure;
-  for (std::size_t i = 0; i < pwl.states().size(); ++i) {
-    if (physical.states()[i].name != pwl.states()[i].name) throw failure;
-  }
+  if (!same_state_names(physical, pwl)) throw failure;
   OperatingPoints start;
   try {
     start = points_of(smooth, bs);
