@@ -1,5 +1,7 @@
 #pragma once
 // Driver descriptions shared by the driver tests.
+#include <string>
+
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/drivers/switch_off.hpp"
 
@@ -80,6 +82,18 @@ inline coilkick::drivers::DriverSpec at_tight_tolerances(coilkick::drivers::Driv
   s.analysis.voltage_tolerance_V = 1e-9;
   s.analysis.current_tolerance_A = 1e-12;
   return s;
+}
+
+// The message of the exception of type E that a switch-off of `s` throws; empty if it throws
+// none (another type propagates).
+template <class E>
+std::string switch_off_error(const coilkick::drivers::DriverSpec& s) {
+  try {
+    coilkick::drivers::simulate_switch_off(s, catalogue());
+  } catch (const E& e) {
+    return e.what();
+  }
+  return {};
 }
 
 }  // namespace test_support

@@ -152,12 +152,7 @@ TEST_CASE("armature driver: a driver that never pulls the relay in is told so, b
   // 1.8 V / 320 Ω = 5.63 mA.
   auto s = armature_case(drivers::ClampKind::diode);
   s.switch_.base_resistor_ohm = 1e6;
-  std::string message;
-  try {
-    drivers::simulate_switch_off(s, test_support::catalogue());
-  } catch (const std::invalid_argument& e) {
-    message = e.what();
-  }
+  const std::string message = test_support::switch_off_error<std::invalid_argument>(s);
   CAPTURE(message);
   CHECK(message.find("relay.armature_model: the on-state current of 'coil'") == 0);
   CHECK(message.find("does not hold its armature closed (that needs 5.63 mA)") != std::string::npos);

@@ -42,6 +42,18 @@ double average_by_periods_one_by_one(DriverSpec s, double duty) {
   s.hold.pwm_duty = duty;
   return solve_hold(s, build_driver_network(s, test_support::catalogue()), false).average_current_A;
 }
+
+// The duty search of a scenario file's hold.average_current: the average found, and the average
+// of the duty found run period by period (no search, no shooting). Tolerances: the search stops
+// within 1e-5 of the target (hold.cpp), 2e-5 leaving room for the rounding of the steady state's
+// own tolerance; 1e-4, the shooting's own agreement with the periods one by one (first test
+// case below).
+void check_duty_search(const std::string& scenario_text, double target_A) {
+  const auto sc = coilkick::scenario::read_scenario_text(scenario_text, "duty search", test_support::catalogue());
+  const auto searched = simulate_switch_off(sc.driver, test_support::catalogue()).metrics;
+  CHECK(searched.get("hold_average_current_A") == rel(target_A).epsilon(2e-5));
+  CHECK(average_by_periods_one_by_one(sc.driver, searched.get("hold_duty")) == rel(target_A).epsilon(1e-4));
+}
 }  // namespace
 
 TEST_CASE("hold: shooting and the periods one by one reach the same steady state (1e-4)") {
@@ -208,7 +220,7 @@ TEST_CASE("hold: the duty for a target average current where the average rises f
   // the switch on late in every 0.66 ms period, so the average current is 3 mA at duty 0.42,
   // 10.6 mA at 0.85 and 43 mA at 1 — a secant circled for twelve duties and reported that "no
   // duty" held 10.7 mA while its last held 10.73 mA. Bracketed false position converges.
-  const auto sc = coilkick::scenario::read_scenario_text(R"(
+  check_duty_search(R"(
 name = "slow high-side switch held by PWM"
 [supply]
 voltage = "5 V"
@@ -238,14 +250,8 @@ device_models = "piecewise_linear"
 pwm_frequency = "1.5 kHz"
 pull_in_time = "3.3 ms"
 average_current = "10.7 mA"
-)", "slow high side", test_support::catalogue());
-  const auto searched = simulate_switch_off(sc.driver, test_support::catalogue()).metrics;
-  // The search stops within 1e-5 of the target (hold.cpp); 2e-5 leaves room for the rounding of
-  // the steady state's own tolerance. The duty found, given as a fixed duty and run period by
-  // period (no search, no shooting), holds the same average: 1e-4, the shooting's own agreement
-  // with the periods one by one (first test case above).
-  CHECK(searched.get("hold_average_current_A") == rel(10.7e-3).epsilon(2e-5));
-  CHECK(average_by_periods_one_by_one(sc.driver, searched.get("hold_duty")) == rel(10.7e-3).epsilon(1e-4));
+)",
+                    10.7e-3);
 }
 
 TEST_CASE("hold: a shooting period gone astray is cut short, and the search goes on") {
@@ -254,7 +260,7 @@ TEST_CASE("hold: a shooting period gone astray is cut short, and the search goes
   // that crawled through tens of thousands of tiny steps, and the whole run ended in its 60 s
   // wall-time budget. A shot period now gets a hundred times the first period's attempts; past
   // that the shooting gives way to the periods one by one.
-  const auto sc = coilkick::scenario::read_scenario_text(R"(
+  check_duty_search(R"(
 name = "Darlington without a clamp held by PWM"
 [supply]
 voltage = "24 V"
@@ -280,10 +286,8 @@ device_models = "physical"
 pwm_frequency = "28 kHz"
 pull_in_current = "102 mA"
 average_current = "53.3 mA"
-)", "Darlington hold", test_support::catalogue());
-  const auto searched = simulate_switch_off(sc.driver, test_support::catalogue()).metrics;
-  CHECK(searched.get("hold_average_current_A") == rel(53.3e-3).epsilon(2e-5));
-  CHECK(average_by_periods_one_by_one(sc.driver, searched.get("hold_duty")) == rel(53.3e-3).epsilon(1e-4));
+)",
+                    53.3e-3);
 }
 
 TEST_CASE("hold: an average current beyond what the full drive gives is refused by name, not reported as a solver failure") {
@@ -296,12 +300,7 @@ TEST_CASE("hold: an average current beyond what the full drive gives is refused 
   s.hold.pwm_duty = std::nan("");
   s.hold.average_current_A = 0.999 * 24.0 / (48.0 * (1 + 0.00393 * 40.0));
   s.hold.pull_in_time_s = 30e-3;
-  std::string message;
-  try {
-    simulate_switch_off(s, test_support::catalogue());
-  } catch (const std::invalid_argument& e) {
-    message = e.what();
-  }
+  const std::string message = test_support::switch_off_error<std::invalid_argument>(s);
   CAPTURE(message);
   CHECK(message.find("even the longest duty stays below hold.average_current") != std::string::npos);
 }
@@ -313,12 +312,7 @@ TEST_CASE("hold: a pull-in current the driver cannot reach is refused by name") 
   DriverSpec s = held_valve(ClampKind::diode);
   s.hold.pull_in_time_s = std::nan("");
   s.hold.pull_in_current_A = 0.999 * 24.0 / (48.0 * (1 + 0.00393 * 40.0));
-  std::string message;
-  try {
-    simulate_switch_off(s, test_support::catalogue());
-  } catch (const std::invalid_argument& e) {
-    message = e.what();
-  }
+  const std::string message = test_support::switch_off_error<std::invalid_argument>(s);
   CAPTURE(message);
   CHECK(message.find("hold: the coil current does not reach hold.pull_in_current") == 0);
 }

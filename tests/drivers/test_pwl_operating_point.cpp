@@ -104,12 +104,7 @@ TEST_CASE("a pwl run that fails says that the physical level has smooth curves, 
   s.clamp.kind = drivers::ClampKind::active_clamp;
   s.clamp.active_clamp_zener_part = "zener_500mw_33v";
   s.clamp.diode_part = "rectifier_1a";
-  std::string message;
-  try {
-    drivers::simulate_switch_off(s, test_support::catalogue());
-  } catch (const engine::SimulationError& e) {
-    message = e.what();
-  }
+  const std::string message = test_support::switch_off_error<engine::SimulationError>(s);
   CAPTURE(message);
   CHECK(message.find("analysis.device_models = \"physical\"") != std::string::npos);
   s.analysis.model_level = devices::ModelLevel::physical;
