@@ -316,3 +316,25 @@ TEST_CASE("hold: a pull-in current the driver cannot reach is refused by name") 
   CAPTURE(message);
   CHECK(message.find("hold: the coil current does not reach hold.pull_in_current") == 0);
 }
+
+TEST_CASE("hold: a pull-in current just above the on-state current is told apart from it") {
+  // The on-state current read at the end of a pull-in of 20 time constants (within e^-20 of it),
+  // then asked for 2e-4 above it: the message must tell the two apart (at three digits it had
+  // read "does not reach 431 mA ... (it reaches 431 mA)").
+  DriverSpec s = held_valve(ClampKind::diode);
+  s.hold.pull_in_time_s = 20.0 * s.coil.inductance_H / (s.coil.resistance_at_20C_ohm * (1 + 0.00393 * 40.0));
+  const double on_A = simulate_switch_off(s, test_support::catalogue()).metrics.get("hold_pull_in_current_A");
+  s.hold.pull_in_time_s = std::nan("");
+  s.hold.pull_in_current_A = on_A * (1.0 + 2e-4);
+  const std::string message = test_support::switch_off_error<std::invalid_argument>(s);
+  CAPTURE(message);
+  const auto between = [&](const std::string& from, const std::string& to) {
+    const std::size_t a = message.find(from);
+    REQUIRE(a != std::string::npos);
+    return message.substr(a + from.size(), message.find(to, a + from.size()) - a - from.size());
+  };
+  const std::string wanted = between("hold.pull_in_current (", ")"), reached = between("settles at ", ",");
+  CAPTURE(wanted);
+  CAPTURE(reached);
+  CHECK(wanted != reached);
+}

@@ -83,9 +83,9 @@ struct HoldSolver {
     const auto& r = *out.pull_in;
     if (by_current && !r.event("pulled_in").time_s) {
       std::ostringstream m;
-      m << "hold: the coil current does not reach hold.pull_in_current (" << format_si(h.pull_in_current_A, "A") << ") within "
-        << format_si(stop, "s") << " of full drive (it reaches " << format_si(r.states().bottomRows(1)(0, c.state_index("coil.current")), "A")
-        << ")";
+      const auto [wanted, reached] = format_si_apart(h.pull_in_current_A, r.states().bottomRows(1)(0, c.state_index("coil.current")), "A");
+      m << "hold: the coil current does not reach hold.pull_in_current (" << wanted << ") within " << format_si(stop, "s")
+        << " of full drive: it settles at " << reached << ", the on-state current the switch lets through";
       throw std::invalid_argument(m.str());  // the description asks for more than the driver gives
     }
     out.pull_in_time_s = r.end_time_s();

@@ -19,4 +19,13 @@ std::string format_si(double value, const std::string& unit, int significant_dig
   return o.str();
 }
 
+SiPair format_si_apart(double first, double second, const std::string& unit) {
+  SiPair out;
+  for (int digits = 3; digits <= 9; ++digits) {
+    out = {format_si(first, unit, digits), format_si(second, unit, digits)};
+    if (out.first != out.second) break;
+  }
+  return out;
+}
+
 }  // namespace coilkick::drivers
