@@ -8,6 +8,7 @@
 #include <utility>
 #include <vector>
 
+#include "coilkick/scenario/scenario.hpp"
 #include "driver_fixture.hpp"
 
 using namespace coilkick;
@@ -124,13 +125,20 @@ TEST_CASE("default tolerances at edges a random campaign found: a clamp's peak c
   // Measured (default against relative 1e-10, 1 nV, 1 pA; before → after): (1) the diode's peak
   // 1.3e-2 → 5.0e-6, the coil's reversed voltage 4.9e-4 → 1.9e-7; (2) the coil's reversed voltage
   // 1.2e-2 → 5.2e-7, the switch's peak 6.4e-4 → 2.8e-8, the diode's 115 µA peak 7.7e-5 (unchanged).
-  // Bound: 2e-4, over twice the largest, a fifth of the bar.
+  // Later (the step controller's prediction left out after a step cut to a corner): (1) 3.2e-6,
+  // 1.2e-7; (2) 7.5e-7, 4.0e-8, the diode's peak 2.1e-4.
+  // Bounds: voltages 2e-4, a fifth of the bar. The small physical diode's current carries its node's
+  // error at the voltage tolerance (10 µV) through the Shockley slope dI/dV = I/(n·V_T): a relative
+  // δV/(n·V_T) ≈ 1e-5 / (1.75 · 25.7 mV) ≈ 2.2e-4 at any current (n of small_signal_diode,
+  // models/parts/diodes.toml), however the steps fall; bound
+  // 5e-4, twice that, half the bar. (The pwl diode of (1) has no such slope at its peak.)
   for (const auto& spec : {nmos, pmos}) {
     CAPTURE(drivers::to_string(spec.switch_.topology));
     const auto [a, b] = default_and_tight(spec);
     for (const std::string m : {"clamp_current_peak_A", "coil_end_peak_V", "switch_voltage_peak_V"}) {
       CAPTURE(m);
-      CHECK(std::abs(a.get(m) - b.get(m)) <= 2e-4 * std::abs(b.get(m)));
+      const bool physical_diode_current = m == "clamp_current_peak_A" && spec.analysis.model_level == devices::ModelLevel::physical;
+      CHECK(std::abs(a.get(m) - b.get(m)) <= (physical_diode_current ? 5e-4 : 2e-4) * std::abs(b.get(m)));
     }
     CHECK(a.get("clamp_current_peak_A") <= a.get("coil_current_at_switch_off_A"));
   }
@@ -191,4 +199,59 @@ TEST_CASE("default tolerances with a cable ringing slowly: the cable's heat equa
     CHECK(std::abs(a.get("cable_energy_J") - b.get("cable_energy_J")) <= 1e-4 * b.get("cable_energy_J"));
     CHECK(std::abs(a.get("energy_balance_error")) <= 1e-5);
   }
+}
+
+TEST_CASE("default tolerances: a pwl relay whose step was cut short to a change of piece runs on") {
+  // A random campaign's driver (scripts/tolerance_campaign.py --extras, seed 681; invented values):
+  // a high-side PNP relay with its armature model, diode + 8.2 V Zener, pwl devices. At the clamp's
+  // turn-on a 1e-10 s step was cut to 5e-15 s to land on the change of piece; the step controller
+  // read that cut as its own answer to the error and shrank the next steps fivefold each, until
+  // "the step size fell below the minimum" (tests/engine/test_step_controller.cpp). Now the run
+  // ends, and its metrics hold against a tighter run (bound 2e-4 as above; measured ≤ 1e-6). The
+  // tighter run is at relative 1e-8, 1 nV, 1 pA: at 1e-6, 1e-7, 1e-9 and 1e-10 with those absolute
+  // tolerances it still ends below the minimum step 0.128 s into the run, where a node of the
+  // clamp between two pwl on-lines settles in femtoseconds (README, "Edges, by random drivers").
+  const auto sc = coilkick::scenario::read_scenario_text(R"(
+name = "pwl relay, step cut to a change of piece"
+[supply]
+voltage = "36 V"
+[drive]
+high_level = "5 V"
+switch_off_at = "0.128065 s"
+fall_time = "26.547 ns"
+rise_time = "905.006 ns"
+[coil]
+resistance = "60.4571 ohm"
+inductance = "1.54849 H"
+release_voltage = "3.72531 V"
+operate_voltage = "18.785 V"
+core_loss_resistance = "32663 ohm"
+[switch]
+topology = "high_side_pnp"
+part = "pnp_small_signal_40v"
+base_resistor = "3444.32 ohm"
+pullup_resistor = "35852.5 ohm"
+level_shifter_part = "npn_small_signal_40v"
+level_shifter_base_resistor = "14990.7 ohm"
+[clamp]
+kind = "diode_zener"
+diode_part = "schottky_1a_40v"
+zener_part = "zener_500mw_8v2"
+[analysis]
+device_models = "piecewise_linear"
+[relay]
+armature_model = true
+nominal_voltage = "36 V"
+operate_time = "0.0567769 s"
+release_time = "0.00726337 s"
+)",
+                                                         "cut step", test_support::catalogue());
+  const auto a = drivers::simulate_switch_off(test_support::at_default_tolerances(sc.driver), test_support::catalogue()).metrics;
+  const auto b = drivers::simulate_switch_off(test_support::at_tight_tolerances(sc.driver, 1e-8), test_support::catalogue()).metrics;
+  for (const std::string m : {"clamp_current_peak_A", "coil_end_peak_V", "switch_voltage_peak_V", "release_time_s", "contact_open_time_s"}) {
+    CAPTURE(m);
+    CHECK(std::abs(a.get(m) - b.get(m)) <= 2e-4 * std::abs(b.get(m)));
+  }
+  // Kirchhoff's current law: the clamp takes at most the coil's current (common practice).
+  CHECK(a.get("clamp_current_peak_A") <= a.get("coil_current_at_switch_off_A") * (1.0 + 1e-9));
 }

@@ -428,7 +428,7 @@ class TransientRun {
     };
     const double stop_at = locator_.on_step(t_old, x_.data(), rate_old_.data(), t_new, x_new_.data(), sys_.full_rate.data(),
                                             interp, keep);
-    double dt_next = control_.after_acceptance(dt_, e.norm);
+    double dt_next = control_.after_acceptance(dt_, e.norm, lands_on_target);
     // With a line, kinks arrive one delay after they left, often just after another point: a
     // step cut short to land on one says nothing about the step after it.
     if (lands_on_target && circuit_.has_history()) dt_next = std::max(dt_next, proposed_dt_);
