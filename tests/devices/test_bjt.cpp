@@ -7,6 +7,7 @@
 
 #include "coilkick/devices/bjt.hpp"
 #include "coilkick/devices/darlington.hpp"
+#include "coilkick/devices/dual.hpp"
 #include "device_fixture.hpp"
 
 using namespace coilkick::devices;
@@ -206,4 +207,36 @@ TEST_CASE("Darlington pair saturates about one V_BE above a transistor's V_CE(sa
   const double vce = get_state(c, op, "node:c");
   CHECK(vce > 0.7);  // a Darlington cannot saturate below the output V_BE
   CHECK(vce < 1.3);
+}
+
+TEST_CASE("pwl BJT: its junctions hold the physical model's zero-bias capacitances, as fixed capacitors") {
+  // The pwl level keeps the depletion capacitances at zero bias (C_je, C_jc; a junction's
+  // depletion capacitance, Sedra & Smith, Microelectronic Circuits, 7th ed., ch. 3) as constant
+  // capacitors, as its MOSFET keeps its gate capacitances: without them a fast loop through its
+  // knees (an active clamp on a Darlington) has only the board's picofarads and oscillates at
+  // picoseconds. At zero bias the physical model's ∂q/∂v is the same up to its diffusion charge
+  // there, τ·I_s/(n·V_T) ≤ 2e-20 F (the 50 ns reverse transit time; bound 1e-19 F); at any other
+  // bias the pwl one is unchanged.
+  for (const auto polarity : {Polarity::n, Polarity::p}) {
+    BjtParameters p = small_npn();
+    p.polarity = polarity;
+    const PwlBjt pwl("q", "c", "b", "e", p);
+    const PhysicalBjt phys("q", "c", "b", "e", p);
+    using D = Dual<3>;
+    auto capacitances = [](const auto& model, std::array<double, 3> at) {
+      std::array<D, 3> v, q;
+      for (int k = 0; k < 3; ++k) v[static_cast<std::size_t>(k)] = D::variable(at[static_cast<std::size_t>(k)], k);
+      model.charges(v.data(), q.data());
+      return q;
+    };
+    const auto q_pwl = capacitances(pwl, {0.0, 0.0, 0.0}), q_phys = capacitances(phys, {0.0, 0.0, 0.0});
+    for (std::size_t k = 0; k < 3; ++k) {
+      for (std::size_t j = 0; j < 3; ++j) CHECK(q_pwl[k].g[j] == rel_or_abs(q_phys[k].g[j], 1e-12, 1e-19));
+    }
+    // ∂q_base/∂v_base = C_je + C_jc; the charges sum to zero (charge neutrality).
+    CHECK(q_pwl[1].g[1] == rel(p.base_emitter_capacitance_F + p.base_collector_capacitance_F).epsilon(1e-12));
+    const auto q_far = capacitances(pwl, {12.0, 0.7, 0.0});
+    CHECK(q_far[1].g[1] == rel(q_pwl[1].g[1]).epsilon(1e-12));
+    CHECK(std::abs(q_far[0].v + q_far[1].v + q_far[2].v) <= 1e-24);
+  }
 }

@@ -24,6 +24,10 @@
 //   breakdown line.
 //   Segments derived from the physical model at a saturated operating point (forced gain
 //   pwl_forced_beta at pwl_reference_collector_current_A) unless given explicitly.
+//   Charges: the junctions' zero-bias depletion capacitances as fixed capacitors (no diffusion
+//   charge, so no storage time), as the pwl MOSFET keeps its gate capacitances: without them a
+//   loop through the knees (an active clamp on a Darlington) had only the board's picofarads and
+//   switched pieces at picoseconds without end.
 #include <limits>
 #include <memory>
 #include <string>
@@ -203,12 +207,13 @@ class PwlBjt final : public TerminalDevice<PwlBjt, 3> {
  public:
   PwlBjt(std::string name, std::string collector, std::string base, std::string emitter, BjtParameters p);
   std::string kind() const override { return p_.polarity == Polarity::n ? "NPN (pwl)" : "PNP (pwl)"; }
-  bool has_charges() const { return false; }
+  bool has_charges() const { return p_.base_emitter_capacitance_F > 0.0 || p_.base_collector_capacitance_F > 0.0; }
   const BjtDerived& segments() const { return d_; }
   bool has_breakdown() const { return d_.has_breakdown; }
   // Corners: base–emitter knee (slot 0), the Early factor's vce = 0 (1), the saturation line's
   // knee (2), saturation against the active line (3), breakdown knee (4).
   static constexpr int kPieceSlots = 5;
+  static constexpr bool kLinearCharges = true;  // fixed capacitances (TerminalDevice)
 
   // breakdown: see TerminalDevice (the breakdown line apart, when not null).
   template <class S>
@@ -239,9 +244,15 @@ class PwlBjt final : public TerminalDevice<PwlBjt, 3> {
       breakdown[2] = -breakdown[0];
     }
   }
+  // The junctions' zero-bias depletion capacitances as fixed capacitors.
   template <class S>
-  void charges(const S*, S* q) const {
-    for (int k = 0; k < 3; ++k) q[k] = S(0.0);
+  void charges(const S* v, S* q) const {
+    const double sg = d_.sign;
+    const S q_be = p_.base_emitter_capacitance_F * sg * (v[1] - v[2]);
+    const S q_bc = p_.base_collector_capacitance_F * sg * (v[1] - v[0]);
+    q[0] = -sg * q_bc;
+    q[1] = sg * (q_be + q_bc);
+    q[2] = -sg * q_be;
   }
 
  private:

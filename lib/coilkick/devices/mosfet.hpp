@@ -133,6 +133,7 @@ class PwlMosfet final : public TerminalDevice<PwlMosfet, 3> {
   // Corners: vds = 0 (slot 0: forward or reverse), the channel's threshold (1), ohmic against
   // saturated (2), the body diode's knee (3), the avalanche knee (4).
   static constexpr int kPieceSlots = 5;
+  static constexpr bool kLinearCharges = true;  // fixed capacitances (TerminalDevice)
 
   // breakdown: see TerminalDevice (the avalanche line apart, when not null).
   template <class S>

@@ -48,6 +48,16 @@ struct piece_slots_of : std::integral_constant<int, 0> {};
 template <class Model>
 struct piece_slots_of<Model, std::void_t<decltype(Model::kPieceSlots)>> : std::integral_constant<int, Model::kPieceSlots> {};
 
+// A model whose charges are linear in the terminal voltages (fixed capacitances: the pwl
+// transistors) says so with
+//   static constexpr bool kLinearCharges = true;
+// Its mass is then the same at every state: stamped by every load, also in plain doubles, and no
+// mass slope (the circuit factors M once).
+template <class Model, class = void>
+struct linear_charges_of : std::false_type {};
+template <class Model>
+struct linear_charges_of<Model, std::void_t<decltype(Model::kLinearCharges)>> : std::integral_constant<bool, Model::kLinearCharges> {};
+
 template <class Model, int N>
 class TerminalDevice : public engine::Element {
  public:
@@ -63,7 +73,7 @@ class TerminalDevice : public engine::Element {
   void load(const engine::ElementContext& ctx, engine::Stamper& out) const override {
     // Rates only (the Rosenbrock stages) and no charges (whose slopes are the mass): the
     // currents in plain doubles — the same values as the dual numbers' value parts.
-    if (!out.wants_slopes() && !model().has_charges()) {
+    if (!out.wants_slopes() && (!model().has_charges() || linear_charges_of<Model>::value)) {
       load_as<double>(ctx, out);
     } else {
       load_as<Dual<N>>(ctx, out);
@@ -110,6 +120,9 @@ class TerminalDevice : public engine::Element {
     }
     out.add_power(0, value_of(p));
     if (breakdown) out.add_power(1, value_of(pb));
+    if constexpr (!dual && linear_charges_of<Model>::value) {
+      if (model().has_charges()) stamp_linear_mass(out);
+    }
     if constexpr (dual) {
       for (int j = 0; j < N; ++j) out.add_power_slope(0, j, p.g[idx(j)]);
       if (breakdown) {
@@ -131,9 +144,9 @@ class TerminalDevice : public engine::Element {
     }
   }
 
-  bool has_mass_slope() const override { return model().has_charges(); }
+  bool has_mass_slope() const override { return model().has_charges() && !linear_charges_of<Model>::value; }
   void load_mass_slope(const engine::ElementContext& ctx, engine::Stamper& out) const override {
-    if (!model().has_charges()) return;
+    if (!has_mass_slope()) return;
     using D1 = Dual<1>;
     using D = Dual<N, D1>;
     std::array<D, N> v, q;
@@ -187,6 +200,15 @@ class TerminalDevice : public engine::Element {
     return false;
   }
   static constexpr std::size_t idx(int k) { return static_cast<std::size_t>(k); }
+  // The fixed capacitances of linear charges: their slopes at any point (zero here).
+  void stamp_linear_mass(engine::Stamper& out) const {
+    std::array<Dual<N>, N> v{}, q{};
+    for (int k = 0; k < N; ++k) v[idx(k)] = Dual<N>::variable(0.0, k);
+    model().charges(v.data(), q.data());
+    for (int k = 0; k < N; ++k) {
+      for (int j = 0; j < N; ++j) out.add_mass(k, j, q[idx(k)].g[idx(j)]);
+    }
+  }
   template <class S>
   void currents_of(const S* v, S* i, S* breakdown, [[maybe_unused]] engine::PieceChoices* pieces) const {
     if constexpr (has_breakdown_split<Model>::value) {
