@@ -20,9 +20,27 @@ TEST_CASE("step controller: a step cut short to a target does not shrink the nex
   (void)c.after_acceptance(1e-10, 0.3);
   (void)c.after_acceptance(1e-10, 0.1);
   const double cut = 5.1e-15;
-  const double next = c.after_acceptance(cut, 8.3e-5, true);
+  const double next = c.after_acceptance(cut, 8.3e-5, 1e-10);
   // The basic controller alone: growth by its limit, 6x (error far below 1).
   CHECK(next == doctest::Approx(6.0 * cut).epsilon(1e-12));
+}
+
+TEST_CASE("step controller: after rejections, a step cut short to a target may grow back to the proposal") {
+  // Found by the random-driver campaign (four pwl channels on a common clamp pin): after a run of
+  // rejections the controller proposed 3.3e-11 s, a change of piece cut it to 1.2e-16 s, and
+  // "no growth right after a rejection" (Hairer & Wanner, §IV.8) held the next step at the cut
+  // step, below the minimum. The rule protects the rejected size: the cut step may grow back up
+  // to the proposal, not beyond it.
+  StepController c;
+  (void)c.after_acceptance(1e-9, 0.5);
+  (void)c.after_rejection(1e-9, {2.0, true, 0});
+  const double proposal = 3.3e-11, cut = 1.2e-16;
+  const double next = c.after_acceptance(cut, 1e-3, proposal);
+  CHECK(next == doctest::Approx(6.0 * cut).epsilon(1e-12));  // basic growth, err 1e-3: its limit
+  StepController d;
+  (void)d.after_acceptance(1e-9, 0.5);
+  (void)d.after_rejection(1e-9, {2.0, true, 0});
+  CHECK(d.after_acceptance(0.9 * proposal, 1e-3, proposal) == doctest::Approx(proposal).epsilon(1e-12));  // not beyond it
 }
 
 TEST_CASE("step controller: the predictive part still acts on the controller's own steps") {

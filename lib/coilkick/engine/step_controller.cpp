@@ -30,14 +30,15 @@ double StepController::after_rejection(double dt, const StepError& e) {
   return dt * (e.finite ? std::max(0.2, 0.9 * std::pow(e.norm, -0.25)) : 0.25);
 }
 
-double StepController::after_acceptance(double dt, double err, bool cut_short) {
+double StepController::after_acceptance(double dt, double err, double proposed_dt) {
+  const bool cut_short = proposed_dt > dt;
   double fac = std::max(1.0 / 6.0, std::min(5.0, std::pow(err, 0.25) / 0.9));
   if (!first_accepted_ && !cut_short && dt_old_ > 0.0) {
     const double pred = std::max(1.0 / 6.0, std::min(5.0, (dt_old_ / dt) * std::pow(err * err / err_old_, 0.25) / 0.9));
     fac = std::max(fac, pred);
   }
   double dt_next = dt / fac;
-  if (last_rejected_) dt_next = std::min(dt_next, dt);
+  if (last_rejected_) dt_next = std::min(dt_next, cut_short ? proposed_dt : dt);
   first_accepted_ = false;
   last_rejected_ = false;
   dt_old_ = dt;

@@ -26,12 +26,14 @@ class StepController {
  public:
   // The step to try after a rejection of `dt`.
   double after_rejection(double dt, const StepError& e);
-  // The step to propose after accepting `dt` with error norm `err`. `cut_short`: the step was
-  // shortened to land on a target (a corner, a change of piece, the stop), not chosen by this
-  // controller; its predictive part, which reads the ratio of the last two steps as its own
-  // answer to the error, then stays out (a step of 1e-10 s cut to 5e-15 s had shrunk the next
-  // one fivefold, and the next, below the minimum step: tests/engine/test_step_controller.cpp).
-  double after_acceptance(double dt, double err, bool cut_short = false);
+  // The step to propose after accepting `dt` with error norm `err`. `proposed_dt`, where given:
+  // the step was shortened from that, this controller's own proposal, to land on a target (a
+  // corner, a change of piece, the stop). Then its predictive part, which reads the ratio of the
+  // last two steps as its own answer to the error, stays out (a step of 1e-10 s cut to 5e-15 s
+  // had shrunk the next one fivefold, and the next, below the minimum step), and after a
+  // rejection the next step may grow back up to the proposal, not only to the cut step (a cut to
+  // 1e-16 s after rejections had held every next step there: tests/engine/test_step_controller.cpp).
+  double after_acceptance(double dt, double err, double proposed_dt = 0.0);
 
  private:
   double err_old_ = 1.0, dt_old_ = 0.0;

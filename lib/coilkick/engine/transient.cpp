@@ -256,6 +256,8 @@ class TransientRun {
   }
 
   // Steps never cross a waveform corner or the stop time; true when this one ends on it.
+  double minimum_step() const { return std::max(options_.minimum_step_s, 64.0 * std::numeric_limits<double>::epsilon() * std::abs(t_)); }
+
   bool size_step() {
     if (replaying()) {
       const auto& times = options_.replay_step_times_s;
@@ -267,7 +269,7 @@ class TransientRun {
     }
     target_ = std::min({next_corner_, options_.stop_time_s, piece_change_});
     const double remaining = target_ - t_;
-    const double min_step = std::max(options_.minimum_step_s, 64.0 * std::numeric_limits<double>::epsilon() * std::abs(t_));
+    const double min_step = minimum_step();
     if (options_.maximum_step_s > 0.0) dt_ = std::min(dt_, options_.maximum_step_s);
     // An element reading its past one delay back must find it recorded, in few pieces.
     if (circuit_.has_history()) {
@@ -351,7 +353,8 @@ class TransientRun {
       }
     }
     // A second change inside the step redone to the first: its pieces do not settle over it.
-    if (back || end_is_change || hi - t0 <= kPieceChangeAtStart * (t1 - t0)) {
+    // (A change closer to the start than the minimum step is at the start: no step lands there.)
+    if (back || end_is_change || hi - t0 <= std::max(kPieceChangeAtStart * (t1 - t0), minimum_step())) {
       hold_this_step_ = false;
     } else {
       piece_change_ = hi;
@@ -428,7 +431,7 @@ class TransientRun {
     };
     const double stop_at = locator_.on_step(t_old, x_.data(), rate_old_.data(), t_new, x_new_.data(), sys_.full_rate.data(),
                                             interp, keep);
-    double dt_next = control_.after_acceptance(dt_, e.norm, lands_on_target);
+    double dt_next = control_.after_acceptance(dt_, e.norm, lands_on_target ? proposed_dt_ : 0.0);
     // With a line, kinks arrive one delay after they left, often just after another point: a
     // step cut short to land on one says nothing about the step after it.
     if (lands_on_target && circuit_.has_history()) dt_next = std::max(dt_next, proposed_dt_);
