@@ -23,6 +23,12 @@ namespace coilkick::drivers {
 namespace {
 
 constexpr double kOpen_ohm = 1e12, kShort_ohm = 0.01, kLeak_ohm = 100e3;
+// An open gate or base floats: its own leakage to the source or emitter is what sets its DC
+// point (a MOSFET's gate leakage of the order of 100 nA at 20 V, a gigaohm or more: typical of
+// the class, from memory). Without it the floating node sat between picosiemens of the device and
+// of the solver, anywhere within the current tolerance, and with a relay's armature the DC was
+// not found (a high-side P-MOSFET half on).
+constexpr double kFloatingControl_ohm = 1e9;
 constexpr double kShortedTurns = 0.3;   // fraction of the turns shorted
 constexpr double kLowSupply = 0.75;     // fraction of the supply voltage
 constexpr double kResistorPower_W = 0.25;  // small chip resistors: 0.1–0.25 W (common practice)
@@ -311,6 +317,7 @@ FaultCases fault_cases(const DriverSpec& spec, const BuiltDriver& healthy) {
       ce.resistor_across(n + ".short", t[0], t[2], kShort_ohm);
       add_case(n, mos ? "drain-source shorted" : "collector-emitter shorted", ce);
       base.out.network.replace(n, std::make_shared<engine::RewiredElement>(e, std::vector<std::string>{t[0], n + ".control_open", t[2]}));
+      base.resistor_across(n + ".control_leakage", n + ".control_open", t[2], kFloatingControl_ohm);
       add_case(n, mos ? "gate open" : "base open", base);
       leak.resistor_across(n + ".leak", t[0], t[1], kLeak_ohm);
       add_case(n, mos ? "drain-gate leaky" : "collector-base junction leaky", leak);
