@@ -71,8 +71,9 @@ class TerminalDevice : public engine::Element {
   }
 
   void load(const engine::ElementContext& ctx, engine::Stamper& out) const override {
-    // Rates only (the Rosenbrock stages) and no charges (whose slopes are the mass): the
-    // currents in plain doubles — the same values as the dual numbers' value parts.
+    // Rates only (the Rosenbrock stages) and no charges (whose slopes are the mass) or linear
+    // ones (a fixed mass, stamped apart): the currents in plain doubles — the same values as the
+    // dual numbers' value parts.
     if (!out.wants_slopes() && (!model().has_charges() || linear_charges_of<Model>::value)) {
       load_as<double>(ctx, out);
     } else {
