@@ -32,6 +32,7 @@
 #include <memory>
 #include <string>
 
+#include "coilkick/devices/fixed_capacitances.hpp"
 #include "coilkick/devices/junction.hpp"
 #include "coilkick/devices/model_level.hpp"
 #include "coilkick/devices/terminal_device.hpp"
@@ -247,12 +248,7 @@ class PwlBjt final : public TerminalDevice<PwlBjt, 3> {
   // The junctions' zero-bias depletion capacitances as fixed capacitors.
   template <class S>
   void charges(const S* v, S* q) const {
-    const double sg = d_.sign;
-    const S q_be = p_.base_emitter_capacitance_F * sg * (v[1] - v[2]);
-    const S q_bc = p_.base_collector_capacitance_F * sg * (v[1] - v[0]);
-    q[0] = -sg * q_bc;
-    q[1] = sg * (q_be + q_bc);
-    q[2] = -sg * q_be;
+    fixed_control_charges(d_.sign, p_.base_emitter_capacitance_F, p_.base_collector_capacitance_F, v, q);
   }
 
  private:

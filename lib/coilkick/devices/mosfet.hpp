@@ -18,6 +18,7 @@
 #include <string>
 
 #include "coilkick/devices/diode.hpp"
+#include "coilkick/devices/fixed_capacitances.hpp"
 #include "coilkick/devices/junction.hpp"
 #include "coilkick/devices/model_level.hpp"
 #include "coilkick/devices/terminal_device.hpp"
@@ -165,12 +166,7 @@ class PwlMosfet final : public TerminalDevice<PwlMosfet, 3> {
   }
   template <class S>
   void charges(const S* v, S* q) const {
-    const double sg = d_.sign;
-    const S q_gs = p_.gate_source_capacitance_F * sg * (v[1] - v[2]);
-    const S q_gd = p_.gate_drain_capacitance_F * sg * (v[1] - v[0]);
-    q[0] = -sg * q_gd;
-    q[1] = sg * (q_gs + q_gd);
-    q[2] = -sg * q_gs;
+    fixed_control_charges(d_.sign, p_.gate_source_capacitance_F, p_.gate_drain_capacitance_F, v, q);
   }
 
  private:
