@@ -13,7 +13,8 @@ Prints, for each solver and each relative tolerance of the ladder 1e-2 ... 1e-8,
 of several, all measured in this run; coilkick and the peer in C++, scipy's solve alone, its
 post-processing outside the timed part), the steps and the errors of peak and release time
 against a tight scipy reference (rtol 1e-11); then each solver at matched accuracy (the loosest
-tolerance of the ladder that keeps both within 0.1 %). Ends with the line
+tolerance of the ladder that keeps both within 0.1 %), and, for information, coilkick against the
+peer where errors within 1e-5 and 1e-7 are asked for. Ends with the line
   reference_transient speedup_vs_peer=<x> speedup_vs_scipy=<y> steps=<n> instructions=<m> peak_error=<e> release_error=<e>
 (instructions: one coilkick switch-off under callgrind, where valgrind is installed, else na).
 Targets (benchmarks, not tests): speedup_vs_peer >= 1.5, <= 1.5 M instructions, <= 60 steps.
@@ -150,6 +151,7 @@ def scipy_metrics(a, b):
 
 LADDER = [1e-2, 1e-3, 1e-4, 1e-5, 1e-6, 1e-7, 1e-8]
 MATCHED = 1e-3  # "matched accuracy": peak and release time within 0.1 % of the tight reference
+STRICTER = [1e-5, 1e-7]  # also printed: the same comparison where more accuracy is asked for
 
 
 def best_time(fn, repeats, inner=1):
@@ -218,14 +220,30 @@ def scipy_runs(method, ref):
     return runs
 
 
-def loosest_matched(runs):
+def loosest_matched(runs, accuracy=MATCHED):
     """The loosest relative tolerance of the ladder whose peak and release errors are both
-    within MATCHED, with its measurements."""
+    within `accuracy`, with its measurements (None where no tolerance of the ladder reaches it,
+    for accuracies other than MATCHED)."""
     for rtol in LADDER:
         r = runs.get(rtol)
-        if r and "failed" not in r and max(r["peak_error"], r["release_error"]) <= MATCHED:
+        if r and "failed" not in r and max(r["peak_error"], r["release_error"]) <= accuracy:
             return rtol, r
+    if accuracy != MATCHED:
+        return None
     raise RuntimeError("no tolerance of the ladder reaches the matched accuracy")
+
+
+def print_stricter_accuracies(runs):
+    """The same comparison at stricter accuracies than MATCHED (information, not the targets'
+    measure): the engine's error control against the peer's as the accuracy asked for grows."""
+    for accuracy in STRICTER:
+        lib, peer = loosest_matched(runs["coilkick"], accuracy), loosest_matched(runs["peer"], accuracy)
+        if lib is None or peer is None:
+            print("  errors <= %.0e: %s" % (accuracy, "not reached on the ladder by " + ("coilkick" if lib is None else "the peer")))
+            continue
+        print("  errors <= %.0e: coilkick rtol %.0e %.3f ms, %d steps; peer rtol %.0e %.3f ms, %d steps: coilkick/peer speed %.2f"
+              % (accuracy, lib[0], lib[1]["time"] * 1e3, lib[1]["steps"], peer[0], peer[1]["time"] * 1e3, peer[1]["steps"],
+                 peer[1]["time"] / lib[1]["time"]))
 
 
 def instructions(build_dir, tmp, rtol):
@@ -264,6 +282,8 @@ def main():
         print("matched accuracy (each at the loosest tolerance with both errors <= %.0e):" % MATCHED)
         for name, (rtol, r) in matched.items():
             print("  %-12s rtol %.0e: %8.3f ms, %4d steps" % (name, rtol, r["time"] * 1e3, r["steps"]))
+        print("at stricter accuracies (information; the targets are measured at %.0e):" % MATCHED)
+        print_stricter_accuracies(runs)
         rtol_lib, lib = matched["coilkick"]
         scipy_best = min(matched["scipy BDF"][1]["time"], matched["scipy Radau"][1]["time"])
         print("reference_transient speedup_vs_peer=%.2f speedup_vs_scipy=%.1f steps=%d instructions=%s peak_error=%.2e release_error=%.2e"
