@@ -262,3 +262,31 @@ TEST_CASE("a node held by leakage between a reverse diode and a forward junction
   CHECK(vs - mid > 0.2);  // a fraction of a volt: the junction carries nanoamperes
   CHECK(vs - mid < 0.5);
 }
+
+TEST_CASE("pwl diode: its junction holds the physical depletion capacitance at the breakdown voltage, as a fixed capacitor") {
+  // A reverse-biased junction's depletion capacitance C_j0/(1 + V_R/V_bi)^m (Sedra & Smith,
+  // Microelectronic Circuits, 7th ed., ch. 3), here at V_R = the breakdown voltage, held as a
+  // constant capacitor at the pwl level (without it a pwl clamp node has only the board's
+  // picofarads against milliohms: a femtosecond pole). Against the physical model's ∂q/∂v there
+  // (its diffusion charge adds τ·I_s·e^(u/(n·V_T))/(n·V_T), nothing measurable 24 V reverse;
+  // bound 1e-15 F of 5.1 pF), and the same capacitance at every other bias.
+  DiodeParameters p = test_rectifier();
+  p.breakdown_voltage_V = 24.0;
+  p.breakdown_test_current_A = 1e-3;
+  const PwlDiode pwl("d", "a", "k", p);
+  const PhysicalDiode phys("d", "a", "k", p);
+  const double expected = p.zero_bias_capacitance_F / std::pow(1.0 + 24.0 / p.built_in_potential_V, p.grading_coefficient);
+  auto capacitance = [](const auto& model, double u) {
+    using D = Dual<1>;
+    std::array<D, 2> v{D::variable(u, 0), D(0.0)}, q;
+    model.charges(v.data(), q.data());
+    CHECK(q[0].v + q[1].v == 0.0);  // charge neutrality
+    return q[0].g[0];
+  };
+  CHECK(pwl.fixed_capacitance_F() == rel(expected).epsilon(1e-12));
+  CHECK(capacitance(pwl, -24.0) == rel_or_abs(capacitance(phys, -24.0), 1e-12, 1e-15));
+  for (const double u : {-5.0, 0.0, 0.6}) CHECK(capacitance(pwl, u) == rel(expected).epsilon(1e-12));
+  // Without a breakdown: the zero-bias value.
+  p.breakdown_voltage_V = std::numeric_limits<double>::infinity();
+  CHECK(PwlDiode("d", "a", "k", p).fixed_capacitance_F() == rel(p.zero_bias_capacitance_F).epsilon(1e-12));
+}

@@ -297,3 +297,49 @@ TEST_CASE("faults of the pwl Darlington drivers: the healthy board and every fau
     CHECK(std::abs(rep.healthy.coil_current_on_A - (k.supply_V - v_switch) / k.coil_ohm) <= 1e-5 * rep.healthy.coil_current_on_A);
   }
 }
+
+TEST_CASE("a pwl Schottky + Zener clamp switched off late in a run: its clamp node's pole is resolved above the minimum step") {
+  // A 36 V, 2.9 A driver on a logic-level N-MOSFET with a Schottky + 8.2 V Zener clamp, switched
+  // off at 0.49 s (the tolerance campaign's seed 2139, invented values). The pwl diodes had no
+  // capacitance: the node between them had the board's picofarads against their on-lines'
+  // milliohms, a pole at femtoseconds, and its pieces switched through it at the edge, below the
+  // minimum step there (64 ulp of 0.49 s: 7e-15 s) — an error at the default tolerances, a result
+  // at tight ones. The pwl diodes now keep their depletion capacitance
+  // (tests/devices/test_diode.cpp). Against the same run at tight tolerances (relative 1e-9, 1 nV,
+  // 1 pA): peak and release time within the 0.1 % the campaign holds every metric to.
+  const char* text = R"(
+name = "late switch-off, pwl"
+[supply]
+voltage = "36 V"
+[drive]
+high_level = "3.3 V"
+switch_off_at = "0.493863 s"
+fall_time = "3.73652 ns"
+rise_time = "166.327 ns"
+[coil]
+resistance = "12.2489 ohm"
+inductance = "1.20986 H"
+release_current = "1.1463 A"
+[switch]
+topology = "low_side_nmos"
+part = "nmos_logic_level_60v"
+gate_resistor = "28.5523 ohm"
+board_stray_capacitance = "100 pF"
+[clamp]
+kind = "diode_zener"
+diode_part = "schottky_1a_40v"
+zener_part = "zener_500mw_8v2"
+[analysis]
+device_models = "piecewise_linear"
+)";
+  auto s = coilkick::scenario::read_scenario_text(text, "late switch-off", test_support::catalogue()).driver;
+  const auto by_default = drivers::simulate_switch_off(s, test_support::catalogue()).metrics;
+  s.analysis.relative_tolerance = 1e-9;
+  s.analysis.voltage_tolerance_V = 1e-9;
+  s.analysis.current_tolerance_A = 1e-12;
+  const auto tight = drivers::simulate_switch_off(s, test_support::catalogue()).metrics;
+  for (const char* m : {"switch_voltage_peak_V", "release_time_s"}) {
+    CAPTURE(m);
+    CHECK(by_default.get(m) == rel(tight.get(m)).epsilon(1e-3));
+  }
+}

@@ -99,6 +99,9 @@ PwlDiode::PwlDiode(std::string name, std::string anode, std::string cathode, Dio
                              "breakdown knee (breakdown_voltage_V − dynamic resistance × test current)",
                              c_.breakdown_knee_V);
   }
+  // C(v) = C_j0/(1 − v/V_bi)^m reverse-biased (v < f_c·V_bi), at v = −V_breakdown.
+  const double reverse_V = c_.has_breakdown ? c_.breakdown_voltage_V : 0.0;
+  fixed_capacitance_F_ = p_.zero_bias_capacitance_F / std::pow(1.0 + reverse_V / p_.built_in_potential_V, p_.grading_coefficient);
 }
 
 std::shared_ptr<engine::Element> make_diode(const std::string& name, const std::string& anode,
