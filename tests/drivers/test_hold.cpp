@@ -98,6 +98,30 @@ TEST_CASE("hold: in the steady state the supply's energy per period is the heat 
   CHECK(h.supply_energy_per_period_J > 0.0);
 }
 
+TEST_CASE("hold at the pwl level: shooting's replayed periods hold their pieces, and it reaches the periods' steady state (1e-4)") {
+  // The bundled held valve (models/scenarios/greenhouse_valve_hold.toml, invented values, its
+  // diode clamp and plunger) at the pwl level. Shooting's sensitivities replay the period's own
+  // steps; the replay had decided the pwl pieces at every stage, so a stage could stand on the
+  // clamp diode's milliohm line while the step's Jacobian had it off: a stage increment of ~1e8 V
+  // on a picofarad node, the replayed period non-finite, and shooting gave way to ~1,400 periods
+  // one by one. A replayed step now holds the pieces of its start. Against the periods one by one
+  // (no shooting): 1e-4, as the physical level's shooting above.
+  auto sc = coilkick::scenario::read_scenario_file(
+      coilkick::catalogue::default_models_directory() + "/scenarios/greenhouse_valve_hold.toml", test_support::catalogue());
+  DriverSpec s = sc.driver;
+  s.analysis.model_level = coilkick::devices::ModelLevel::pwl;
+  s.analysis.maximum_wall_time_s = 900.0;  // the periods one by one in the sanitizer builds
+  const auto b = build_driver_network(s, test_support::catalogue());
+  const HoldResult shot = solve_hold(s, b, true);
+  CHECK(shot.steady.method == coilkick::engine::PeriodicMethod::shooting);
+  CHECK(shot.steady.note.empty());
+  const HoldResult direct = solve_hold(s, b, false);
+  CHECK(shot.steady.period_runs < direct.steady.period_runs / 5);
+  CHECK(shot.average_current_A == rel(direct.average_current_A).epsilon(1e-4));
+  CHECK(shot.minimum_current_A == rel(direct.minimum_current_A).epsilon(1e-4));
+  CHECK(shot.maximum_current_A == rel(direct.maximum_current_A).epsilon(1e-4));
+}
+
 TEST_CASE("hold with the valve's plunger: a periodic state balanced off the stop is refused, not returned") {
   // The bundled demo (models/scenarios/greenhouse_valve_hold.toml, invented values) with a
   // diode + 47 Ω clamp. Shooting's Newton lands on a periodic state with the plunger ~0.17 mm off

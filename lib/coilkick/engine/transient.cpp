@@ -169,7 +169,7 @@ class TransientRun {
         reject(e);
         continue;
       }
-      if (hold && piece_changes_inside(lands_on_target)) continue;
+      if (hold && !replaying() && piece_changes_inside(lands_on_target)) continue;
       if (accept(e, lands_on_target)) break;  // a stopping event
     }
     return result();
@@ -193,8 +193,12 @@ class TransientRun {
   Eigen::VectorXd x_, x_new_, x_err_, rate_old_;
   double t_, dt_ = 0.0, next_corner_ = 0.0, target_ = 0.0, proposed_dt_ = 0.0;
   // Piecewise-linear elements: their pieces are held over each attempt (PieceChoices), and an
-  // attempt along which one changes is redone to the change (piece_change_).
-  const bool holds_pieces_ = circuit_.piece_slot_count() > 0 && !replaying();
+  // attempt along which one changes is redone to the change (piece_change_). A replayed step is
+  // not redone (its times are given): it holds the pieces of its start, and the next step
+  // decides them afresh. (Pieces decided at every stage instead put a stage on another piece
+  // than the step's Jacobian: a clamp diode's milliohm line against a picofarad node, a stage
+  // increment of ~10⁸ V — the replayed periods of a pwl PWM hold's shooting became non-finite.)
+  const bool holds_pieces_ = circuit_.piece_slot_count() > 0;
   bool hold_this_step_ = true;
   double piece_change_ = std::numeric_limits<double>::infinity();
   std::vector<unsigned char> pieces_past_change_;
