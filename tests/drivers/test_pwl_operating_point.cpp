@@ -343,3 +343,51 @@ device_models = "piecewise_linear"
     CHECK(by_default.get(m) == rel(tight.get(m)).epsilon(1e-3));
   }
 }
+
+TEST_CASE("a pwl step redone to a change of piece an ulp of t short of it lands there (late in a run, tight tolerances)") {
+  // A high-side PNP with a diode + 5.1 V Zener clamp, switched off 0.35 s into its run, at tight
+  // tolerances (relative 1e-9, 1 nV, 1 pA) (the tolerance campaign's seed 2849, invented values).
+  // A change of piece found at an attempt's very end was redone to as a target; the redone step,
+  // its size left an ulp of t short of the distance, ended on the target in the times' rounding
+  // without counting as landing there, looked at its own end, found the change again — for ever,
+  // until the 2,000,000-step budget. Such a step now lands on the target. Against the run at the
+  // default tolerances: peak and release time within the campaign's 0.1 %.
+  const char* text = R"(
+name = "late switch-off, high-side PNP, pwl"
+[supply]
+voltage = "24 V"
+[drive]
+high_level = "5 V"
+switch_off_at = "0.350185 s"
+fall_time = "36.9432 ns"
+rise_time = "9.26952 ns"
+[coil]
+resistance = "11.715 ohm"
+inductance = "0.820481 H"
+release_current = "0.969999 A"
+winding_capacitance = "48.1109 pF"
+[switch]
+topology = "high_side_pnp"
+part = "pnp_small_signal_40v"
+base_resistor = "127.453 ohm"
+pullup_resistor = "4919.98 ohm"
+level_shifter_part = "npn_small_signal_40v"
+level_shifter_base_resistor = "14030.1 ohm"
+[clamp]
+kind = "diode_zener"
+diode_part = "small_signal_diode"
+zener_part = "zener_500mw_5v1"
+[analysis]
+device_models = "piecewise_linear"
+)";
+  auto s = coilkick::scenario::read_scenario_text(text, "late switch-off, PNP", test_support::catalogue()).driver;
+  const auto by_default = drivers::simulate_switch_off(s, test_support::catalogue()).metrics;
+  s.analysis.relative_tolerance = 1e-9;
+  s.analysis.voltage_tolerance_V = 1e-9;
+  s.analysis.current_tolerance_A = 1e-12;
+  const auto tight = drivers::simulate_switch_off(s, test_support::catalogue()).metrics;
+  for (const char* m : {"switch_voltage_peak_V", "release_time_s"}) {
+    CAPTURE(m);
+    CHECK(tight.get(m) == rel(by_default.get(m)).epsilon(1e-3));
+  }
+}

@@ -289,7 +289,11 @@ class TransientRun {
       if (!qs) dt_ = std::min(dt_, cap);
     }
     bool lands_on_target = false;
-    if (dt_ >= remaining) {
+    // A step that reaches the target in the times' own rounding lands on it: late in a run (an
+    // edge 0.35 s in, where a double resolves 5.6e-17 s) a step redone to a change of piece found
+    // at the previous attempt's end could be an ulp of t short of it, end on it all the same,
+    // and — not landing — find the change there again, for ever (the step budget used up).
+    if (dt_ >= remaining || t_ + dt_ >= target_) {
       proposed_dt_ = dt_;
       dt_ = remaining;
       lands_on_target = true;
