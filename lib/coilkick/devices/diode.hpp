@@ -144,7 +144,8 @@ class PwlDiode final : public TerminalDevice<PwlDiode, 2> {
   // of femtoseconds that a run switching pieces through it resolves below its minimum step (a
   // random driver's Schottky + Zener clamp node). The zero-bias value, as the pwl transistors
   // keep, was tried too: it is the largest the junction has, and against the physical level on
-  // the bundled scenarios' compare it let more tails ring that do not (README, "Speed").
+  // the bundled scenarios' compare it let more tails ring that do not (README, "Edges, by
+  // random drivers").
   bool has_charges() const { return fixed_capacitance_F_ > 0.0; }
   double fixed_capacitance_F() const { return fixed_capacitance_F_; }
   static constexpr bool kLinearCharges = true;  // fixed capacitance (TerminalDevice)

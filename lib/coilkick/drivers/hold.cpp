@@ -216,7 +216,7 @@ struct HoldSolver {
         }
         if (d1 >= hi && f0 < 0.0) throw std::invalid_argument(no_duty("even the longest duty stays below"));
         if (d1 <= lo && f0 > 0.0) throw std::invalid_argument(no_duty("even the shortest duty exceeds"));
-        throw engine::SimulationError(no_duty("the duty search stalled without a bracket below"));
+        throw engine::SimulationError(no_duty("the duty search stalled (its next duty the last one) short of"));
       }
       x = hold_at(d1, x);
       const double f1 = out.average_current_A - target;
