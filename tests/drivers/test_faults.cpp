@@ -316,3 +316,74 @@ release_time = "1.13 ms"
   CHECK(std::abs(f.coil_current_on_A) < 1e-9);
   CHECK(has(f, "relay never operates"));
 }
+
+TEST_CASE("faults: a pwl Darlington board with a cable and two channels reads every fault (the DC Newton across a pwl corner)") {
+  // Two pwl Darlington channels at the end of 64.5 m of cable, a TVS across each switch, a 12 V
+  // rail through a reverse-polarity diode with its bulk capacitor (invented values; the random
+  // drivers' fault campaign, scripts/fault_campaign.py, seed 192). With the bulk capacitor open
+  // or 30 % of either coil's turns shorted the DC Newton stopped on a corner of the pwl
+  // Darlington's curves: the slopes of the corner's one side gave a step along which the
+  // residual did not fall, the line search halved it to nothing for 200 iterations, and the
+  // three faults were listed as "could not be simulated".
+  const auto sc = coilkick::scenario::read_scenario_text(R"(
+name = "two channels at the end of a cable"
+[supply]
+voltage = "12 V"
+source_resistance = "0.0230931 ohm"
+bulk_capacitance = "4.72449e-05 F"
+bulk_capacitor_esr = "0.00512244 ohm"
+source_inductance = "4.85669e-06 H"
+reverse_polarity_diode_part = "small_signal_diode"
+[drive]
+high_level = "5 V"
+switch_off_at = "1 ms"
+fall_time = "1.8996e-08 s"
+rise_time = "1.10929e-07 s"
+[coil]
+resistance = "16.4336 ohm"
+inductance = "0.0116828 H"
+release_current = "0.208641 A"
+[switch]
+topology = "low_side_darlington"
+part = "darlington_npn_100v"
+base_resistor = "3490.29 ohm"
+[clamp]
+kind = "tvs_across_switch"
+tvs_part = "tvs_400w_24v"
+[analysis]
+device_models = "piecewise_linear"
+[cable]
+length = "64.5024 m"
+[[channel]]
+name = "ch2"
+drive.switch_off_at = "0.001 s"
+)", "two channels", test_support::catalogue());
+  const auto rep = analyse_faults(sc.driver, test_support::catalogue());
+  for (const auto& f : rep.faults) {
+    CAPTURE(f.label());
+    CAPTURE(f.error);
+    CHECK(f.error.empty());
+  }
+  // An open capacitor changes no DC point (a capacitor carries no direct current: Nilsson &
+  // Riedel, "Electric Circuits", 10th ed., ch. 6, from memory): every reading as on the healthy
+  // board. Within 1 µV: the off-state's nodes hang on picoamperes of leakage, where the two
+  // solves end 1e-8 V apart (measured) on the Newton's 1 nV tolerance and minimum conductances.
+  const FaultCase& bulk = find(rep, "bulk_capacitor", "open");
+  REQUIRE(bulk.error.empty());
+  for (const auto& r : rep.healthy.readings) {
+    CAPTURE(r.node);
+    CHECK(std::abs(on(bulk, r.node) - r.on_V) < 1e-6);
+    CHECK(std::abs(off(bulk, r.node) - r.off_V) < 1e-6);
+  }
+  // Shorted turns: the coil's 70 % resistance carries the coil current, Ohm's law across its
+  // two ends (the cable's cores outside it), to the Newton's tolerance.
+  for (const char* coil : {"coil", "ch2.coil"}) {
+    CAPTURE(coil);
+    const FaultCase& f = find(rep, coil, "30 % of turns shorted");
+    REQUIRE(f.error.empty());
+    const std::string prefix = std::string(coil) == "coil" ? "" : "ch2.";
+    const double across = on(f, prefix + "coil_in") - on(f, prefix + "coil_out");
+    CHECK(f.coil_current_on_A == rel(across / (0.7 * 16.4336)).epsilon(1e-6));
+    CHECK(f.coil_current_on_A > 1.2 * rep.healthy_for(f.channel).coil_current_on_A);
+  }
+}

@@ -71,6 +71,9 @@ bool residual_at_round_off(const Eigen::VectorXd& r, const Eigen::VectorXd& scal
 constexpr double kStalledReduction = 1e-2;
 constexpr int kStalledIterations = 10;
 
+// How far along a Newton step its pieces are probed when the step finds no descent (a pwl corner).
+constexpr double kCornerProbe = 1e-6;
+
 // Nothing left to balance: node rows within a thousandth of the current tolerance (femtoamperes
 // by default) or 1e-8 of their row's scale (what the row changes by when its states move by 1e-8
 // of their size), every other row at its round-off.
@@ -194,18 +197,34 @@ CircuitState newton(const Circuit& circuit, const CircuitState& guess, const Ope
     // The first try is usually taken: it assembles the slopes the next iteration needs; a
     // shorter step's try assembles the residual alone (the same values), and the point taken
     // gets its slopes afterwards.
-    double lambda = extension > 1.0 ? extension : 1.0;
     double norm_try = 0.0;
     bool with_slopes = true;
-    for (int k = 0; k < 30; ++k) {
-      x_try = x;
-      x_try.head(nc) += lambda * dx;
-      with_slopes = k == 0;
-      circuit.assemble(t, t, x_try.data(), w, with_slopes);
-      residual(circuit, w, x_try.head(nc), gmin, r_try);
-      norm_try = relative_norm(r_try, scale);
-      if (std::isfinite(norm_try) && norm_try <= norm * (1.0 - 1e-4 * std::min(lambda, 1.0))) break;
-      lambda = lambda > 1.0 ? 1.0 : 0.5 * lambda;
+    auto search = [&](const Eigen::VectorXd& step, double lambda) {
+      for (int k = 0; k < 30; ++k) {
+        x_try = x;
+        x_try.head(nc) += lambda * step;
+        with_slopes = k == 0;
+        circuit.assemble(t, t, x_try.data(), w, with_slopes);
+        residual(circuit, w, x_try.head(nc), gmin, r_try);
+        norm_try = relative_norm(r_try, scale);
+        if (std::isfinite(norm_try) && norm_try <= norm * (1.0 - 1e-4 * std::min(lambda, 1.0))) return true;
+        lambda = lambda > 1.0 ? 1.0 : 0.5 * lambda;
+      }
+      return false;
+    };
+    if (!search(dx, extension > 1.0 ? extension : 1.0) && circuit.piece_slot_count() > 0) {
+      // No descent along the step: x sits on a pwl corner whose other side the step enters,
+      // and the slopes of this side predict it wrongly. Slopes of the pieces a hair along the
+      // step (held at x: the curves are continuous, the residual the same), and their step.
+      Eigen::VectorXd probe = x;
+      probe.head(nc) += kCornerProbe * dx;
+      circuit.choose_pieces(t, probe.data(), w);
+      w.hold_pieces = true;
+      circuit.assemble(t, t, x.data(), w);
+      w.hold_pieces = false;
+      Eigen::MatrixXd g_past = w.flow_slope.topLeftCorner(nc, nc);
+      g_past.diagonal() -= gmin;
+      search(newton_step(g_past, r, t), 1.0);
     }
     if (!with_slopes) circuit.assemble(t, t, x_try.data(), w);
     stalled = norm_try > (1.0 - kStalledReduction) * norm ? stalled + 1 : 0;
