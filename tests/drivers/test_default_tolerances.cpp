@@ -8,6 +8,7 @@
 #include <utility>
 #include <vector>
 
+#include "coilkick/engine/errors.hpp"
 #include "coilkick/scenario/scenario.hpp"
 #include "driver_fixture.hpp"
 
@@ -252,4 +253,52 @@ release_time = "0.00726337 s"
   }
   // Kirchhoff's current law: the clamp takes at most the coil's current (common practice).
   CHECK(a.get("clamp_current_peak_A") <= a.get("coil_current_at_switch_off_A") * (1.0 + 1e-9));
+}
+
+TEST_CASE("tight tolerances late in a run: a step below the time's resolution is named, with the switch-off time to move") {
+  // A high-side P-MOSFET relay with an active clamp, its drive's 1.9 ns fall 1.00761 s into the
+  // run (invented values; scripts/tolerance_campaign.py, seed 2335). At relative 1e-9, 1 nV and
+  // 1 pA the logic output's ramp (2.5e9 V/s) asks for steps below 64 ulps of t = 1 s (1.4e-14 s),
+  // where the stages' own times round by 2e-16 s — 5e-7 V on that ramp, far above 1 nV — at both
+  // device levels. The run fails (a solver failure is an error, not a result), saying that the
+  // time's rounding set the limit and naming the scenario field that moves it; with the same
+  // switch-off at 1 ms, where a double resolves a thousand times finer, the same tolerances run.
+  auto spec = test_support::at_tight_tolerances(coilkick::scenario::read_scenario_text(R"(
+name = "late edge"
+[supply]
+voltage = "12 V"
+[drive]
+high_level = "5 V"
+switch_off_at = "1.00761 s"
+fall_time = "1.92415e-09 s"
+rise_time = "9.31623e-07 s"
+[coil]
+resistance = "10.5014 ohm"
+inductance = "2.11626 H"
+release_current = "0.67374 A"
+[switch]
+topology = "high_side_pmos"
+part = "pmos_logic_level_60v"
+gate_resistor = "43.3834 ohm"
+pullup_resistor = "13200.3 ohm"
+level_shifter_part = "npn_small_signal_40v"
+level_shifter_base_resistor = "1004.2 ohm"
+[clamp]
+kind = "active_clamp"
+diode_part = "rectifier_1a"
+resistor = "636.07 ohm"
+active_clamp_zener_part = "zener_500mw_33v"
+)", "late edge", test_support::catalogue()).driver, 1e-9);
+  for (const auto level : {devices::ModelLevel::physical, devices::ModelLevel::pwl}) {
+    CAPTURE(devices::to_string(level));
+    spec.analysis.model_level = level;
+    spec.drive.switch_off_at_s = 1.00761;
+    const std::string m = test_support::switch_off_error<engine::TimeResolutionError>(spec);
+    CHECK(m.find("the shortest step the rounding of t allows") != std::string::npos);
+    CHECK(m.find("drive.switch_off_at = 1.00761 s") != std::string::npos);
+    // At the pwl level a chatter between pieces may be what shrank the steps: both hints.
+    CHECK((m.find("pwl device level") != std::string::npos) == (level == devices::ModelLevel::pwl));
+    spec.drive.switch_off_at_s = 1e-3;
+    CHECK(test_support::switch_off_error<engine::SimulationError>(spec).empty());
+  }
 }

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <sstream>
 #include <string>
 
 #include "coilkick/drivers/off_state.hpp"
@@ -45,21 +46,34 @@ OperatingPoints pwl_points_from_physical(const DriverSpec& spec, const BuiltDriv
 
 bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == devices::ModelLevel::pwl; }
 
-// A pwl run that fails says where to turn: at the pwl level a fast loop through a clamp (an active
+// A run that fails says where to turn: at the pwl level a fast loop through a clamp (an active
 // clamp's Zener into a Darlington's base) can switch pieces at picoseconds without end, where the
-// physical curves are smooth.
-[[noreturn]] void rethrow_with_level_hint(const engine::SimulationError& e) {
-  throw engine::SimulationError(std::string(e.what()) +
-                                " (at the pwl device level, whose piecewise-linear curves a fast loop can switch between without end; "
-                                "the physical level, analysis.device_models = \"physical\", has smooth ones)");
+// physical curves are smooth; a step that met the time's own rounding (late in a run: 64 ulps of
+// t = 1 s are 1.4e-14 s) is finer with the switch-off earlier in the run, or not asked for at
+// looser tolerances.
+[[noreturn]] void rethrow_with_hints(const DriverSpec& spec, const engine::SimulationError& e, bool time_resolution) {
+  std::ostringstream m;
+  m << e.what() << " (";
+  if (is_pwl(spec)) {
+    m << "at the pwl device level, whose piecewise-linear curves a fast loop can switch between without end; "
+         "the physical level, analysis.device_models = \"physical\", has smooth ones";
+    if (time_resolution) m << "; ";
+  }
+  if (time_resolution) {
+    m << "the switch-off at drive.switch_off_at = " << spec.drive.switch_off_at_s
+      << " s: an earlier switch-off is resolved more finely, or looser analysis tolerances ask for less";
+  }
+  m << ")";
+  if (time_resolution) throw engine::TimeResolutionError(m.str());
+  throw engine::SimulationError(m.str());
 }
 
 }  // namespace
 
 SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Catalogue& parts, const OperatingPoints* starts) {
   const BuiltDriver b = build_driver_network(spec, parts);
-  if (!is_pwl(spec)) return simulate_switch_off(spec, b, starts);
   try {
+    if (!is_pwl(spec)) return simulate_switch_off(spec, b, starts);
     if (starts) return simulate_switch_off(spec, b, starts);
     try {
       return simulate_switch_off(spec, b, nullptr);
@@ -67,8 +81,11 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Cat
       const OperatingPoints from_physical = pwl_points_from_physical(spec, b, parts, failure);
       return simulate_switch_off(spec, b, &from_physical);
     }
+  } catch (const engine::TimeResolutionError& e) {
+    rethrow_with_hints(spec, e, true);
   } catch (const engine::SimulationError& e) {
-    rethrow_with_level_hint(e);
+    if (!is_pwl(spec)) throw;
+    rethrow_with_hints(spec, e, false);
   }
 }
 

@@ -15,6 +15,13 @@ class SimulationError : public std::runtime_error {
   explicit SimulationError(const std::string& what) : std::runtime_error(what) {}
 };
 
+// A step shorter than the time itself resolves (64 ulps of t): the tolerances ask, late in a
+// run, for finer steps than a double's time can make there.
+class TimeResolutionError : public SimulationError {
+ public:
+  explicit TimeResolutionError(const std::string& what) : SimulationError(what) {}
+};
+
 // A DC operating point that Newton and the pseudo-transient continuation did not find.
 class OperatingPointError : public SimulationError {
  public:

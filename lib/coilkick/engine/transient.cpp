@@ -214,12 +214,13 @@ class TransientRun {
   double next_progress_ = 0.01;
 
 
-  [[noreturn]] void fail(const std::string& why) {
+  std::string failure_message(const std::string& why) {
     std::ostringstream m;
     m << "transient failed at t = " << t_ << " s (step " << dt_ << " s): " << why << "; the error is largest in "
       << describe_state(circuit_, worst_state_, x_, w_);
-    throw SimulationError(m.str());
+    return m.str();
   }
+  [[noreturn]] void fail(const std::string& why) { throw SimulationError(failure_message(why)); }
 
   void guard_budgets() {
     if (stats_.accepted_steps + stats_.rejected_steps >= options_.maximum_steps) {
@@ -303,6 +304,10 @@ class TransientRun {
       if (last_nonfinite_) m << "the states became non-finite (NaN or infinite) at every step size tried, down to ";
       else m << "the step size fell below the minimum ";
       m << min_step << " s";
+      if (!last_nonfinite_ && min_step > options_.minimum_step_s) {
+        m << ", the shortest step the rounding of t allows (64 ulps of t): this late in the run the time resolves no finer";
+        throw TimeResolutionError(failure_message(m.str()));
+      }
       fail(m.str());
     }
     return lands_on_target;
