@@ -79,6 +79,35 @@ TEST_CASE("minimum step larger than the edge needs: fails naming the minimum") {
                        SimulationError);
 }
 
+TEST_CASE("a step below the time's own resolution fails as such, and the same edge earlier runs") {
+  // A 5 V edge of 2 ns through 50 Ω into 10 pF (τ = 0.5 ns), asked for to 1e-10 and 1 pV. At
+  // t = 1 s a double resolves 2.2e-16 s: the stages' times round by that, 5e-7 V on the 2.5e9 V/s
+  // ramp, and the steps shrink to 64 ulps of t (1.4e-14 s), where no step can be made: the run
+  // fails, naming the time's rounding (TimeResolutionError). The same edge at 1 µs (a double
+  // resolves 2e-22 s there) runs, its end the source's 5 V (the RC's steady state).
+  for (const double edge_s : {1.0, 1e-6}) {
+    CAPTURE(edge_s);
+    Network net;
+    net.add_voltage_source("logic", "logic", Waveform::edge(0.0, 5.0, edge_s, 2e-9));
+    net.add_resistor("r", "logic", "a", 50.0);
+    net.add_capacitor("c", "a", Network::ground, 10e-12);
+    Circuit c(net);
+    TransientOptions o;
+    o.stop_time_s = edge_s + 20e-9;
+    o.relative_tolerance = 1e-10;
+    o.voltage_tolerance_V = 1e-12;
+    o.maximum_steps = 200000;
+    if (edge_s == 1.0) {
+      CHECK_THROWS_WITH_AS(simulate(c, zero_state(c, 0.0), o), doctest::Contains("the shortest step the rounding of t allows"),
+                           TimeResolutionError);
+    } else {
+      const auto res = simulate(c, zero_state(c, 0.0), o);
+      const auto v = res.node_voltage_V("a");
+      CHECK(v[v.size() - 1] == rel(5.0).epsilon(1e-9));
+    }
+  }
+}
+
 namespace {
 // An element that produces NaN after 1 µs: stands for a device model breaking down.
 class BrokenElement final : public Element {

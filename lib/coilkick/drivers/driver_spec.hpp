@@ -65,7 +65,7 @@ struct DriveSpec {
   double output_resistance_ohm = 50.0;  // logic output resistance
   double rise_time_s = 10e-9;
   double fall_time_s = 10e-9;
-  double switch_off_at_s = 1e-3;  // start of the switch-off edge; the run starts in the on-state at 0
+  double switch_off_at_s = 1e-3;  // start of the switch-off edge; the run starts in the on-state at 0 (a later edge: run_time_origin.hpp)
   // Optional repetition (for clamp_average_power_W): period of the on/off cycle; 0 = single.
   double period_s = 0.0;
 };

@@ -7,6 +7,7 @@
 
 #include "coilkick/drivers/off_state.hpp"
 #include "coilkick/drivers/on_state.hpp"
+#include "coilkick/drivers/run_time_origin.hpp"
 #include "coilkick/drivers/switch_off_checks.hpp"
 #include "coilkick/drivers/switch_off_transient.hpp"
 #include "coilkick/engine/circuit.hpp"
@@ -48,10 +49,11 @@ bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == device
 
 // A run that fails says where to turn: at the pwl level a fast loop through a clamp (an active
 // clamp's Zener into a Darlington's base) can switch pieces at picoseconds without end, where the
-// physical curves are smooth; a step that met the time's own rounding (late in a run: 64 ulps of
-// t = 1 s are 1.4e-14 s) is finer with the switch-off earlier in the run, or not asked for at
-// looser tolerances.
-[[noreturn]] void rethrow_with_hints(const DriverSpec& spec, const engine::SimulationError& e, bool time_resolution) {
+// physical curves are smooth; a step that met the time's own rounding (64 ulps of t) is finer with
+// the switch-off earlier in the run (where the run did not move it there: run_time_origin.hpp),
+// or not asked for at looser tolerances. `spec` is the scenario's description, `shift_s` how far
+// the run moved its times.
+[[noreturn]] void rethrow_with_hints(const DriverSpec& spec, double shift_s, const engine::SimulationError& e, bool time_resolution) {
   std::ostringstream m;
   m << e.what() << " (";
   if (is_pwl(spec)) {
@@ -59,7 +61,10 @@ bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == device
          "the physical level, analysis.device_models = \"physical\", has smooth ones";
     if (time_resolution) m << "; ";
   }
-  if (time_resolution) {
+  if (time_resolution && shift_s > 0.0) {
+    m << "the switch-off at drive.switch_off_at = " << spec.drive.switch_off_at_s << " s was run " << kEarliestEdgeInRun_s
+      << " s into the run already: looser analysis tolerances ask for less";
+  } else if (time_resolution) {
     m << "the switch-off at drive.switch_off_at = " << spec.drive.switch_off_at_s
       << " s: an earlier switch-off is resolved more finely, or looser analysis tolerances ask for less";
   }
@@ -68,25 +73,34 @@ bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == device
   throw engine::SimulationError(m.str());
 }
 
+// The switch-off of `run` (the scenario's driver `spec`, its times moved by −shift_s), a pwl
+// driver's DC points from the physical level's where its own Newton fails.
+SwitchOffResult run_switch_off(const DriverSpec& spec, const DriverSpec& run, double shift_s, const catalogue::Catalogue& parts,
+                               const OperatingPoints* starts) {
+  const BuiltDriver b = build_driver_network(run, parts);
+  try {
+    if (!is_pwl(run)) return simulate_switch_off(run, b, starts);
+    if (starts) return simulate_switch_off(run, b, starts);
+    try {
+      return simulate_switch_off(run, b, nullptr);
+    } catch (const engine::OperatingPointError& failure) {
+      const OperatingPoints from_physical = pwl_points_from_physical(run, b, parts, failure);
+      return simulate_switch_off(run, b, &from_physical);
+    }
+  } catch (const engine::TimeResolutionError& e) {
+    rethrow_with_hints(spec, shift_s, e, true);
+  } catch (const engine::SimulationError& e) {
+    if (!is_pwl(run)) throw;
+    rethrow_with_hints(spec, shift_s, e, false);
+  }
+}
+
 }  // namespace
 
 SwitchOffResult simulate_switch_off(const DriverSpec& spec, const catalogue::Catalogue& parts, const OperatingPoints* starts) {
-  const BuiltDriver b = build_driver_network(spec, parts);
-  try {
-    if (!is_pwl(spec)) return simulate_switch_off(spec, b, starts);
-    if (starts) return simulate_switch_off(spec, b, starts);
-    try {
-      return simulate_switch_off(spec, b, nullptr);
-    } catch (const engine::OperatingPointError& failure) {
-      const OperatingPoints from_physical = pwl_points_from_physical(spec, b, parts, failure);
-      return simulate_switch_off(spec, b, &from_physical);
-    }
-  } catch (const engine::TimeResolutionError& e) {
-    rethrow_with_hints(spec, e, true);
-  } catch (const engine::SimulationError& e) {
-    if (!is_pwl(spec)) throw;
-    rethrow_with_hints(spec, e, false);
-  }
+  const double shift = run_time_shift_s(spec);
+  if (shift == 0.0) return run_switch_off(spec, spec, 0.0, parts, starts);
+  return in_scenario_time(run_switch_off(spec, moved_in_time(spec, shift), shift, parts, starts), spec, parts, shift);
 }
 
 OperatingPoints solve_operating_points(const DriverSpec& spec, const catalogue::Catalogue& parts) {

@@ -17,7 +17,7 @@
 namespace coilkick::drivers {
 
 struct SwitchOffWaveforms {
-  Eigen::VectorXd time_s;            // accepted time points, from 0 (on-state) to the end
+  Eigen::VectorXd time_s;            // accepted time points, from the run's start in the on-state (run_time_origin.hpp) to the end
   Eigen::VectorXd switch_voltage_V;  // across the switch (collector–emitter / drain–source magnitude)
   Eigen::VectorXd coil_current_A;
   Eigen::VectorXd clamp_current_A;   // through the first clamp part (0 if there is none)

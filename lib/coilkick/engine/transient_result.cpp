@@ -98,6 +98,19 @@ void TransientResult::sample(double t_s, double* out) const {
   x = h00 * states_.row(i0) + h10 * h * rates_.row(i0) + h01 * states_.row(i1) + h11 * h * rates_.row(i1);
 }
 
+TransientResult TransientResult::moved_in_time(double shift_s, Circuit circuit) const {
+  if (circuit.state_count() != circuit_.state_count()) {
+    throw std::invalid_argument("transient result: a circuit of other states cannot read this run");
+  }
+  std::vector<double> times = times_;
+  for (double& t : times) t += shift_s;
+  std::vector<EventOutcome> events = events_;
+  for (auto& e : events) {
+    if (e.time_s) *e.time_s += shift_s;
+  }
+  return TransientResult(std::move(circuit), std::move(times), states_, rates_, std::move(events), energy_, stats_);
+}
+
 UniformSamples TransientResult::resample(double step_s) const {
   if (!(step_s > 0.0) || !std::isfinite(step_s)) {
     throw std::invalid_argument("transient result: resample step_s must be finite and > 0");

@@ -72,6 +72,9 @@ class TransientResult {
   void sample(double t_s, double* out) const;
   // The run resampled on a uniform grid with the given step (first and last point included).
   UniformSamples resample(double step_s) const;
+  // The same run on a time axis moved by shift_s (every point and event at t + shift_s), read
+  // through `circuit`: the circuit of the same states whose sources are those of the moved axis.
+  TransientResult moved_in_time(double shift_s, Circuit circuit) const;
 
  private:
   Circuit circuit_;
