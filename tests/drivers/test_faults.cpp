@@ -9,6 +9,7 @@
 
 #include "coilkick/drivers/faults.hpp"
 #include "coilkick/scenario/scenario.hpp"
+#include "campaign_boards.hpp"
 #include "driver_fixture.hpp"
 
 using namespace coilkick;
@@ -385,5 +386,25 @@ drive.switch_off_at = "0.001 s"
     const double across = on(f, prefix + "coil_in") - on(f, prefix + "coil_out");
     CHECK(f.coil_current_on_A == rel(across / (0.7 * 16.4336)).epsilon(1e-6));
     CHECK(f.coil_current_on_A > 1.2 * rep.healthy_for(f.channel).coil_current_on_A);
+  }
+}
+
+TEST_CASE("faults of a board switched off late in the run: every fault reads, the healthy board's metrics those of its switch-off") {
+  // The four-channel pwl board switched off 0.587 s into the run (campaign_boards.hpp): its
+  // healthy switch-off had failed there (steps at 64 ulps of t), and with it the whole fault
+  // analysis ("healthy driver: simulation failed"). Faults now run on the run's own time axis
+  // (drivers/run_time_origin.hpp), as the switch-off does: every fault reads, and the healthy
+  // board's switch-off metrics are those of simulate_switch_off (the same runs: to 1e-12).
+  const auto spec = test_support::sliding_corners_board();
+  const auto rep = analyse_faults(spec, test_support::catalogue());
+  for (const auto& f : rep.faults) {
+    CAPTURE(f.label());
+    CAPTURE(f.error);
+    CHECK(f.error.empty());
+  }
+  const auto r = simulate_switch_off(spec, test_support::catalogue());
+  for (const char* m : {"switch_voltage_peak_V", "release_time_s", "clamp_energy_J"}) {
+    CAPTURE(m);
+    CHECK(rep.healthy.switch_off.get(m) == rel(r.metrics.get(m)).epsilon(1e-12));
   }
 }

@@ -17,6 +17,7 @@
 #include "coilkick/drivers/faults.hpp"
 #include "coilkick/engine/errors.hpp"
 #include "coilkick/scenario/scenario.hpp"
+#include "campaign_boards.hpp"
 #include "driver_fixture.hpp"
 
 using namespace coilkick;
@@ -203,53 +204,7 @@ TEST_CASE("a pwl board whose level shifters' corners slide runs when switched of
   // bundled scenarios: 6.5 % at worst, README "Edges, by random drivers"; here 6 % and 5.5 %,
   // measured). A pwl run that fails (here its wall-time budget cut to a microsecond) says that
   // the physical level has smooth curves; a physical one does not.
-  const char* text = R"(
-name = "four channels, sliding corners"
-[supply]
-voltage = "36 V"
-[drive]
-high_level = "5 V"
-switch_off_at = "0.587259 s"
-fall_time = "146.608 ns"
-rise_time = "6.12329 ns"
-[coil]
-resistance = "12.4442 ohm"
-inductance = "1.46159 H"
-release_current = "505.727 mA"
-[switch]
-topology = "high_side_pmos"
-part = "pmos_logic_level_60v"
-gate_resistor = "946.818 ohm"
-pullup_resistor = "51891.5 ohm"
-level_shifter_part = "npn_small_signal_40v"
-level_shifter_base_resistor = "1113.85 ohm"
-[clamp]
-kind = "diode"
-diode_part = "small_signal_diode"
-[analysis]
-device_models = "piecewise_linear"
-[[channel]]
-name = "ch2"
-[channel.coil]
-resistance = "706.939 ohm"
-inductance = "1.25944 H"
-release_current = "25.3649 mA"
-[channel.drive]
-switch_off_at = "0.587846 s"
-[[channel]]
-name = "ch3"
-[channel.coil]
-resistance = "340.447 ohm"
-inductance = "2.16332 H"
-release_current = "24.6926 mA"
-[[channel]]
-name = "ch4"
-[channel.coil]
-resistance = "15.0469 ohm"
-inductance = "3.41273 mH"
-release_current = "849.799 mA"
-)";
-  auto s = coilkick::scenario::read_scenario_text(text, "sliding corners", test_support::catalogue()).driver;
+  auto s = test_support::sliding_corners_board();
   const auto pwl = drivers::simulate_switch_off(s, test_support::catalogue()).metrics;
   auto p = s;
   p.analysis.model_level = devices::ModelLevel::physical;

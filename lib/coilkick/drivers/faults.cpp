@@ -11,6 +11,7 @@
 #include "coilkick/drivers/driver_network.hpp"
 #include "coilkick/drivers/off_state.hpp"
 #include "coilkick/drivers/operating_point_start.hpp"
+#include "coilkick/drivers/run_time_origin.hpp"
 #include "coilkick/drivers/switch_off.hpp"
 #include "coilkick/engine/circuit.hpp"
 #include "coilkick/engine/errors.hpp"
@@ -361,6 +362,9 @@ FaultCases fault_cases(const DriverSpec& spec, const BuiltDriver& healthy) {
 }
 
 FaultReport analyse_faults(const DriverSpec& spec, const catalogue::Catalogue& parts, const std::function<void(int, int)>& progress) {
+  // A late switch-off on the run's own time axis (run_time_origin.hpp): the report holds DC
+  // readings and metrics measured from the edges, nothing on the scenario's time axis.
+  if (const double shift = run_time_shift_s(spec); shift > 0.0) return analyse_faults(moved_in_time(spec, shift), parts, progress);
   const BuiltDriver healthy = build_driver_network(spec, parts);
   const FaultCases cases = fault_cases(spec, healthy);
   // A pwl board's faults at the physical level, the DC starts where the pwl Newton fails.
