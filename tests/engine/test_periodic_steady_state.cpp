@@ -123,3 +123,26 @@ TEST_CASE("periodic steady state: a period that returns the state bit for bit ha
     CHECK(get_state(c, pss.state, "coil.current") == rel(s.V / s.R).epsilon(1e-6));
   }
 }
+
+TEST_CASE("periodic steady state: a period run stopped by the search's wall-time budget names that budget") {
+  // The search's budget is shared out to its period runs, each getting what is left of it (at
+  // least 1 ms). A run stopped there had failed with its own share ("the wall-time budget of
+  // 0.00999 s is used up") while the user had set the search's. Here steps of at most 1 ns make
+  // one 50 µs period 50,000 steps (~0.1 s of work) against a budget of 10 ms.
+  SquareWaveCoil s;
+  const Circuit c(s.net);
+  PeriodicOptions p;
+  p.period_s = s.T;
+  p.maximum_wall_time_s = 0.01;
+  p.allow_shooting = false;  // the periods one by one: a shooting run's failure falls back to them
+  TransientOptions o = s.options();
+  o.maximum_step_s = 1e-9;
+  try {
+    periodic_steady_state(c, zero_state(c, s.T), o, p);
+    FAIL("expected SimulationError");
+  } catch (const SimulationError& e) {
+    const std::string m = e.what();
+    CAPTURE(m);
+    CHECK(m.find("periodic steady state not reached within the wall-time budget of 0.01 s") != std::string::npos);
+  }
+}

@@ -54,13 +54,26 @@ struct Shooter {
     run.replay_step_times_s = replay;
     run.maximum_wall_time_s = std::max(p.maximum_wall_time_s - elapsed_s(), 1e-3);
     run.maximum_steps = std::min(run.maximum_steps, step_budget);
-    const TransientResult r = simulate(c, s, run);
+    const TransientResult r = run_period(s, run);
     if (steps && step_budget == o.maximum_steps) {
       const long attempts = r.statistics().accepted_steps + r.statistics().rejected_steps;
       step_budget = std::max(kLeastStepBudget, kStepBudgetFactor * attempts);
     }
     if (steps) *steps = r.times_s();
     return r.states().row(r.states().rows() - 1).transpose().head(x.size());
+  }
+  // One period's run; one stopped by what was left of the wall-time budget fails as the whole
+  // search's budget (the run's own share, down to its floor of 1 ms, says nothing to the user).
+  TransientResult run_period(const CircuitState& s, const TransientOptions& run) {
+    try {
+      return simulate(c, s, run);
+    } catch (const SimulationError& e) {
+      if (!out_of_time()) throw;
+      std::ostringstream m;
+      m << "periodic steady state not reached within the wall-time budget of " << p.maximum_wall_time_s << " s (" << out.period_runs
+        << " period runs; the last stopped at: " << e.what() << ")";
+      throw SimulationError(m.str());
+    }
   }
   // Size of each state: the largest state of its kind seen so far (volts against volts, amperes
   // against amperes), at least a thousand absolute tolerances. It never shrinks, so that a step
