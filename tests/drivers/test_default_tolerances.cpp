@@ -10,6 +10,7 @@
 #include <utility>
 #include <vector>
 
+#include "coilkick/engine/errors.hpp"
 #include "coilkick/scenario/scenario.hpp"
 #include "driver_fixture.hpp"
 
@@ -311,5 +312,12 @@ active_clamp_zener_part = "zener_500mw_33v"
     CHECK(std::abs(*release.time_s - (1.00761 + a.metrics.get("release_time_s"))) < 1e-12);
     CHECK(a.waveforms.time_s[a.waveforms.time_s.size() - 1] == a.transient->end_time_s());
     CHECK(a.transient->end_time_s() > 1.00761);
+    // A failure of the moved run (its wall-time budget cut to a microsecond) says how the times
+    // in its message relate to the scenario's.
+    auto cut = late;
+    cut.analysis.maximum_wall_time_s = 1e-6;
+    const std::string m = test_support::switch_off_error<engine::SimulationError>(cut);
+    CAPTURE(m);
+    CHECK(m.find("the times above are the run's own, the scenario's less 1.00661 s") != std::string::npos);
   }
 }

@@ -4,6 +4,7 @@
 #include <cmath>
 #include <sstream>
 #include <string>
+#include <vector>
 
 #include "coilkick/drivers/off_state.hpp"
 #include "coilkick/drivers/on_state.hpp"
@@ -51,23 +52,32 @@ bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == device
 // clamp's Zener into a Darlington's base) can switch pieces at picoseconds without end, where the
 // physical curves are smooth; a step that met the time's own rounding (64 ulps of t) is finer with
 // the switch-off earlier in the run (where the run did not move it there: run_time_origin.hpp),
-// or not asked for at looser tolerances. `spec` is the scenario's description, `shift_s` how far
+// or not asked for at looser tolerances; a moved run's message says how its times (the engine's
+// "at t = ...") relate to the scenario's. `spec` is the scenario's description, `shift_s` how far
 // the run moved its times.
 [[noreturn]] void rethrow_with_hints(const DriverSpec& spec, double shift_s, const engine::SimulationError& e, bool time_resolution) {
-  std::ostringstream m;
-  m << e.what() << " (";
+  std::vector<std::string> hints;
   if (is_pwl(spec)) {
-    m << "at the pwl device level, whose piecewise-linear curves a fast loop can switch between without end; "
-         "the physical level, analysis.device_models = \"physical\", has smooth ones";
-    if (time_resolution) m << "; ";
+    hints.push_back("at the pwl device level, whose piecewise-linear curves a fast loop can switch between without end; "
+                    "the physical level, analysis.device_models = \"physical\", has smooth ones");
   }
+  std::ostringstream h;
   if (time_resolution && shift_s > 0.0) {
-    m << "the switch-off at drive.switch_off_at = " << spec.drive.switch_off_at_s << " s was run " << kEarliestEdgeInRun_s
+    h << "the switch-off at drive.switch_off_at = " << spec.drive.switch_off_at_s << " s was run " << kEarliestEdgeInRun_s
       << " s into the run already: looser analysis tolerances ask for less";
   } else if (time_resolution) {
-    m << "the switch-off at drive.switch_off_at = " << spec.drive.switch_off_at_s
+    h << "the switch-off at drive.switch_off_at = " << spec.drive.switch_off_at_s
       << " s: an earlier switch-off is resolved more finely, or looser analysis tolerances ask for less";
   }
+  if (!h.str().empty()) hints.push_back(h.str());
+  if (shift_s > 0.0) {
+    std::ostringstream t;
+    t << "the times above are the run's own, the scenario's less " << shift_s << " s";
+    hints.push_back(t.str());
+  }
+  std::ostringstream m;
+  m << e.what() << " (";
+  for (std::size_t i = 0; i < hints.size(); ++i) m << (i ? "; " : "") << hints[i];
   m << ")";
   if (time_resolution) throw engine::TimeResolutionError(m.str());
   throw engine::SimulationError(m.str());
@@ -90,7 +100,7 @@ SwitchOffResult run_switch_off(const DriverSpec& spec, const DriverSpec& run, do
   } catch (const engine::TimeResolutionError& e) {
     rethrow_with_hints(spec, shift_s, e, true);
   } catch (const engine::SimulationError& e) {
-    if (!is_pwl(run)) throw;
+    if (!is_pwl(run) && shift_s == 0.0) throw;
     rethrow_with_hints(spec, shift_s, e, false);
   }
 }
