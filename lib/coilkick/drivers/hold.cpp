@@ -213,7 +213,8 @@ struct HoldSolver {
         // gate or base leaves the switch off below that on-time and fully on above it: a
         // random driver's P-MOSFET at 48 kHz went from 13 pA to 595 mA within a duty of 1e-18).
         if (!std::isnan(below) && !std::isnan(above)) {
-          if (std::abs(held_above - held_below) <= kDutyNoiseTolerance * target && std::abs(f0) <= kDutyNoiseTolerance * target) return x;
+          // Within the noise: x, the last duty run, is one of the two sides.
+          if (held_above - held_below <= kDutyNoiseTolerance * target) return x;
           std::ostringstream m;
           m << "hold: no duty holds hold.average_current (" << format_si(target, "A") << "): the average jumps from "
             << format_si(held_below, "A") << " to " << format_si(held_above, "A") << " at the duty " << below
