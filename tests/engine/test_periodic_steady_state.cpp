@@ -7,6 +7,7 @@
 #include "../approx.hpp"
 
 #include <cmath>
+#include <memory>
 
 #include "coilkick/coilkick.hpp"
 #include "coilkick/engine/periodic_steady_state.hpp"
@@ -30,6 +31,26 @@ struct SquareWaveCoil {
     o.energy_tolerance_J = 1e-15;
     return o;
   }
+};
+// dy/dt = rate·y + v(in)/(1 s), one internal state following the node "in" without loading it.
+// Its period map under a periodic v(in) is affine, y ↦ e^(rate·T)·y + c: one periodic state, and
+// a deviation from it grows or shrinks by the factor e^(rate·T) each period (the scalar linear
+// ODE's closed-form solution).
+class LinearFollower final : public Element {
+ public:
+  explicit LinearFollower(double rate_per_s) : Element("follower", {"in", Network::ground}), rate_(rate_per_s) {}
+  std::string kind() const override { return "test follower"; }
+  std::vector<InternalStateSpec> internal_states() const override { return {{"y", "V", 1e-9, StateKind::internal}}; }
+  void load(const ElementContext& ctx, Stamper& out) const override {
+    constexpr int y = 2;
+    out.add_mass(y, y, 1.0);
+    out.add_flow(y, rate_ * ctx.value(y) + ctx.value(0));
+    out.add_flow_slope(y, y, rate_);
+    out.add_flow_slope(y, 0, 1.0);
+  }
+
+ private:
+  double rate_;
 };
 }  // namespace
 
@@ -144,5 +165,37 @@ TEST_CASE("periodic steady state: a period run stopped by the search's wall-time
     const std::string m = e.what();
     CAPTURE(m);
     CHECK(m.find("periodic steady state not reached within the wall-time budget of 0.01 s") != std::string::npos);
+  }
+}
+
+TEST_CASE("periodic steady state: a periodic state that repels is refused, not returned") {
+  // The follower under the square wave: with rate·T = −0.05 its periodic state attracts and
+  // shooting reports the multiplier e^(−0.05); with +0.05 the same Newton step lands on the
+  // periodic state, which now repels (multiplier e^(0.05) = 1.051): the circuit never settles
+  // there, so it is refused, and the periods one by one (20 here) drift away from it: an error.
+  // The multiplier to 1e-4: the sensitivities are finite differences along replayed steps,
+  // good to ~1e-5 of the multipliers (periodic_steady_state.cpp).
+  SquareWaveCoil s;
+  for (const double sign : {-1.0, 1.0}) {
+    Network net;
+    net.add_voltage_source("drive", "in", Waveform::pulse_train(0.0, s.V, s.T - s.D * s.T, s.edge, s.D * s.T - s.edge, s.edge, s.T, 0));
+    net.add(std::make_shared<LinearFollower>(sign * 0.05 / s.T));
+    const Circuit c(net);
+    PeriodicOptions p;
+    p.period_s = s.T;
+    p.maximum_direct_periods = 20;
+    if (sign < 0.0) {
+      const auto pss = periodic_steady_state(c, zero_state(c, s.T), s.options(), p);
+      CHECK(pss.method == PeriodicMethod::shooting);
+      CHECK(pss.largest_multiplier == rel(std::exp(-0.05)).epsilon(1e-4));
+      continue;
+    }
+    try {
+      periodic_steady_state(c, zero_state(c, s.T), s.options(), p);
+      FAIL("expected SimulationError");
+    } catch (const SimulationError& e) {
+      CHECK(std::string(e.what()).find("repels") != std::string::npos);
+      CHECK(std::string(e.what()).find("1.051") != std::string::npos);
+    }
   }
 }

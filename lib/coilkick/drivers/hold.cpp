@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <optional>
 #include <sstream>
 #include <stdexcept>
 #include <string>
@@ -13,6 +14,7 @@
 #include "coilkick/engine/errors.hpp"
 #include "coilkick/engine/transient.hpp"
 #include "coilkick/relay/armature_operating_point.hpp"
+#include "coilkick/relay/armature_rest.hpp"
 
 namespace coilkick::drivers {
 namespace {
@@ -25,6 +27,12 @@ constexpr double kDutyCurrentTolerance = 1e-5;  // relative, on the average curr
 // default tolerances reads an average to ~5e-5 (a random driver's pwl P-MOSFET hold read
 // +1.5e-5 and −3.7e-5 of its target at one and the same duty). The project's 0.1 % bar.
 constexpr double kDutyNoiseTolerance = 1e-3;
+// An armature resting on a stop is held at the stop's penetration under the period's average
+// force; that gap is found again from each steady state's average current, at most this many
+// times, until it moves by less than this share of the penetration (the coil's inductance at
+// the gap then no longer moves the average current within its tolerances).
+constexpr int kRestPasses = 4;
+constexpr double kRestGapTolerance = 1e-3;
 
 // The drive network with the logic source's waveform replaced.
 engine::Network with_logic(const BuiltDriver& b, engine::Waveform w) {
@@ -110,12 +118,14 @@ struct HoldSolver {
   }
 
   // Stage 2 for one duty: the steady state, warm-started from `guess` (any time; moved to T).
-  engine::PeriodicSteadyState steady_state(const engine::Circuit& c, const engine::CircuitState& guess) const {
+  // shooting_only: no periods one by one where shooting fails (an engine::SimulationError then).
+  engine::PeriodicSteadyState steady_state(const engine::Circuit& c, const engine::CircuitState& guess, bool shooting_only = false) const {
     const double T = 1.0 / hold.pwm_frequency_Hz;
     engine::CircuitState g{T, guess.values};
     engine::PeriodicOptions p;
     p.period_s = T;
     p.allow_shooting = allow_shooting;
+    if (shooting_only) p.maximum_direct_periods = 0;
     p.maximum_wall_time_s = spec.analysis.maximum_wall_time_s;
     return engine::periodic_steady_state(c, g, options(2.0 * T), p);
   }
@@ -168,8 +178,68 @@ struct HoldSolver {
     measure_period(c, x);
   }
 
+  // Stages 2 and 3 at one duty with the armature held where it rests on one stop (closed or
+  // open), if its stop carries it through the whole steady period; nothing where it does not.
+  // Pressed onto a stop, the armature rings there on the stop's stiffness at a few kHz, damped
+  // only lightly at the small forces of a hold (the stop's damping goes with its force), and
+  // the PWM excites that ringing every period: its multipliers of one period lie near the unit
+  // circle, which neither shooting nor the periods one by one settle quickly, while the coil
+  // sees nothing of it but the inductance at the resting gap. Held there, the armature is a
+  // fixed coil of that inductance (relay/armature_rest.hpp) and the search is the circuit's.
+  // The hold is valid where the stop holds the armature at every instant of the period: on the
+  // closed stop, the lowest current still holds it closed; on the open stop, the highest
+  // current neither lifts it off that stop nor, after a pull-in, could have held it closed (so
+  // it has dropped out, and stays out). A held search is a shortcut: where its shooting fails,
+  // the free armature's search (with its periods one by one) takes over.
+  std::optional<engine::CircuitState> hold_on_stop(double duty, const engine::CircuitState& guess, bool closed) {
+    const relay::ArmatureCoilParameters& p = *b.armature;
+    const double stop = closed ? p.mechanics.residual_gap_m : p.mechanics.open_gap_m;
+    auto rest = [&](double i) { return closed ? relay::resting_gap_closed_m(p, i) : relay::resting_gap_open_m(p, i); };
+    const engine::Network net = pwm_network(duty);
+    const engine::Circuit layout(net);  // the held network's states are the same
+    const int k_i = layout.state_index("coil.current"), k_g = layout.state_index("coil.gap"), k_u = layout.state_index("coil.velocity");
+    engine::CircuitState x = guess;
+    double gap = rest(x.values[k_i]);
+    if (std::isnan(gap)) gap = stop;  // the guess's current is not the hold's: the next pass finds the gap
+    for (int pass = 0; pass < kRestPasses; ++pass) {
+      const engine::Circuit c(relay::with_armatures_held(net, [gap](const relay::ArmatureCoil&) { return gap; }));
+      x.values[k_g] = gap;
+      x.values[k_u] = 0.0;
+      try {
+        out.steady = steady_state(c, x, true);
+      } catch (const engine::SimulationError&) {
+        return std::nullopt;
+      }
+      out.duty = duty;
+      measure_period(c, out.steady.state);
+      x = out.steady.state;
+      const double next = rest(out.average_current_A);
+      if (std::isnan(next)) return std::nullopt;
+      const bool settled = std::abs(next - gap) <= kRestGapTolerance * std::abs(next - stop);
+      gap = next;
+      if (settled) break;
+    }
+    const double lo = out.minimum_current_A, hi = out.maximum_current_A;
+    const double weakest = lo > 0.0 ? lo : hi < 0.0 ? -hi : 0.0, strongest = std::max(std::abs(lo), std::abs(hi));
+    const bool stays = closed ? !std::isnan(relay::resting_gap_closed_m(p, weakest))
+                              : !std::isnan(relay::resting_gap_open_m(p, strongest)) &&
+                                    (!out.armature_pulled_in || std::isnan(relay::resting_gap_closed_m(p, strongest)));
+    if (!stays) return std::nullopt;
+    out.armature_rest = closed ? "closed" : "open";
+    return x;
+  }
+
   // Stages 2 and 3 at one duty; returns the circuit's steady state.
   engine::CircuitState hold_at(double duty, const engine::CircuitState& guess) {
+    out.armature_rest.clear();
+    // An armature resting on a stop (above); the periods one by one (the tests' reference) keep
+    // it free.
+    if (b.armature && allow_shooting) {
+      if (out.armature_pulled_in) {
+        if (auto x = hold_on_stop(duty, guess, true)) return *x;
+      }
+      if (auto x = hold_on_stop(duty, guess, false)) return *x;
+    }
     const engine::Network net = pwm_network(duty);
     const engine::Circuit c(net);
     out.steady = steady_state(c, guess);

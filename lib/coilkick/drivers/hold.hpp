@@ -14,6 +14,7 @@
 // The PWM period starts at the drive's falling edge: the periodic state is the state just before
 // the switch turns off, so the final switch-off is an ordinary falling edge from that state.
 #include <memory>
+#include <string>
 #include <vector>
 
 #include "coilkick/drivers/driver_network.hpp"
@@ -31,6 +32,9 @@ struct HoldResult {
   double pull_in_end_current_A = 0.0;     // coil current when the PWM starts
   bool armature_pulled_in = true;         // armature model: the make contact closed during the pull-in
   bool armature_held = true;              // armature model: the make contact is closed in the steady hold
+  // Armature model: "closed" or "open" where the steady state held the armature on that stop,
+  // which carries it through the whole period (hold.cpp); empty where it moved freely.
+  std::string armature_rest;
   double average_current_A = 0.0, minimum_current_A = 0.0, maximum_current_A = 0.0;  // steady-state period
   double supply_energy_per_period_J = 0.0, clamp_energy_per_period_J = 0.0, switch_energy_per_period_J = 0.0;
   std::vector<double> clamp_part_energy_per_period_J;  // per BuiltDriver::clamp_parts

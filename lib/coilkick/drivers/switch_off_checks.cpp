@@ -232,13 +232,15 @@ struct Checker {
       return;
     }
     const bool shot = h.steady.method == engine::PeriodicMethod::shooting;
+    const std::string rest = h.armature_rest.empty() ? "" : "; the armature rests on its " + h.armature_rest +
+                                                                 " stop through the whole period and was held there";
     out.push_back({"hold_steady_state", shot ? CheckStatus::pass : CheckStatus::warn, h.steady.distance_in_error_scales,
                    10.0, "1",
                    shot ? "the hold's periodic steady state by shooting (" + std::to_string(h.steady.newton_iterations) +
                               " Newton steps, " + std::to_string(h.steady.period_runs) +
                               " periods simulated; it attracts: largest multiplier of one period " +
-                              ratio(h.steady.largest_multiplier) + ")"
-                        : h.steady.note + " (" + std::to_string(h.steady.period_runs) + " periods)"});
+                              ratio(h.steady.largest_multiplier) + ")" + rest
+                        : h.steady.note + " (" + std::to_string(h.steady.period_runs) + " periods)" + rest});
   }
 
   void run_checks(const OffState& off, bool decay_observed) {

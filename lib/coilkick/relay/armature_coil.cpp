@@ -10,7 +10,7 @@ namespace coilkick::relay {
 namespace {
 
 constexpr int kI = 2, kG = 3, kU = 4;  // local indices of the states (terminals a, b are 0, 1)
-// Held armature: the gap relaxes to the residual gap at this rate (1/s) and the velocity to
+// Held armature: the gap relaxes to the held gap at this rate (1/s) and the velocity to
 // zero; started there (as the operating point does) both stay exactly put.
 constexpr double kHoldRate_per_s = 1e3;
 
@@ -80,6 +80,7 @@ ArmatureCoil::ArmatureCoil(std::string name, std::string a, std::string b, Armat
   p_.mechanics.check(owner);
   engine::require_non_negative(owner, "resistance_ohm", p_.resistance_ohm);
   engine::require_positive_or_infinite(owner, "core_loss_resistance_ohm", p_.core_loss_resistance_ohm);
+  if (!std::isnan(p_.hold_gap_m)) engine::require_positive(owner, "hold_gap_m", p_.hold_gap_m);
 }
 
 bool ArmatureCoil::has_core_loss() const { return std::isfinite(p_.core_loss_resistance_ohm); }
@@ -108,9 +109,9 @@ void ArmatureCoil::load(const engine::ElementContext& ctx, engine::Stamper& out)
   const auto& m = p_.mechanics;
   const double i = ctx.value(kI), g = ctx.value(kG), u = ctx.value(kU);
   if (p_.hold_closed) {
-    out.add_mass(kI, kI, mg.inductance_H(m.residual_gap_m));
+    out.add_mass(kI, kI, mg.inductance_H(p_.held_gap_m()));
     out.add_mass(kG, kG, 1.0);
-    out.add_flow(kG, kHoldRate_per_s * (m.residual_gap_m - g));
+    out.add_flow(kG, kHoldRate_per_s * (p_.held_gap_m() - g));
     out.add_flow_slope(kG, kG, -kHoldRate_per_s);
     out.add_mass(kU, kU, 1.0);
     out.add_flow(kU, -kHoldRate_per_s * u);
@@ -169,7 +170,7 @@ void ArmatureCoil::load_mass_slope(const engine::ElementContext& ctx, engine::St
 double ArmatureCoil::stored_energy_J(const engine::ElementContext& ctx) const {
   const auto& m = p_.mechanics;
   const double i = ctx.value(kI), g = ctx.value(kG), u = ctx.value(kU);
-  if (p_.hold_closed) return 0.5 * p_.magnetic.inductance_H(m.residual_gap_m) * i * i;
+  if (p_.hold_closed) return 0.5 * p_.magnetic.inductance_H(p_.held_gap_m()) * i * i;
   const Stops s(m, g);
   const double stops = m.stop_stiffness_N_per_m1_5 / 2.5 * (s.pc15 * s.pc + s.po15 * s.po);
   return 0.5 * p_.magnetic.inductance_H(g) * i * i + 0.5 * m.mass_kg * u * u + m.spring_energy_J(g) + stops;

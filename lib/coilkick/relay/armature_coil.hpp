@@ -23,8 +23,8 @@
 // "stops" (what the stop forces do beyond their elastic part). The magnetic co-energy force F·u is the work passed between the
 // circuit and the armature (Fitzgerald, Kingsley & Umans, 6th ed., ch. 3).
 //
-// With hold_closed the armature is held at the residual gap (g stays there, u = 0): the element
-// is then exactly a fixed coil of inductance L(residual_gap).
+// With hold_closed the armature is held at a fixed gap, the residual gap unless hold_gap_m says
+// another (g stays there, u = 0): the element is then exactly a fixed coil of inductance L(gap).
 #include <limits>
 
 #include "coilkick/engine/element.hpp"
@@ -55,6 +55,8 @@ struct ArmatureCoilParameters {
   double resistance_ohm = 100.0;  // winding resistance at the simulated temperature
   double core_loss_resistance_ohm = std::numeric_limits<double>::infinity();
   bool hold_closed = false;
+  double hold_gap_m = std::numeric_limits<double>::quiet_NaN();  // with hold_closed: the gap held (NaN: the residual gap)
+  double held_gap_m() const { return hold_gap_m == hold_gap_m ? hold_gap_m : mechanics.residual_gap_m; }
 };
 
 class ArmatureCoil final : public engine::Element {

@@ -11,6 +11,7 @@
 #include "coilkick/engine/state.hpp"
 
 #include "coilkick/relay/armature_coil.hpp"
+#include "coilkick/relay/armature_rest.hpp"
 
 namespace coilkick::relay {
 
@@ -33,18 +34,12 @@ std::string not_held_message(const std::string& name, double current_A, double s
 
 engine::CircuitState operating_point_with_armatures_closed(const engine::Network& network, const engine::Circuit& circuit,
                                                            double time_s) {
-  engine::Network held = network;
   std::vector<const ArmatureCoil*> armatures;
   for (const auto& e : network.elements()) {
-    const auto* arm = dynamic_cast<const ArmatureCoil*>(e.get());
-    if (!arm) continue;
-    ArmatureCoilParameters p = arm->parameters();
-    p.hold_closed = true;
-    held.replace(arm->name(), std::make_shared<ArmatureCoil>(arm->name(), arm->terminals()[0], arm->terminals()[1], p));
-    armatures.push_back(arm);
+    if (const auto* arm = dynamic_cast<const ArmatureCoil*>(e.get())) armatures.push_back(arm);
   }
   if (armatures.empty()) return engine::solve_operating_point(circuit, time_s);
-  const engine::Circuit held_circuit(held);
+  const engine::Circuit held_circuit(with_armatures_held(network, [](const ArmatureCoil&) { return std::nan(""); }));
   engine::CircuitState guess = engine::solve_operating_point(held_circuit, time_s);
   // Start each armature at the stop penetration that carries its net holding force,
   // F_hold = k_s·p^1.5: there the stop's stiffness dominates the magnet's negative stiffness and
@@ -52,11 +47,9 @@ engine::CircuitState operating_point_with_armatures_closed(const engine::Network
   // the armature starts at its open stop, the only solution left (a coil the driver does not
   // energise enough; require_armatures_closed tells an on-state so).
   for (const auto* arm : armatures) {
-    const auto& m = arm->parameters().mechanics;
     const double i = guess.values[circuit.state_index(arm->name() + ".current")];
-    const double hold = -(m.spring_force_N(m.residual_gap_m) + arm->parameters().magnetic.force_N(i, m.residual_gap_m));
-    guess.values[circuit.state_index(arm->name() + ".gap")] =
-        hold > 0.0 ? m.residual_gap_m - std::pow(hold / m.stop_stiffness_N_per_m1_5, 2.0 / 3.0) : m.open_gap_m;
+    const double rest = resting_gap_closed_m(arm->parameters(), i);
+    guess.values[circuit.state_index(arm->name() + ".gap")] = std::isnan(rest) ? arm->parameters().mechanics.open_gap_m : rest;
   }
   return engine::solve_operating_point(circuit, guess);
 }
