@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <chrono>
+#include <complex>
 #include <cmath>
 #include <sstream>
 #include <stdexcept>
@@ -116,26 +117,92 @@ struct Shooter {
   // limit the difference quotient; 1e-5 balances the two.
   double fd_step(Eigen::Index i) const { return 1e-5 * typical[i]; }
 
+  // Column j of ∂Φ/∂x − I along the unperturbed run's steps. A replay whose perturbed state
+  // meets a stiff turn (a junction switching, an avalanche) a step earlier or later than the
+  // unperturbed one can go non-finite on those fixed steps: the column is then taken again with
+  // a hundredth of the difference step, twice at most (at 1e-9 of the size, rounding is still
+  // ~1e-7 of the column).
+  static constexpr int kSmallerSteps = 2;
+  Eigen::VectorXd sensitivity(const Eigen::VectorXd& x, Eigen::Index j, const std::vector<double>& steps, const Eigen::VectorXd& f_replayed) {
+    double h = fd_step(j);
+    for (int k = 0;; ++k, h *= 1e-2) {
+      Eigen::VectorXd xp = x;
+      xp[j] += h;
+      try {
+        Eigen::VectorXd col = (map(xp, nullptr, steps) - f_replayed) / h;
+        col[j] -= 1.0;
+        return col;
+      } catch (const SimulationError&) {
+        if (k == kSmallerSteps || out_of_time()) throw;
+      }
+    }
+  }
+
+  // The last sensitivity matrix ∂Φ/∂x (the multipliers are its eigenvalues).
+  Eigen::MatrixXd monodromy;
+
+  // Multipliers above kRepellingMultiplier read from the sensitivity matrix, measured again on
+  // their modes: the converged state x* pushed along the mode's eigenvector by kModePush error
+  // scales, one period run with its own steps, and the mode's component of the result (from the
+  // left eigenvectors) against the push. Finite differences of 1e-5 along replayed steps are
+  // good to ~1e-5 of most multipliers, but a column replayed through a stiff turn (a switch's
+  // avalanche, a TVS) can be off by percent, and a fast mode or a slow coil's e^(−T·R/L) just
+  // below 1 then reads above it; a push of a thousand error scales is measured to ~1e-3 by the
+  // run's own tolerance. Returns the largest multiplier with those measured.
+  static constexpr double kModePush = 1e3;
+  double largest_multiplier_measured(const Eigen::VectorXd& x_star, const Eigen::VectorXd& f_star) {
+    using Complex = std::complex<double>;
+    Eigen::ComplexEigenSolver<Eigen::MatrixXcd> es(monodromy.cast<Complex>());
+    const Eigen::MatrixXcd left = es.eigenvectors().inverse();  // rows: left eigenvectors
+    Eigen::VectorXd magnitude = es.eigenvalues().cwiseAbs();
+    if (!left.allFinite()) return magnitude.maxCoeff();
+    for (Eigen::Index k = 0; k < magnitude.size(); ++k) {
+      if (!(magnitude[k] > kRepellingMultiplier)) continue;
+      Eigen::VectorXd mode = es.eigenvectors().col(k).real();
+      if (!(scaled_norm(mode) > 0.0)) mode = es.eigenvectors().col(k).imag();
+      const double size = scaled_norm(mode);
+      if (!(size > 0.0)) continue;
+      const Eigen::VectorXd push = mode * (kModePush / size);
+      const Complex before = (left.row(k) * push.cast<Complex>())(0, 0);
+      Eigen::VectorXd moved;
+      try {
+        moved = map(x_star + push);
+      } catch (const SimulationError&) {
+        continue;  // the push ran into a failure: the multiplier stays as read
+      }
+      const Complex after = (left.row(k) * (moved - f_star).cast<Complex>())(0, 0);
+      const double measured = std::abs(after) / std::abs(before);
+      // A complex pair is one mode: its partner takes the same measurement.
+      for (Eigen::Index j = 0; j < magnitude.size(); ++j) {
+        if (j == k || std::abs(es.eigenvalues()[j] - std::conj(es.eigenvalues()[k])) <= 1e-12 * magnitude[k]) magnitude[j] = measured;
+      }
+    }
+    return magnitude.maxCoeff();
+  }
+
   bool shoot(Eigen::VectorXd& x) {
     const Eigen::Index n = x.size();
     std::vector<double> steps;
     Eigen::VectorXd fx = map(x, &steps);
     Eigen::VectorXd r = fx - x;
+    Eigen::VectorXd recorded = x;
     for (int it = 0; it < p.maximum_newton_iterations; ++it) {
       throw_if_interrupted();
       set_typical(x);
       set_typical(fx);
       out.newton_iterations = it + 1;
       // Sensitivities along the unperturbed run's own steps (internal numerical differentiation).
+      // Where the last Newton step carried the fast states forward (Picard), x is not the state
+      // the steps were recorded from, and a replay of x along another state's steps can go
+      // non-finite through a stiff turn: x's own run is recorded first.
+      if (recorded != x) {
+        fx = map(x, &steps);
+        r = fx - x;
+        recorded = x;
+      }
       const Eigen::VectorXd f_replayed = map(x, nullptr, steps);
       Eigen::MatrixXd jac(n, n);  // ∂Φ/∂x − I
-      for (Eigen::Index j = 0; j < n; ++j) {
-        Eigen::VectorXd xp = x;
-        const double h = fd_step(j);
-        xp[j] += h;
-        jac.col(j) = (map(xp, nullptr, steps) - f_replayed) / h;
-        jac(j, j) -= 1.0;
-      }
+      for (Eigen::Index j = 0; j < n; ++j) jac.col(j) = sensitivity(x, j, steps, f_replayed);
       fast.assign(static_cast<std::size_t>(n), false);
       slowest_fast = 0.0;
       bool any_slow = false;
@@ -149,7 +216,8 @@ struct Shooter {
       // diode's megohms of dynamic resistance): then every state counts, and Newton goes on.
       if (!any_slow) fast.assign(static_cast<std::size_t>(n), false);
       // The multipliers of one period: the eigenvalues of ∂Φ/∂x = jac + I.
-      out.largest_multiplier = (jac + Eigen::MatrixXd::Identity(n, n)).eigenvalues().cwiseAbs().maxCoeff();
+      monodromy = jac + Eigen::MatrixXd::Identity(n, n);
+      out.largest_multiplier = monodromy.eigenvalues().cwiseAbs().maxCoeff();
       const Eigen::VectorXd step = jac.fullPivLu().solve(-r);
       if (!step.allFinite()) return false;
       // Halving line search on the scaled residual.
@@ -168,6 +236,7 @@ struct Shooter {
       }
       if (!accepted) return false;
       const double moved = scaled_norm(lambda * step);
+      recorded = x_new;
       for (Eigen::Index i = 0; i < n; ++i) {
         if (fast[static_cast<std::size_t>(i)]) x_new[i] = f_new[i];
       }
@@ -253,6 +322,7 @@ PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& 
     } catch (const SimulationError& e) {
       s.out.note = std::string("a shooting period failed (") + e.what() + ")";
     }
+    if (done && s.out.largest_multiplier > kRepellingMultiplier) s.out.largest_multiplier = s.largest_multiplier_measured(trial, s.map(trial));
     const bool repels = done && s.out.largest_multiplier > kRepellingMultiplier;
     if (repels) {
       done = false;
