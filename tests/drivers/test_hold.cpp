@@ -43,6 +43,35 @@ double average_by_periods_one_by_one(DriverSpec s, double duty) {
   return solve_hold(s, build_driver_network(s, test_support::catalogue()), false).average_current_A;
 }
 
+// Over the measured steady period: the energy in (the supply and, a little, the logic output
+// charging the gate or base) and the heat of all parts.
+struct PeriodEnergy {
+  double in_J, heat_J;
+};
+PeriodEnergy period_energy(const HoldResult& h) {
+  const auto& r = *h.period;
+  const auto& c = r.circuit();
+  const Eigen::VectorXd x0 = r.states().row(0).transpose(), x1 = r.states().row(r.states().rows() - 1).transpose();
+  std::set<std::string> elements;
+  for (const auto& e : c.power_channels()) elements.insert(e.element);
+  const auto logic = static_cast<Eigen::Index>(c.state_index("energy:logic.delivered"));
+  return {h.supply_energy_per_period_J + (x1[logic] - x0[logic]), heat_between(c, x0, x1, {elements.begin(), elements.end()})};
+}
+
+// The hold of a random campaign driver (a scenario text) by shooting: found by shooting with no
+// note, and periodic — the measured period returns to its start within the search's own
+// convergence (10 error scales: 1 nA + 1e-6 of the largest current).
+HoldResult shot_and_periodic(const std::string& text, const std::string& name) {
+  const auto sc = coilkick::scenario::read_scenario_text(text, name, test_support::catalogue());
+  const HoldResult h = solve_hold(sc.driver, build_driver_network(sc.driver, test_support::catalogue()), true);
+  CHECK(h.steady.method == coilkick::engine::PeriodicMethod::shooting);
+  CHECK(h.steady.note.empty());
+  const auto& r = *h.period;
+  const int k = r.circuit().state_index("coil.current");
+  CHECK(std::abs(r.states()(r.states().rows() - 1, k) - r.states()(0, k)) <= 10.0 * (1e-9 + 1e-6 * h.pull_in_end_current_A));
+  return h;
+}
+
 // The duty search of a scenario file's hold.average_current: the average found, and the average
 // of the duty found run period by period (no search, no shooting). Tolerances: the search stops
 // within 1e-5 of the target (hold.cpp), 2e-5 leaving room for the rounding of the steady state's
@@ -82,15 +111,7 @@ TEST_CASE("hold: in the steady state the supply's energy per period is the heat 
   s.analysis.relative_tolerance = 1e-9;
   const auto b = build_driver_network(s, test_support::catalogue());
   const HoldResult h = solve_hold(s, b);
-  const auto& r = *h.period;
-  const auto& c = r.circuit();
-  const Eigen::VectorXd x0 = r.states().row(0).transpose(), x1 = r.states().row(r.states().rows() - 1).transpose();
-  std::set<std::string> elements;
-  for (const auto& e : c.power_channels()) elements.insert(e.element);
-  const double heat = heat_between(c, x0, x1, {elements.begin(), elements.end()});
-  // Energy in: the supply and (a little) the logic output charging the gate.
-  const auto logic = static_cast<Eigen::Index>(c.state_index("energy:logic.delivered"));
-  const double in = h.supply_energy_per_period_J + (x1[logic] - x0[logic]);
+  const auto [in, heat] = period_energy(h);
   // The stored energy returns to its start to the steady state's convergence (10 error scales of
   // rtol 1e-9 on ½·L·I², a few 1e-8 relative); the energy accumulators carry their own
   // tolerance. 1e-6 leaves margin over both.
@@ -226,7 +247,7 @@ TEST_CASE("hold: a multiplier that the sensitivities read above 1 is measured on
   // multiplier of 1.016: shooting's converged state was refused as repelling, and the periods
   // one by one ran out of the 60 s budget. Pushed a thousand error scales along that mode and
   // run one period, the mode comes back at 0.15 of the push: it attracts.
-  const auto sc = coilkick::scenario::read_scenario_text(R"(
+  const HoldResult h = shot_and_periodic(R"(
 name = "campaign driver 1850"
 [supply]
 voltage = "5 V"
@@ -255,18 +276,8 @@ device_models = "physical"
 pwm_frequency = "4540.34 Hz"
 pull_in_time = "0.212258 s"
 pwm_duty = "0.342647"
-)", "seed 1850", test_support::catalogue());
-  const auto b = build_driver_network(sc.driver, test_support::catalogue());
-  const HoldResult h = solve_hold(sc.driver, b, true);
-  CHECK(h.steady.method == coilkick::engine::PeriodicMethod::shooting);
-  CHECK(h.steady.note.empty());
+)", "seed 1850");
   CHECK(h.steady.largest_multiplier < 0.5);
-  // The state found is periodic: the measured period returns to where it started, within the
-  // search's own convergence (10 error scales: 1 nA + 1e-6 of the largest current).
-  const auto& r = *h.period;
-  const int k = r.circuit().state_index("coil.current");
-  const double start = r.states()(0, k), end = r.states()(r.states().rows() - 1, k);
-  CHECK(std::abs(end - start) <= 10.0 * (1e-9 + 1e-6 * h.pull_in_end_current_A));
 }
 
 TEST_CASE("hold: a sensitivity column whose replay through the switch's avalanche goes non-finite is taken again with a smaller step") {
@@ -276,7 +287,7 @@ TEST_CASE("hold: a sensitivity column whose replay through the switch's avalanch
   // size and replayed along the unperturbed period's steps, met the avalanche a step off and went
   // non-finite; shooting gave up and the periods one by one (multiplier 0.999) ran out of the
   // 60 s budget. Such a column is taken again with a hundredth of the step.
-  const auto sc = coilkick::scenario::read_scenario_text(R"(
+  const HoldResult h = shot_and_periodic(R"(
 name = "campaign driver 1517"
 [supply]
 voltage = "24 V"
@@ -305,25 +316,12 @@ device_models = "physical"
 pwm_frequency = "12824 Hz"
 pull_in_time = "0.300054 s"
 pwm_duty = "0.682997"
-)", "seed 1517", test_support::catalogue());
-  const auto b = build_driver_network(sc.driver, test_support::catalogue());
-  const HoldResult h = solve_hold(sc.driver, b, true);
-  CHECK(h.steady.method == coilkick::engine::PeriodicMethod::shooting);
-  CHECK(h.steady.note.empty());
+)", "seed 1517");
   CHECK(h.steady.largest_multiplier < 1.0);
-  // Periodic: the measured period returns to its start within the search's convergence (10
-  // error scales: 1 nA + 1e-6 of the largest current).
-  const auto& r = *h.period;
-  const int k = r.circuit().state_index("coil.current");
-  CHECK(std::abs(r.states()(r.states().rows() - 1, k) - r.states()(0, k)) <= 10.0 * (1e-9 + 1e-6 * h.pull_in_end_current_A));
   // In the steady state the supply's energy per period is the heat of all parts (energy balance,
   // docs/derivations.md): 1e-4, the runs' energy tolerance over a period of ~40 µJ.
-  const auto& c = r.circuit();
-  std::set<std::string> elements;
-  for (const auto& e : c.power_channels()) elements.insert(e.element);
-  const Eigen::VectorXd x0 = r.states().row(0).transpose(), x1 = r.states().row(r.states().rows() - 1).transpose();
-  const auto logic = static_cast<Eigen::Index>(c.state_index("energy:logic.delivered"));
-  CHECK(h.supply_energy_per_period_J + (x1[logic] - x0[logic]) == rel(heat_between(c, x0, x1, {elements.begin(), elements.end()})).epsilon(1e-4));
+  const auto [in, heat] = period_energy(h);
+  CHECK(in == rel(heat).epsilon(1e-4));
 }
 
 TEST_CASE("hold: the duty for a target average current, and a current-controlled pull-in") {
