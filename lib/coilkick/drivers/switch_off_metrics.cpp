@@ -98,7 +98,11 @@ SwitchOffMeasures measure_switch_off(const DriverSpec& spec, const BuiltDriver& 
   };
   const double e_clamp = b.clamp_elements.empty() ? 0.0 : energy(b.clamp_elements);
   m.set("clamp_energy_J", e_clamp);
-  m.set("coil_resistance_energy_J", energy({b.local("coil")}));
+  // The winding's and the core's heat only: with the armature model the coil element's account
+  // also holds the armature's damping and stop impacts, mechanical heat that goes on while the
+  // armature still travels when the run ends (so it would move with the run's end, not only be
+  // mislabelled).
+  m.set("coil_resistance_energy_J", energy({b.local("coil")}, "winding") + energy({b.local("coil")}, "core"));
   m.set("switch_energy_J", energy(b.switch_elements));
   m.set("switch_breakdown_energy_J", energy(b.switch_elements, "breakdown_heat"));
   m.set("extra_parts_energy_J", b.extra_elements.empty() ? 0.0 : energy(b.extra_elements));
