@@ -1,5 +1,8 @@
 """Tolerance-run throughput: runs per second on 1 and 2 threads, the second thread's speed-up,
-and the pwl level against the physical level on the same driver; each measured in this run.
+and the pwl level against the physical level on the same driver; each measured in this run. Also
+one Python run() call of the pwl driver against its runs inside a tolerance analysis on one
+thread: what a call costs beyond its switch-off (each call waits for its work on a helper thread
+that Ctrl-C can stop).
 Targets (benchmarks, not tests): a 10,000-run physical tolerance analysis in at most 3 s on 2 cores, at least
 1.8x from the second thread, pwl at least 10x faster than physical."""
 import os
@@ -36,9 +39,24 @@ def rate(level, threads, samples):
     return rate_of(coilkick.scenario_from_dict(d), threads, samples)
 
 
+def single_call_s(level, calls=30):
+    """The quickest of `calls` Python run() calls of the driver at `level`, seconds."""
+    d = dict(RELAY)
+    d["analysis"] = {"model_level": level}
+    s = coilkick.scenario_from_dict(d)
+    coilkick.run(s)  # warm-up
+    best = float("inf")
+    for _ in range(calls):
+        t0 = time.perf_counter()
+        coilkick.run(s)
+        best = min(best, time.perf_counter() - t0)
+    return best
+
+
 def main():
     phys1, phys2 = rate("physical", 1, 100), rate("physical", 2, 200)
     pwl1, pwl2 = rate("pwl", 1, 400), rate("pwl", 2, 800)
+    call = single_call_s("pwl")
     # The bundled fan relay (its armature model, physical models, its own spreads).
     fan = coilkick.load_scenario(os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "models", "scenarios", "fan_relay.toml"))
     fan2 = rate_of(fan, 2, 60, repeats=2)
@@ -46,6 +64,8 @@ def main():
     print("  physical: %.0f runs/s on 1 thread, %.0f on 2 (x%.2f); 10,000 runs in %.1f s" % (phys1, phys2, phys2 / phys1, 1e4 / phys2))
     print("  pwl:      %.0f runs/s on 1 thread, %.0f on 2 (x%.2f); 10,000 runs in %.1f s" % (pwl1, pwl2, pwl2 / pwl1, 1e4 / pwl2))
     print("  the bundled fan relay (armature model): %.0f runs/s on 2 threads; 10,000 runs in %.1f s" % (fan2, 1e4 / fan2))
+    print("  one Python run() call, pwl: %.2f ms against %.2f ms per run inside a tolerance analysis (x%.1f)"
+          % (call * 1e3, 1e3 / pwl1, call * pwl1))
     print("tolerance_throughput second_thread_speedup=%.2f pwl_over_physical=%.1f seconds_for_10000_physical=%.1f seconds_for_10000_pwl=%.1f "
           "seconds_for_10000_fan_relay=%.1f" % (phys2 / phys1, pwl1 / phys1, 1e4 / phys2, 1e4 / pwl2, 1e4 / fan2))
 
