@@ -13,6 +13,7 @@
 #include "coilkick/drivers/energy_account.hpp"
 #include "coilkick/drivers/hold.hpp"
 #include "coilkick/drivers/switch_off.hpp"
+#include "coilkick/engine/errors.hpp"
 #include "coilkick/catalogue/catalogue.hpp"
 #include "coilkick/scenario/scenario.hpp"
 #include "driver_fixture.hpp"
@@ -481,6 +482,55 @@ pull_in_current = "102 mA"
 average_current = "53.3 mA"
 )",
                     53.3e-3);
+}
+
+TEST_CASE("hold: periods one by one that do not settle are given up within a few thousand periods, by name") {
+  // A random driver of scripts/tolerance_campaign.py (--extras seed 1675, invented values): a
+  // 1 mH, 18.8 Ω coil (τ = 53 µs, one PWM period) on a pwl Darlington with a TVS across it, its
+  // hold searched for 756 mA. At the pwl level its pieces chatter: shooting does not converge,
+  // and the periods one by one move the state by ~5e5 error scales per period, the ratio from one
+  // period to the next anywhere from 0.1 to 3.8 — no contraction (the physical level settles: its
+  // shooting converges in 4 Newton steps). It had run 27,000 periods until the search's 60 s
+  // wall-time budget; a window of 1,000 periods whose largest change is no smaller than the
+  // window's before is now enough (periodic_steady_state.cpp), and the message says why.
+  const auto spec = coilkick::scenario::read_scenario_text(R"(
+name = "campaign driver 1675"
+[supply]
+voltage = "24 V"
+[drive]
+high_level = "3.3 V"
+switch_off_at = "1 ms"
+fall_time = "2.42389e-07 s"
+rise_time = "9.19105e-07 s"
+[coil]
+resistance = "18.8352 ohm"
+inductance = "0.00100546 H"
+release_current = "0.531704 A"
+[switch]
+topology = "low_side_darlington"
+part = "darlington_npn_100v"
+base_resistor = "10604.4 ohm"
+board_stray_capacitance = "1e-10 F"
+[clamp]
+kind = "tvs_across_switch"
+diode_part = "small_signal_diode"
+zener_part = "zener_500mw_33v"
+tvs_part = "tvs_400w_47v"
+active_clamp_zener_part = "zener_500mw_8v2"
+resistor = "84.8494 ohm"
+snubber_resistance = "219.103 ohm"
+snubber_capacitance = "4.10625e-08 F"
+[analysis]
+device_models = "piecewise_linear"
+[hold]
+pwm_frequency = "19222.1 Hz"
+pull_in_time = "0.000138914 s"
+average_current = "0.755891 A"
+)", "seed 1675", test_support::catalogue()).driver;
+  const std::string message = test_support::switch_off_error<coilkick::engine::SimulationError>(spec);
+  CAPTURE(message);
+  CHECK(message.find("the periods do not settle") != std::string::npos);
+  CHECK(message.find("physical") != std::string::npos);  // where to turn (the pwl level's hint)
 }
 
 TEST_CASE("hold: an average current beyond what the full drive gives is refused by name, not reported as a solver failure") {
