@@ -18,6 +18,10 @@ namespace {
 // 1e-5 of each state's size along replayed steps (Shooter::fd_step), good to ~1e-5 of the
 // multipliers; a slowly decaying coil's multiplier is e^(−T·R/L), just below 1.
 constexpr double kRepellingMultiplier = 1.0 + 1e-3;
+// A converged shooting's state: one period moves it by at most this many times the tolerance (a
+// last Newton step within the tolerance leaves a residual of (Φ − I) times what is left, a few
+// tolerances at most; integration noise adds less).
+constexpr double kResidualOfConverged = 10.0;
 // The periods one by one are given up as not settling where the largest change of one window of
 // this many periods is no smaller than the window's before and far above the tolerance (more than
 // kUnsettledScales times it): a period map that contracts, however slowly, makes each window's
@@ -113,12 +117,18 @@ struct Shooter {
   static constexpr double kFast = 0.9;
   double slowest_fast = 0.0;  // the largest |∂Φ_i/∂x_i| among the fast states
   std::vector<bool> fast;
+  double scale_of(Eigen::Index i) const { return atol[static_cast<std::size_t>(i)] + o.relative_tolerance * typical[i]; }
   double scaled_norm(const Eigen::VectorXd& v) const {
     double m = 0.0;
     for (Eigen::Index i = 0; i < v.size(); ++i) {
       if (!fast.empty() && fast[static_cast<std::size_t>(i)]) continue;
-      m = std::max(m, std::abs(v[i]) / (atol[static_cast<std::size_t>(i)] + o.relative_tolerance * typical[i]));
+      m = std::max(m, std::abs(v[i]) / scale_of(i));
     }
+    return m;
+  }
+  double every_state_scaled_norm(const Eigen::VectorXd& v) const {
+    double m = 0.0;
+    for (Eigen::Index i = 0; i < v.size(); ++i) m = std::max(m, std::abs(v[i]) / scale_of(i));
     return m;
   }
   // Finite-difference step of state i: 1e-5 of its typical size. Along replayed steps the map
@@ -131,16 +141,33 @@ struct Shooter {
   // unperturbed one can go non-finite on those fixed steps: the column is then taken again with
   // a hundredth of the difference step, twice at most (at 1e-9 of the size, rounding is still
   // ~1e-7 of the column).
+  // A replay can also go astray and stay finite: a column that grows the perturbation by more
+  // than kLargestGrowth (both in error scales of every state) is taken again the same way — a
+  // period of a dissipative circuit does not multiply a disturbance a millionfold, and such a
+  // column (measured: 2.8e24 on a base node, campaign seed 1864) swamps the Newton solve, whose
+  // step then vanishes for every other state. Still astray at the smallest step: a SimulationError
+  // (shooting gives way to the periods one by one).
   static constexpr int kSmallerSteps = 2;
+  static constexpr double kLargestGrowth = 1e6;
   Eigen::VectorXd sensitivity(const Eigen::VectorXd& x, Eigen::Index j, const std::vector<double>& steps, const Eigen::VectorXd& f_replayed) {
     double h = fd_step(j);
     for (int k = 0;; ++k, h *= 1e-2) {
       Eigen::VectorXd xp = x;
       xp[j] += h;
       try {
-        Eigen::VectorXd col = (map(xp, nullptr, steps) - f_replayed) / h;
-        col[j] -= 1.0;
-        return col;
+        const Eigen::VectorXd change = map(xp, nullptr, steps) - f_replayed;
+        const double pushed = std::abs(h) / scale_of(j);
+        if (every_state_scaled_norm(change) <= kLargestGrowth * pushed) {
+          Eigen::VectorXd col = change / h;
+          col[j] -= 1.0;
+          return col;
+        }
+        if (k == kSmallerSteps || out_of_time()) {
+          std::ostringstream m;
+          m << "a sensitivity column of '" << c.states()[static_cast<std::size_t>(j)].name << "' replayed along the period's steps grew its "
+            << "perturbation more than " << kLargestGrowth << "-fold";
+          throw SimulationError(m.str());
+        }
       } catch (const SimulationError&) {
         if (k == kSmallerSteps || out_of_time()) throw;
       }
@@ -256,6 +283,17 @@ struct Shooter {
       r = r_new;
       out.distance_in_error_scales = moved;
       if (lambda == 1.0 && moved <= p.tolerance_in_error_scales) {
+        // A vanishing Newton step is convergence only where one period also maps the state onto
+        // itself: a step swamped by wrong sensitivities vanishes too, wherever the state is
+        // (campaign seed 1864 had been reported held at 366 mA, one period moving it by 1.8 mA,
+        // 5,000 error scales, where its hold in truth collapses to 0.4 mA).
+        const double left = scaled_norm(r);
+        if (left > kResidualOfConverged * p.tolerance_in_error_scales) {
+          std::ostringstream m;
+          m << "shooting's Newton step vanished while one period still moved the state by " << left << " error scales";
+          out.note = m.str();
+          return false;
+        }
         settle(x);
         return true;
       }
