@@ -292,7 +292,7 @@ TEST_CASE("hold: a sensitivity column that goes astray and stays finite is taken
   // state, and a vanishing step was taken as convergence while one period still moved the coil
   // current by 1.8 mA (5,000 error scales). Now such a column is taken again with smaller steps
   // and convergence needs the period to map the state onto itself (periodic_steady_state.cpp).
-  const HoldResult h = shot_and_periodic(R"(
+  const std::string text = R"(
 name = "campaign driver 1864"
 [supply]
 voltage = "36 V"
@@ -324,46 +324,15 @@ device_models = "physical"
 pwm_frequency = "11131.1 Hz"
 pull_in_current = "0.367381 A"
 pwm_duty = "0.481939"
-)", "seed 1864");
+)";
+  const HoldResult h = shot_and_periodic(text, "seed 1864");
   const double full_drive_A = 36.0 / 53.8031;
   CHECK(h.average_current_A < 1e-2 * full_drive_A);
   // The same steady state as the periods one by one at the same duty: the average is the small
   // remainder of a ±0.6 mA ripple, so it is compared against the ripple's size: 1e-3 of it
   // (measured 4.8e-5; the two searches' own tolerances, ten error scales of ~0.4 µA each, are
   // far below).
-  const auto sc = coilkick::scenario::read_scenario_text(R"(
-name = "campaign driver 1864"
-[supply]
-voltage = "36 V"
-[drive]
-high_level = "5 V"
-switch_off_at = "1 ms"
-fall_time = "3.22337e-08 s"
-rise_time = "9.78724e-08 s"
-[coil]
-resistance = "53.8031 ohm"
-inductance = "1.52845 H"
-release_current = "0.107318 A"
-[switch]
-topology = "low_side_npn"
-part = "npn_medium_power_80v"
-base_resistor = "821.242 ohm"
-[clamp]
-kind = "diode_zener"
-diode_part = "small_signal_diode"
-zener_part = "zener_500mw_47v"
-tvs_part = "tvs_400w_33v"
-active_clamp_zener_part = "zener_500mw_33v"
-resistor = "18.0845 ohm"
-snubber_resistance = "25.3431 ohm"
-snubber_capacitance = "1.19908e-07 F"
-[analysis]
-device_models = "physical"
-[hold]
-pwm_frequency = "11131.1 Hz"
-pull_in_current = "0.367381 A"
-pwm_duty = "0.481939"
-)", "seed 1864", test_support::catalogue());
+  const auto sc = coilkick::scenario::read_scenario_text(text, "seed 1864", test_support::catalogue());
   const double direct = average_by_periods_one_by_one(sc.driver, h.duty);
   CHECK(std::abs(h.average_current_A - direct) <= 1e-3 * (h.maximum_current_A - h.minimum_current_A));
 }
