@@ -285,6 +285,13 @@ struct HoldSolver {
         if (!std::isnan(below) && !std::isnan(above)) {
           // Within the noise: x, the last duty run, is one of the two sides.
           if (held_above - held_below <= kDutyNoiseTolerance * target) return x;
+          // One side within the bar of the target holds it: a pwl steady state's average can
+          // move by more than its noise between duties a rounding apart (a random driver's pwl
+          // high-side PNP at the default tolerances: 96.9 and 97.4 mA about a 97.4 mA target,
+          // where a tight run finds its duty). That side's duty is taken.
+          const bool above_closer = std::abs(held_above - target) <= std::abs(held_below - target);
+          const double side = above_closer ? above : below, held_side = above_closer ? held_above : held_below;
+          if (std::abs(held_side - target) <= kDutyNoiseTolerance * target) return out.duty == side ? x : hold_at(side, x);
           std::ostringstream m;
           m << "hold: no duty holds hold.average_current (" << format_si(target, "A") << "): the average jumps from "
             << format_si(held_below, "A") << " to " << format_si(held_above, "A") << " at the duty " << below
