@@ -118,17 +118,13 @@ struct Shooter {
   double slowest_fast = 0.0;  // the largest |∂Φ_i/∂x_i| among the fast states
   std::vector<bool> fast;
   double scale_of(Eigen::Index i) const { return atol[static_cast<std::size_t>(i)] + o.relative_tolerance * typical[i]; }
-  double scaled_norm(const Eigen::VectorXd& v) const {
+  // The largest |v_i| in error scales, over the slow states (every state with skip_fast false).
+  double scaled_norm(const Eigen::VectorXd& v, bool skip_fast = true) const {
     double m = 0.0;
     for (Eigen::Index i = 0; i < v.size(); ++i) {
-      if (!fast.empty() && fast[static_cast<std::size_t>(i)]) continue;
+      if (skip_fast && !fast.empty() && fast[static_cast<std::size_t>(i)]) continue;
       m = std::max(m, std::abs(v[i]) / scale_of(i));
     }
-    return m;
-  }
-  double every_state_scaled_norm(const Eigen::VectorXd& v) const {
-    double m = 0.0;
-    for (Eigen::Index i = 0; i < v.size(); ++i) m = std::max(m, std::abs(v[i]) / scale_of(i));
     return m;
   }
   // Finite-difference step of state i: 1e-5 of its typical size. Along replayed steps the map
@@ -151,27 +147,27 @@ struct Shooter {
   static constexpr double kLargestGrowth = 1e6;
   Eigen::VectorXd sensitivity(const Eigen::VectorXd& x, Eigen::Index j, const std::vector<double>& steps, const Eigen::VectorXd& f_replayed) {
     double h = fd_step(j);
-    for (int k = 0;; ++k, h *= 1e-2) {
+    for (int k = 0; k <= kSmallerSteps; ++k, h *= 1e-2) {
       Eigen::VectorXd xp = x;
       xp[j] += h;
+      Eigen::VectorXd change;
       try {
-        const Eigen::VectorXd change = map(xp, nullptr, steps) - f_replayed;
-        const double pushed = std::abs(h) / scale_of(j);
-        if (every_state_scaled_norm(change) <= kLargestGrowth * pushed) {
-          Eigen::VectorXd col = change / h;
-          col[j] -= 1.0;
-          return col;
-        }
-        if (k == kSmallerSteps || out_of_time()) {
-          std::ostringstream m;
-          m << "a sensitivity column of '" << c.states()[static_cast<std::size_t>(j)].name << "' replayed along the period's steps grew its "
-            << "perturbation more than " << kLargestGrowth << "-fold";
-          throw SimulationError(m.str());
-        }
+        change = map(xp, nullptr, steps) - f_replayed;
       } catch (const SimulationError&) {
         if (k == kSmallerSteps || out_of_time()) throw;
+        continue;
       }
+      if (scaled_norm(change, false) <= kLargestGrowth * std::abs(h) / scale_of(j)) {
+        Eigen::VectorXd col = change / h;
+        col[j] -= 1.0;
+        return col;
+      }
+      if (out_of_time()) break;
     }
+    std::ostringstream m;
+    m << "a sensitivity column of '" << c.states()[static_cast<std::size_t>(j)].name << "' replayed along the period's steps grew its "
+      << "perturbation more than " << kLargestGrowth << "-fold";
+    throw SimulationError(m.str());
   }
 
   // The last sensitivity matrix ∂Φ/∂x (the multipliers are its eigenvalues).
