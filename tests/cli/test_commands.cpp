@@ -250,6 +250,7 @@ TEST_CASE("the program: exit codes and messages") {
   const auto failed = run_program("run " + scratch("slow2.toml", text));
   CHECK(failed.code == 3);
   CHECK(failed.output.find("wall-time budget") != std::string::npos);
+  CHECK(failed.output.find("analysis.maximum_wall_time sets that budget") != std::string::npos);
 }
 
 TEST_CASE("sweep, tolerance and suggest on the bundled demo scenario (physical models)") {

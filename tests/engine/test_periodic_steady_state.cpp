@@ -199,3 +199,44 @@ TEST_CASE("periodic steady state: a periodic state that repels is refused, not r
     }
   }
 }
+
+TEST_CASE("periodic steady state: a search out of periods says how fast it converged and how many more it needs") {
+  // The follower with rate·T = −0.01: its period map is affine with the multiplier
+  // ρ = e^(−0.01) (the scalar linear ODE's closed form), so the periods one by one shrink the
+  // change by exactly ρ each (the runs' error, ~1e-9 of the state, is ~1e-7 of the changes here:
+  // ρ read over 100 periods to ~1e-9; the check allows 1e-6). The outlook's count of further
+  // periods is then checked by running them: a budget 2 % above it converges, one 2 % below
+  // does not (the convergence test reads the same geometric distance, so the count is good to a
+  // period or two of its ~1,500).
+  SquareWaveCoil s;
+  Network net;
+  net.add_voltage_source("drive", "in", Waveform::pulse_train(0.0, s.V, s.T - s.D * s.T, s.edge, s.D * s.T - s.edge, s.edge, s.T, 0));
+  net.add(std::make_shared<LinearFollower>(-0.01 / s.T));
+  const Circuit c(net);
+  PeriodicOptions p;
+  p.period_s = s.T;
+  p.allow_shooting = false;
+  p.maximum_direct_periods = 200;
+  auto number_after = [](const std::string& m, const std::string& key) {
+    const auto at = m.find(key);
+    REQUIRE(at != std::string::npos);
+    return std::stod(m.substr(at + key.size()));
+  };
+  double more = 0.0;
+  try {
+    periodic_steady_state(c, zero_state(c, s.T), s.options(), p);
+    FAIL("expected SimulationError");
+  } catch (const SimulationError& e) {
+    const std::string m = e.what();
+    CAPTURE(m);
+    CHECK(m.find("over the last 100 periods") != std::string::npos);
+    CHECK(number_after(m, "the factor ") == doctest::Approx(std::exp(-0.01)).epsilon(1e-6));
+    more = number_after(m, "about ");
+  }
+  REQUIRE(more > 100.0);
+  p.maximum_direct_periods = 200 + static_cast<long>(std::ceil(1.02 * more));
+  const auto pss = periodic_steady_state(c, zero_state(c, s.T), s.options(), p);
+  CHECK(pss.method == PeriodicMethod::direct);
+  p.maximum_direct_periods = 200 + static_cast<long>(std::floor(0.98 * more));
+  CHECK_THROWS_AS(periodic_steady_state(c, zero_state(c, s.T), s.options(), p), SimulationError);
+}

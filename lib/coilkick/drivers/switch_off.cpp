@@ -48,7 +48,7 @@ OperatingPoints pwl_points_from_physical(const DriverSpec& spec, const BuiltDriv
 
 bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == devices::ModelLevel::pwl; }
 
-// A run that fails says where to turn: at the pwl level a fast loop through a clamp (an active
+// A run that fails says where to turn: a run out of wall time, which key sets the budget; at the pwl level a fast loop through a clamp (an active
 // clamp's Zener into a Darlington's base) can switch pieces at picoseconds without end, where the
 // physical curves are smooth; a step that met the time's own rounding (64 ulps of t) is finer with
 // the switch-off earlier in the run (where the run did not move it there: run_time_origin.hpp),
@@ -57,6 +57,9 @@ bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == device
 // the run moved its times.
 [[noreturn]] void rethrow_with_hints(const DriverSpec& spec, double shift_s, const engine::SimulationError& e, bool time_resolution) {
   std::vector<std::string> hints;
+  if (std::string(e.what()).find("wall-time budget") != std::string::npos) {
+    hints.push_back("analysis.maximum_wall_time sets that budget");
+  }
   if (is_pwl(spec)) {
     hints.push_back("at the pwl device level, whose piecewise-linear curves a fast loop can switch between without end; "
                     "the physical level, analysis.device_models = \"physical\", has smooth ones");

@@ -315,9 +315,40 @@ struct Shooter {
   double elapsed_s() const { return std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count(); }
   bool out_of_time() const { return elapsed_s() > p.maximum_wall_time_s; }
 
+  // Each direct period's change, in error scales (for outlook()).
+  std::vector<double> direct_changes;
+
+  // For a search that ran out of periods or time: how fast its periods were converging — one
+  // period's factor ρ on the change, from the change now against kOutlookBaseline periods (at most;
+  // half the periods run) before — and, for 0 < ρ < 1, how many more periods would bring the
+  // estimated distance left, change·ρ/(1 − ρ), within the tolerance: n = ln(tol/left)/ln ρ. Empty
+  // with fewer than kLeastOutlookPeriods periods run.
+  static constexpr long kOutlookBaseline = 1000, kLeastOutlookPeriods = 20;
+  std::string outlook() const {
+    const auto k = static_cast<long>(direct_changes.size());
+    if (k < kLeastOutlookPeriods) return "";
+    const long baseline = std::min(kOutlookBaseline, k / 2);
+    const double now = direct_changes.back(), then = direct_changes[static_cast<std::size_t>(k - 1 - baseline)];
+    if (!(now > 0.0 && then > 0.0)) return "";
+    const double rho = std::pow(now / then, 1.0 / static_cast<double>(baseline));
+    std::ostringstream m;
+    m.precision(7);
+    m << "; over the last " << baseline << " periods each shrank the change by the factor " << rho;
+    if (!(rho < 1.0)) {
+      m << " (it did not shrink)";
+      return m.str();
+    }
+    const double left = now * rho / (1.0 - rho);
+    const double more = std::ceil(std::log(p.tolerance_in_error_scales / left) / std::log(rho));
+    m.precision(3);
+    m << ": about " << static_cast<long>(std::max(more, 1.0)) << " more periods would bring the distance left (" << left << " error scales) within the tolerance";
+    return m.str();
+  }
+
   bool direct(Eigen::VectorXd& x) {
     fast.clear();  // every state counts here
     step_budget = o.maximum_steps;
+    direct_changes.clear();
     double previous_change = 0.0;
     double window_largest = 0.0, previous_window_largest = HUGE_VAL;
     for (long k = 0; k < p.maximum_direct_periods; ++k) {
@@ -325,11 +356,12 @@ struct Shooter {
       if (out_of_time()) {
         std::ostringstream m;
         m << "periodic steady state not reached within the wall-time budget of " << p.maximum_wall_time_s << " s (" << k
-          << " periods simulated one by one, still moving by " << out.distance_in_error_scales << " error scales per period)";
+          << " periods simulated one by one, still moving by " << out.distance_in_error_scales << " error scales per period" << outlook() << ")";
         throw SimulationError(m.str());
       }
       const Eigen::VectorXd next = map(x);
       const double change = scaled_norm(next - x);
+      direct_changes.push_back(change);
       // Distance left from the contraction ρ between periods: change·ρ/(1 − ρ).
       const double rho = previous_change > 0.0 ? change / previous_change : 1.0;
       // A period that maps the state onto itself bit for bit (a pwl circuit's exact fixed point)
@@ -410,7 +442,7 @@ PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& 
       std::ostringstream m;
       m << "periodic steady state not reached: " << (s.out.note.empty() ? "" : s.out.note + ", and ") << options.maximum_direct_periods
         << " periods of " << options.period_s << " s left the state moving by " << s.out.distance_in_error_scales
-        << " error scales per period";
+        << " error scales per period" << s.outlook();
       throw SimulationError(m.str());
     }
   }
