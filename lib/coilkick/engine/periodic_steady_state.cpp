@@ -35,6 +35,45 @@ constexpr double kUnsettledScales = 100.0;
 // The coupled circuit states (not the energy accumulators).
 Eigen::Index coupled_count(const Circuit& c) { return static_cast<Eigen::Index>(c.circuit_state_count()); }
 
+// The distance left, state by state, from each state's own contraction over a baseline of
+// periods (kContractionBaseline at most, half the periods run): a slow mode (a coil whose L/R is
+// thousands of periods) moves its state by little each period, and while a faster mode still
+// decays in another state, the largest change's ratio between two periods is the fast mode's —
+// read alone it had taken a coil 5e-6 short of its periodic state as arrived (tested). Only a
+// state that has moved the same way for kCoherentPeriods periods counts: one whose changes
+// flip sign is at the runs' noise (or turns with a complex pair of multipliers, which the
+// largest change's ratio still judges). docs/derivations.md, "Coil under a square-wave drive",
+// section "When the periods one by one have arrived".
+struct PerStateContraction {
+  static constexpr long kContractionBaseline = 1000;
+  static constexpr int kCoherentPeriods = 8;
+  std::vector<Eigen::VectorXd> ring = std::vector<Eigen::VectorXd>(kContractionBaseline + 1);
+  Eigen::VectorXd last;
+  std::vector<int> streak;
+  template <class Scales>
+  double left(long k, const Eigen::VectorXd& d, const Scales& sc) {
+    if (streak.size() != static_cast<std::size_t>(d.size())) streak.assign(static_cast<std::size_t>(d.size()), 0);
+    for (Eigen::Index i = 0; i < d.size(); ++i) {
+      auto& n = streak[static_cast<std::size_t>(i)];
+      n = last.size() == d.size() && d[i] != 0.0 && (d[i] > 0.0) == (last[i] > 0.0) ? n + 1 : 0;
+    }
+    last = d;
+    Eigen::VectorXd& now = ring[static_cast<std::size_t>(k % (kContractionBaseline + 1))];
+    now.resize(d.size());
+    for (Eigen::Index i = 0; i < d.size(); ++i) now[i] = std::abs(d[i]) / sc.scale_of(i);
+    const long baseline = std::min(kContractionBaseline, k / 2);
+    if (baseline < 1) return 0.0;
+    const Eigen::VectorXd& then = ring[static_cast<std::size_t>((k - baseline) % (kContractionBaseline + 1))];
+    double worst = 0.0;
+    for (Eigen::Index i = 0; i < d.size(); ++i) {
+      if (now[i] == 0.0 || streak[static_cast<std::size_t>(i)] < kCoherentPeriods) continue;
+      const double rho = then[i] > 0.0 ? std::pow(now[i] / then[i], 1.0 / static_cast<double>(baseline)) : HUGE_VAL;
+      worst = std::max(worst, rho < 1.0 ? now[i] * rho / (1.0 - rho) : HUGE_VAL);
+    }
+    return worst;
+  }
+};
+
 struct Shooter {
   const Circuit& c;
   const TransientOptions& o;
@@ -317,6 +356,7 @@ struct Shooter {
 
   // Each direct period's change, in error scales (for outlook()).
   std::vector<double> direct_changes;
+  double last_change() const { return direct_changes.empty() ? 0.0 : direct_changes.back(); }
 
   // For a search that ran out of periods or time: how fast its periods were converging — one
   // period's factor ρ on the change, from the change now against kOutlookBaseline periods (at most;
@@ -349,6 +389,7 @@ struct Shooter {
     fast.clear();  // every state counts here
     step_budget = o.maximum_steps;
     direct_changes.clear();
+    PerStateContraction per_state;
     double previous_change = 0.0;
     double window_largest = 0.0, previous_window_largest = HUGE_VAL;
     for (long k = 0; k < p.maximum_direct_periods; ++k) {
@@ -356,7 +397,7 @@ struct Shooter {
       if (out_of_time()) {
         std::ostringstream m;
         m << "periodic steady state not reached within the wall-time budget of " << p.maximum_wall_time_s << " s (" << k
-          << " periods simulated one by one, still moving by " << out.distance_in_error_scales << " error scales per period" << outlook() << ")";
+          << " periods simulated one by one, still moving by " << last_change() << " error scales per period" << outlook() << ")";
         throw SimulationError(m.str());
       }
       const Eigen::VectorXd next = map(x);
@@ -366,7 +407,8 @@ struct Shooter {
       const double rho = previous_change > 0.0 ? change / previous_change : 1.0;
       // A period that maps the state onto itself bit for bit (a pwl circuit's exact fixed point)
       // has arrived: nothing is left, whatever the last contraction was.
-      const double left = change == 0.0 ? 0.0 : rho < 1.0 ? change * rho / (1.0 - rho) : HUGE_VAL;
+      double left = change == 0.0 ? 0.0 : rho < 1.0 ? change * rho / (1.0 - rho) : HUGE_VAL;
+      if (change > 0.0) left = std::max(left, per_state.left(k, next - x, *this));
       x = next;
       previous_change = change;
       out.distance_in_error_scales = std::max(change, left);
@@ -441,7 +483,7 @@ PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& 
     if (!s.direct(x)) {
       std::ostringstream m;
       m << "periodic steady state not reached: " << (s.out.note.empty() ? "" : s.out.note + ", and ") << options.maximum_direct_periods
-        << " periods of " << options.period_s << " s left the state moving by " << s.out.distance_in_error_scales
+        << " periods of " << options.period_s << " s left the state moving by " << s.last_change()
         << " error scales per period" << s.outlook();
       throw SimulationError(m.str());
     }
