@@ -48,9 +48,9 @@ OperatingPoints pwl_points_from_physical(const DriverSpec& spec, const BuiltDriv
 
 bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == devices::ModelLevel::pwl; }
 
-// A run that fails says where to turn: a run out of wall time, which key sets the budget; at the pwl level a fast loop through a clamp (an active
-// clamp's Zener into a Darlington's base) can switch pieces at picoseconds without end, where the
-// physical curves are smooth; a step that met the time's own rounding (64 ulps of t) is finer with
+// A run that fails says where to turn: out of wall time, which key sets the budget; at the pwl
+// level a fast loop through a clamp (an active clamp's Zener into a Darlington's base) can switch
+// pieces at picoseconds without end, where the physical curves are smooth; a step that met the time's own rounding (64 ulps of t) is finer with
 // the switch-off earlier in the run (where the run did not move it there: run_time_origin.hpp),
 // or not asked for at looser tolerances; a moved run's message says how its times (the engine's
 // "at t = ...") relate to the scenario's. `spec` is the scenario's description, `shift_s` how far
