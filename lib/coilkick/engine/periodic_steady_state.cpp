@@ -47,6 +47,7 @@ Eigen::Index coupled_count(const Circuit& c) { return static_cast<Eigen::Index>(
 struct PerStateContraction {
   static constexpr long kContractionBaseline = 1000;
   static constexpr int kCoherentPeriods = 8;
+  static constexpr long kLeastJudgedPeriods = 2 * kCoherentPeriods;  // before any arrival with changes left
   std::vector<Eigen::VectorXd> ring = std::vector<Eigen::VectorXd>(kContractionBaseline + 1);
   Eigen::VectorXd last;
   std::vector<int> streak;
@@ -413,7 +414,10 @@ struct Shooter {
       previous_change = change;
       out.distance_in_error_scales = std::max(change, left);
       if (p.progress && k % 64 == 0) p.progress(static_cast<double>(k) / static_cast<double>(p.maximum_direct_periods));
-      if (k >= 2 && out.distance_in_error_scales <= p.tolerance_in_error_scales) return true;
+      // Arrived: bit for bit, or within the tolerance once every state could be judged by its
+      // own contraction (a faster mode's first few ratios say nothing of a slow one; tested).
+      const bool judged = change == 0.0 ? k >= 2 : k + 1 >= PerStateContraction::kLeastJudgedPeriods;
+      if (judged && out.distance_in_error_scales <= p.tolerance_in_error_scales) return true;
       window_largest = std::max(window_largest, change);
       if ((k + 1) % kSettleWindow == 0) {
         if (window_largest >= previous_window_largest && window_largest > kUnsettledScales * p.tolerance_in_error_scales) {
