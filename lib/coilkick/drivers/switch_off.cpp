@@ -50,9 +50,9 @@ bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == device
 
 // A run that fails says where to turn: out of wall time, which key sets the budget; at the pwl
 // level a fast loop through a clamp (an active clamp's Zener into a Darlington's base) can switch
-// pieces at picoseconds without end, where the physical curves are smooth; a step that met the time's own rounding (64 ulps of t) is finer with
-// the switch-off earlier in the run (where the run did not move it there: run_time_origin.hpp),
-// or not asked for at looser tolerances; a moved run's message says how its times (the engine's
+// pieces at picoseconds without end, where the physical curves are smooth; a step that met the
+// time's own rounding (64 ulps of t) is finer with the switch-off earlier in the run (where the
+// run did not move it there: run_time_origin.hpp), or not asked for at looser tolerances; a moved run's message says how its times (the engine's
 // "at t = ...") relate to the scenario's. `spec` is the scenario's description, `shift_s` how far
 // the run moved its times.
 [[noreturn]] void rethrow_with_hints(const DriverSpec& spec, double shift_s, const engine::SimulationError& e, bool time_resolution) {

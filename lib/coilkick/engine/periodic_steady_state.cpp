@@ -35,38 +35,57 @@ constexpr double kUnsettledScales = 100.0;
 // The coupled circuit states (not the energy accumulators).
 Eigen::Index coupled_count(const Circuit& c) { return static_cast<Eigen::Index>(c.circuit_state_count()); }
 
-// The distance left, state by state, from each state's own contraction over a baseline of
-// periods (kContractionBaseline at most, half the periods run): a slow mode (a coil whose L/R is
-// thousands of periods) moves its state by little each period, and while a faster mode still
-// decays in another state, the largest change's ratio between two periods is the fast mode's —
+// The direct periods' changes, state by state in error scales, over the last
+// kContractionBaseline periods; and the distance left, state by state, from each state's own
+// contraction over a baseline of periods (kContractionBaseline at most, half the periods run): a
+// slow mode (a coil whose L/R is thousands of periods) moves its state by little each period, and
+// while a faster mode still decays in another state, the largest change's ratio between two periods is the fast mode's —
 // read alone it had taken a coil 5e-6 short of its periodic state as arrived (tested). Only a
 // state that has moved the same way for kCoherentPeriods periods counts: one whose changes
 // flip sign is at the runs' noise (or turns with a complex pair of multipliers, which the
 // largest change's ratio still judges). docs/derivations.md, "Coil under a square-wave drive",
 // section "When the periods one by one have arrived".
-struct PerStateContraction {
+struct DirectPeriodChanges {
   static constexpr long kContractionBaseline = 1000;
   static constexpr int kCoherentPeriods = 8;
   static constexpr long kLeastJudgedPeriods = 2 * kCoherentPeriods;  // before any arrival with changes left
   std::vector<Eigen::VectorXd> ring = std::vector<Eigen::VectorXd>(kContractionBaseline + 1);
+  long periods = 0;  // recorded
   Eigen::VectorXd last;
   std::vector<int> streak;
+  // Period k's change d (k = 0, 1, ... in turn); returns its largest, in error scales.
   template <class Scales>
-  double left(long k, const Eigen::VectorXd& d, const Scales& sc) {
+  double record(long k, const Eigen::VectorXd& d, const Scales& sc) {
+    periods = k + 1;
     if (streak.size() != static_cast<std::size_t>(d.size())) streak.assign(static_cast<std::size_t>(d.size()), 0);
     for (Eigen::Index i = 0; i < d.size(); ++i) {
       auto& n = streak[static_cast<std::size_t>(i)];
       n = last.size() == d.size() && d[i] != 0.0 && (d[i] > 0.0) == (last[i] > 0.0) ? n + 1 : 0;
     }
     last = d;
-    Eigen::VectorXd& now = ring[static_cast<std::size_t>(k % (kContractionBaseline + 1))];
+    Eigen::VectorXd& now = scaled_ago(0);
     now.resize(d.size());
     for (Eigen::Index i = 0; i < d.size(); ++i) now[i] = std::abs(d[i]) / sc.scale_of(i);
-    const long baseline = std::min(kContractionBaseline, k / 2);
+    return largest_ago(0);
+  }
+  // The scaled change of `ago` periods before the last recorded (ago ≤ kContractionBaseline).
+  Eigen::VectorXd& scaled_ago(long ago) { return ring[static_cast<std::size_t>((periods - 1 - ago) % (kContractionBaseline + 1))]; }
+  const Eigen::VectorXd& scaled_ago(long ago) const { return ring[static_cast<std::size_t>((periods - 1 - ago) % (kContractionBaseline + 1))]; }
+  double largest_ago(long ago) const {
+    double m = 0.0;
+    if (periods > ago) {
+      for (const double v : scaled_ago(ago)) m = std::max(m, v);
+    }
+    return m;
+  }
+  // The largest distance left of the last recorded period's states.
+  double left() const {
+    const long baseline = std::min(kContractionBaseline, (periods - 1) / 2);
     if (baseline < 1) return 0.0;
-    const Eigen::VectorXd& then = ring[static_cast<std::size_t>((k - baseline) % (kContractionBaseline + 1))];
+    const Eigen::VectorXd& now = scaled_ago(0);
+    const Eigen::VectorXd& then = scaled_ago(baseline);
     double worst = 0.0;
-    for (Eigen::Index i = 0; i < d.size(); ++i) {
+    for (Eigen::Index i = 0; i < now.size(); ++i) {
       if (now[i] == 0.0 || streak[static_cast<std::size_t>(i)] < kCoherentPeriods) continue;
       const double rho = then[i] > 0.0 ? std::pow(now[i] / then[i], 1.0 / static_cast<double>(baseline)) : HUGE_VAL;
       worst = std::max(worst, rho < 1.0 ? now[i] * rho / (1.0 - rho) : HUGE_VAL);
@@ -355,21 +374,21 @@ struct Shooter {
   double elapsed_s() const { return std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count(); }
   bool out_of_time() const { return elapsed_s() > p.maximum_wall_time_s; }
 
-  // Each direct period's change, in error scales (for outlook()).
-  std::vector<double> direct_changes;
-  double last_change() const { return direct_changes.empty() ? 0.0 : direct_changes.back(); }
+  // The direct periods' changes (also for outlook()).
+  DirectPeriodChanges changes;
+  double last_change() const { return changes.largest_ago(0); }
 
   // For a search that ran out of periods or time: how fast its periods were converging — one
   // period's factor ρ on the change, from the change now against kOutlookBaseline periods (at most;
   // half the periods run) before — and, for 0 < ρ < 1, how many more periods would bring the
   // estimated distance left, change·ρ/(1 − ρ), within the tolerance: n = ln(tol/left)/ln ρ. Empty
   // with fewer than kLeastOutlookPeriods periods run.
-  static constexpr long kOutlookBaseline = 1000, kLeastOutlookPeriods = 20;
+  static constexpr long kOutlookBaseline = DirectPeriodChanges::kContractionBaseline, kLeastOutlookPeriods = 20;
   std::string outlook() const {
-    const auto k = static_cast<long>(direct_changes.size());
+    const long k = changes.periods;
     if (k < kLeastOutlookPeriods) return "";
     const long baseline = std::min(kOutlookBaseline, k / 2);
-    const double now = direct_changes.back(), then = direct_changes[static_cast<std::size_t>(k - 1 - baseline)];
+    const double now = changes.largest_ago(0), then = changes.largest_ago(baseline);
     if (!(now > 0.0 && then > 0.0)) return "";
     const double rho = std::pow(now / then, 1.0 / static_cast<double>(baseline));
     std::ostringstream m;
@@ -389,8 +408,7 @@ struct Shooter {
   bool direct(Eigen::VectorXd& x) {
     fast.clear();  // every state counts here
     step_budget = o.maximum_steps;
-    direct_changes.clear();
-    PerStateContraction per_state;
+    changes = DirectPeriodChanges{};
     double previous_change = 0.0;
     double window_largest = 0.0, previous_window_largest = HUGE_VAL;
     for (long k = 0; k < p.maximum_direct_periods; ++k) {
@@ -402,21 +420,20 @@ struct Shooter {
         throw SimulationError(m.str());
       }
       const Eigen::VectorXd next = map(x);
-      const double change = scaled_norm(next - x);
-      direct_changes.push_back(change);
+      const double change = changes.record(k, next - x, *this);  // every state: none is fast here
       // Distance left from the contraction ρ between periods: change·ρ/(1 − ρ).
       const double rho = previous_change > 0.0 ? change / previous_change : 1.0;
       // A period that maps the state onto itself bit for bit (a pwl circuit's exact fixed point)
       // has arrived: nothing is left, whatever the last contraction was.
       double left = change == 0.0 ? 0.0 : rho < 1.0 ? change * rho / (1.0 - rho) : HUGE_VAL;
-      if (change > 0.0) left = std::max(left, per_state.left(k, next - x, *this));
+      if (change > 0.0) left = std::max(left, changes.left());
       x = next;
       previous_change = change;
       out.distance_in_error_scales = std::max(change, left);
       if (p.progress && k % 64 == 0) p.progress(static_cast<double>(k) / static_cast<double>(p.maximum_direct_periods));
       // Arrived: bit for bit, or within the tolerance once every state could be judged by its
       // own contraction (a faster mode's first few ratios say nothing of a slow one; tested).
-      const bool judged = change == 0.0 ? k >= 2 : k + 1 >= PerStateContraction::kLeastJudgedPeriods;
+      const bool judged = change == 0.0 ? k >= 2 : k + 1 >= DirectPeriodChanges::kLeastJudgedPeriods;
       if (judged && out.distance_in_error_scales <= p.tolerance_in_error_scales) return true;
       window_largest = std::max(window_largest, change);
       if ((k + 1) % kSettleWindow == 0) {
