@@ -741,3 +741,96 @@ average_current = "0.0652862 A"
   CHECK(m.get("hold_average_current_A") == rel(0.0652862).epsilon(1e-4));
   CHECK(average_by_periods_one_by_one(sc.driver, m.get("hold_duty")) == rel(0.0652862).epsilon(1e-3));
 }
+
+namespace {
+// A high-side P-MOSFET on a PWM hold (demo values: a greenhouse mist valve's coil, 30 Ω, 5 mH,
+// at 20 kHz), its gate pulled down through an NPN level shifter and pulled up — turned off —
+// through `pullup`. The pull-up sets how fast the switch turns off in every period.
+DriverSpec mist_valve_on_pwm(const std::string& pullup, const std::string& hold_keys) {
+  return coilkick::scenario::read_scenario_text(R"(
+name = "mist valve on a PWM hold"
+[supply]
+voltage = "24 V"
+[drive]
+high_level = "3.3 V"
+switch_off_at = "2 ms"
+[coil]
+resistance = "30 ohm"
+inductance = "5 mH"
+release_current = "10 mA"
+[switch]
+topology = "high_side_pmos"
+part = "pmos_logic_level_60v"
+gate_resistor = "100 ohm"
+pullup_resistor = ")" + pullup + R"("
+level_shifter_part = "npn_small_signal_40v"
+level_shifter_base_resistor = "10 kohm"
+[clamp]
+kind = "diode"
+diode_part = "rectifier_1a"
+[hold]
+pwm_frequency = "20 kHz"
+pull_in_time = "1 ms"
+)" + hold_keys, "mist valve", test_support::catalogue()).driver;
+}
+
+const RatingCheck& check_named(const SwitchOffResult& r, const std::string& name) {
+  for (const auto& c : r.checks) {
+    if (c.name == name) return c;
+  }
+  FAIL("no check named " << name);
+  throw std::logic_error("unreachable");
+}
+}  // namespace
+
+TEST_CASE("hold: a switch slower to turn off than the off-time fails hold_switch_follows, and its turn-off goes with the pull-up") {
+  // The final switch-off starts where a steady on-time ends, so its switch_off_delay_s is the
+  // switch's turn-off in every period; at the duty 0.5 of 20 kHz the off-time is 25 µs (the
+  // check's limits: half of it to pass, all of it before failing). Charge control of a MOSFET's
+  // gate: the gate's charge moved by the pull-up's current ΔV/R turns it off in t ≈ Q·R/ΔV, in
+  // proportion to R (common practice; from memory): 47 kΩ → 470 kΩ multiplies the turn-off by
+  // 10 within 10 % (what does not scale with R — the level shifter's own release, the plateau
+  // moving with the current — is a few per cent of it; measured 10.3).
+  const std::string duty = "pwm_duty = \"0.5\"\n";
+  const auto fast = simulate_switch_off(mist_valve_on_pwm("4.7 kohm", duty), test_support::catalogue());
+  const auto slow = simulate_switch_off(mist_valve_on_pwm("47 kohm", duty), test_support::catalogue());
+  const auto slower = simulate_switch_off(mist_valve_on_pwm("470 kohm", duty), test_support::catalogue());
+  const double off_time_s = 0.5 / 20e3;
+  for (const auto* r : {&fast, &slow, &slower}) {
+    const RatingCheck& c = check_named(*r, "hold_switch_follows");
+    CHECK(c.value == r->metrics.get("switch_off_delay_s"));
+    CHECK(c.limit == rel(0.5 * off_time_s).epsilon(1e-12));
+    CHECK(c.fail_limit == rel(off_time_s).epsilon(1e-12));
+  }
+  CHECK(check_named(fast, "hold_switch_follows").status == CheckStatus::pass);
+  CHECK(check_named(slow, "hold_switch_follows").status == CheckStatus::fail);
+  CHECK(check_named(slower, "hold_switch_follows").status == CheckStatus::fail);
+  CHECK(slower.metrics.get("switch_off_delay_s") / slow.metrics.get("switch_off_delay_s") == rel(10.0).epsilon(0.1));
+  // Switched on again before it has turned off, the slow switch never blocks: the coil carries
+  // nearly its full current, 24 V over 30 Ω (less the switch's drop), at a duty of 0.5.
+  CHECK(slow.metrics.get("hold_average_current_A") > 0.95 * 24.0 / 30.0);
+}
+
+TEST_CASE("hold: a search that fails on a switch slower than the period says that the switch cannot follow it") {
+  // The 470 kΩ pull-up turns the switch off in ~0.6 ms, twelve periods of 20 kHz: the average
+  // jumps across one duty (the switch stays on from one period into the next above it) and the
+  // search is refused — with the reason, read from a switch-off from the DC on-state.
+  const DriverSpec s = mist_valve_on_pwm("470 kohm", "average_current = \"20 mA\"\n");
+  try {
+    (void)simulate_switch_off(s, test_support::catalogue());
+    FAIL("the hold was not refused");
+  } catch (const std::invalid_argument& e) {
+    const std::string what = e.what();
+    CHECK(what.find("the switch cannot follow that drive") != std::string::npos);
+    CHECK(what.find("hold.pwm_frequency") != std::string::npos);
+    CHECK(what.find("against a period of 50 us") != std::string::npos);
+  }
+  // A switch that follows gets no such words where its search fails: the same board with the
+  // 4.7 kΩ pull-up asked for 0.999 of the full drive's V/R, beyond every duty (the test above).
+  DriverSpec follows = mist_valve_on_pwm("4.7 kohm", "average_current = \"20 mA\"\n");
+  follows.hold.average_current_A = 0.999 * 24.0 / 30.0;
+  const std::string message = test_support::switch_off_error<std::invalid_argument>(follows);
+  CAPTURE(message);
+  CHECK(message.find("even the longest duty stays below") != std::string::npos);
+  CHECK(message.find("cannot follow") == std::string::npos);
+}

@@ -9,6 +9,7 @@
 #include "coilkick/drivers/off_state.hpp"
 #include "coilkick/drivers/on_state.hpp"
 #include "coilkick/drivers/run_time_origin.hpp"
+#include "coilkick/drivers/si_format.hpp"
 #include "coilkick/drivers/switch_off_checks.hpp"
 #include "coilkick/drivers/switch_off_transient.hpp"
 #include "coilkick/engine/circuit.hpp"
@@ -86,6 +87,47 @@ bool is_pwl(const DriverSpec& spec) { return spec.analysis.model_level == device
   throw engine::SimulationError(m.str());
 }
 
+// A hold (or repetition) that fails where the switch cannot follow its drive: a switch that
+// takes longer than a whole period to turn off is switched on again before it has blocked, so it
+// sits in its linear region and the average moves steeply and irregularly with the duty (a random
+// driver's high-side P-MOSFET, its gate pulled up through 66 kΩ, took 83 µs at a 41 µs period; its
+// periods wandered by milliamperes and never settled). The failure then says so, from one
+// switch-off of the same driver from its DC on-state (switch_off_delay_s); otherwise it is
+// rethrown as it was.
+HoldResult solve_hold_or_say_why(const DriverSpec& spec, const BuiltDriver& b) {
+  auto slow_switch = [&]() -> std::string {
+    DriverSpec plain = spec;
+    plain.hold = HoldSpec{};
+    plain.repeat = RepeatSpec{};
+    double delay_s = 0.0;
+    try {
+      delay_s = simulate_switch_off(plain, b, nullptr).metrics.get("switch_off_delay_s");
+    } catch (const engine::SimulationError&) {
+      return "";  // no plain switch-off to read either: the hold's own failure says enough
+    } catch (const std::invalid_argument&) {
+      return "";
+    }
+    const double period_s = 1.0 / spec.periodic_drive().pwm_frequency_Hz;
+    if (!(delay_s > period_s)) return "";
+    std::ostringstream m;
+    m << "; the switch cannot follow that drive: one switch-off from the DC on-state takes " << format_si(delay_s, "s")
+      << " (switch_off_delay_s) against a period of " << format_si(period_s, "s") << " ("
+      << (spec.hold.present() ? "hold.pwm_frequency" : "repeat.period")
+      << "), so every on-time comes before the switch has turned off: a longer period, or a faster turn-off (smaller pull-up, "
+         "base or gate resistors)";
+    return m.str();
+  };
+  try {
+    return solve_hold(spec, b);
+  } catch (const engine::TimeResolutionError& e) {
+    throw engine::TimeResolutionError(e.what() + slow_switch());
+  } catch (const engine::SimulationError& e) {
+    throw engine::SimulationError(e.what() + slow_switch());
+  } catch (const std::invalid_argument& e) {
+    throw std::invalid_argument(e.what() + slow_switch());
+  }
+}
+
 // The switch-off of `run` (the scenario's driver `spec`, its times moved by −shift_s), a pwl
 // driver's DC points from the physical level's where its own Newton fails.
 SwitchOffResult run_switch_off(const DriverSpec& spec, const DriverSpec& run, double shift_s, const catalogue::Catalogue& parts,
@@ -160,7 +202,7 @@ SwitchOffResult simulate_switch_off(const DriverSpec& spec, const BuiltDriver& b
   // coil that never de-energises has no steady period to speak of). (One channel only.)
   engine::CircuitState start = on.state;
   if (spec.has_periodic_drive() && off.blocks) {
-    out.hold = std::make_shared<const HoldResult>(solve_hold(spec, b));
+    out.hold = std::make_shared<const HoldResult>(solve_hold_or_say_why(spec, b));
     start = out.hold->final_start;
     channels.front().on.state = start;
     channels.front().on.coil_current_A = start.values[circuit.state_index("coil.current")];

@@ -10,6 +10,9 @@ namespace {
 
 const double kNaN = std::numeric_limits<double>::quiet_NaN();
 constexpr double kHoldMargin = 1.2;  // lowest hold current over the release current (our choice)
+// A PWM's switch turns off within this share of each off-time (our choice: room for the spread
+// of its gate or base charge and of the drive's resistors).
+constexpr double kTurnOffShareOfOffTime = 0.5;
 
 // pass up to `pass_limit`, warn up to `fail_limit`, fail beyond (a NaN value fails).
 RatingCheck graded(const std::string& name, double value, double pass_limit, double fail_limit, const std::string& unit,
@@ -211,6 +214,20 @@ struct Checker {
                                             "hold.pull_in_time or raise hold.pull_in_current"});
     }
     const double T = h.period_s;
+    // The final switch-off starts where a steady on-time ends, so its switch-off delay is the
+    // time the switch takes to turn off in every period. Beyond the off-time it is switched on
+    // again before it has turned off: it never blocks, sits in its linear region, and its
+    // average current and heat hang on how far it got (a random driver's P-MOSFET whose gate
+    // was pulled up through 66 kΩ: 55 µs against a 41 µs off-time, 1.1 W in a "hold").
+    const double off_time_s = (1.0 - h.duty) * T, turn_off_s = m.get("switch_off_delay_s");
+    if (std::isfinite(turn_off_s) && off_time_s > 0.0) {
+      out.push_back(graded(repeated ? "repeat_switch_follows" : "hold_switch_follows", turn_off_s, kTurnOffShareOfOffTime * off_time_s,
+                           off_time_s, "s",
+                           "time the switch takes to turn off in each period (switch_off_delay_s, from the end of a steady "
+                           "on-time) against half the off-time " + si(off_time_s, "s") +
+                               " (our choice); fails beyond the whole off-time: the switch is turned on again before it "
+                               "has turned off"));
+    }
     for (std::size_t k = 0; k < b.clamp_parts.size(); ++k) {
       const auto* part = b.clamp_parts[k];
       if (!part->has_rating("power") || k >= h.clamp_part_energy_per_period_J.size()) continue;
