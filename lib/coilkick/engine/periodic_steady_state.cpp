@@ -233,22 +233,30 @@ struct Shooter {
   Eigen::MatrixXd monodromy;
 
   // Multipliers above kRepellingMultiplier read from the sensitivity matrix, measured again on
-  // their modes: the converged state x* pushed along the mode's eigenvector by kModePush error
-  // scales, one period run with its own steps, and the mode's component of the result (from the
-  // left eigenvectors) against the push. Finite differences of 1e-5 along replayed steps are
-  // good to ~1e-5 of most multipliers, but a column replayed through a stiff turn (a switch's
-  // avalanche, a TVS) can be off by percent, and a fast mode or a slow coil's e^(−T·R/L) just
-  // below 1 then reads above it; a push of a thousand error scales is measured to ~1e-3 by the
-  // run's own tolerance. Returns the largest multiplier with those measured.
+  // their modes, and the largest one always: the converged state x* pushed along the mode's
+  // eigenvector by kModePush error scales, one period run with its own steps, and the mode's
+  // component of the result (from the left eigenvectors) against the push. Finite differences of
+  // 1e-5 along replayed steps are good to ~1e-5 of most multipliers, but a column replayed
+  // through a stiff turn (a switch's avalanche, a TVS, a pwl piece change) can be off by percent
+  // or more, and a fast mode or a slow coil's e^(−T·R/L) just below 1 then reads above it; a push
+  // of a thousand error scales is measured to ~1e-3 by the run's own tolerance. Returns the
+  // largest multiplier, the repelling candidates as measured. A real mode measured far from its
+  // reading (kMisread) is put right in `monodromy`, and `misread` says so: Newton's last step,
+  // taken with the misread sensitivities, is then no measure of the distance left (polish()).
   static constexpr double kModePush = 1e3;
+  bool misread = false;
   double largest_multiplier_measured(const Eigen::VectorXd& x_star, const Eigen::VectorXd& f_star) {
     using Complex = std::complex<double>;
     Eigen::ComplexEigenSolver<Eigen::MatrixXcd> es(monodromy.cast<Complex>());
     const Eigen::MatrixXcd left = es.eigenvectors().inverse();  // rows: left eigenvectors
     Eigen::VectorXd magnitude = es.eigenvalues().cwiseAbs();
     if (!left.allFinite()) return magnitude.maxCoeff();
+    Eigen::Index largest = 0;
+    magnitude.maxCoeff(&largest);
+    Eigen::MatrixXcd correction = Eigen::MatrixXcd::Zero(monodromy.rows(), monodromy.cols());
     for (Eigen::Index k = 0; k < magnitude.size(); ++k) {
-      if (!(magnitude[k] > kRepellingMultiplier)) continue;
+      const bool repelling = magnitude[k] > kRepellingMultiplier;
+      if (!repelling && k != largest) continue;
       Eigen::VectorXd mode = es.eigenvectors().col(k).real();
       if (!(scaled_norm(mode) > 0.0)) mode = es.eigenvectors().col(k).imag();
       const double size = scaled_norm(mode);
@@ -261,14 +269,55 @@ struct Shooter {
       } catch (const SimulationError&) {
         continue;  // the push ran into a failure: the multiplier stays as read
       }
-      const Complex after = (left.row(k) * (moved - f_star).cast<Complex>())(0, 0);
-      const double measured = std::abs(after) / std::abs(before);
+      const Complex ratio = (left.row(k) * (moved - f_star).cast<Complex>())(0, 0) / before;
+      const Complex read = es.eigenvalues()[k];
+      const bool real_mode = std::abs(read.imag()) <= 1e-12 * std::abs(read);
+      if (real_mode && std::abs(ratio.real() - read.real()) > kMisread) {
+        correction += (ratio.real() - read.real()) * es.eigenvectors().col(k) * left.row(k);
+        misread = true;
+      }
+      if (!repelling) continue;  // the largest, read below the bar: measured for the misreading only
+      const double measured = std::abs(ratio);
       // A complex pair is one mode: its partner takes the same measurement.
       for (Eigen::Index j = 0; j < magnitude.size(); ++j) {
         if (j == k || std::abs(es.eigenvalues()[j] - std::conj(es.eigenvalues()[k])) <= 1e-12 * magnitude[k]) magnitude[j] = measured;
       }
     }
+    if (misread) monodromy += correction.real();
     return magnitude.maxCoeff();
+  }
+  // A multiplier measured this far from its reading was misread (the measurement's own error is
+  // ~1e-3: the push of kModePush error scales against the run's tolerance).
+  static constexpr double kMisread = 1e-2;
+
+  // Chord steps with the sensitivities put right by the measured multipliers, after Newton
+  // converged on misread ones: a slow coil's multiplier e^(−T·R/L) = 0.9973 read as 1.65 across a
+  // pwl piece change makes Newton's step −r/0.65 instead of r/0.0027, so a residual of a few error
+  // scales — a warm start one duty away — passed as converged, 0.5 mA (2,000 error scales) from
+  // the steady state (campaign seed 2695, a pwl high-side P-MOSFET hold). Each step runs one
+  // period; converged when the step (the distance, now that the mode's multiplier is right) is
+  // within the tolerance. The fast states take the period's values, as in Newton.
+  static constexpr int kPolishSteps = 8;
+  bool polish(Eigen::VectorXd& x) {
+    const Eigen::Index n = x.size();
+    const Eigen::FullPivLU<Eigen::MatrixXd> lu(monodromy - Eigen::MatrixXd::Identity(n, n));
+    for (int it = 0; it < kPolishSteps; ++it) {
+      throw_if_interrupted();
+      const Eigen::VectorXd f = map(x);
+      const Eigen::VectorXd step = lu.solve(x - f);
+      if (!step.allFinite()) return false;
+      Eigen::VectorXd next = x + step;
+      for (Eigen::Index i = 0; i < n; ++i) {
+        if (!fast.empty() && fast[static_cast<std::size_t>(i)]) next[i] = f[i];
+      }
+      x = next;
+      out.distance_in_error_scales = scaled_norm(step);
+      if (out.distance_in_error_scales <= p.tolerance_in_error_scales) {
+        settle(x);
+        return true;
+      }
+    }
+    return false;
   }
 
   bool shoot(Eigen::VectorXd& x) {
@@ -476,8 +525,15 @@ PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& 
     } catch (const SimulationError& e) {
       s.out.note = std::string("a shooting period failed (") + e.what() + ")";
     }
-    if (done && s.out.largest_multiplier > kRepellingMultiplier) s.out.largest_multiplier = s.largest_multiplier_measured(trial, s.map(trial));
+    if (done) {
+      const double measured = s.largest_multiplier_measured(trial, s.map(trial));
+      if (s.out.largest_multiplier > kRepellingMultiplier) s.out.largest_multiplier = measured;
+    }
     const bool repels = done && s.out.largest_multiplier > kRepellingMultiplier;
+    if (done && !repels && s.misread) {
+      done = s.polish(trial);
+      if (!done) s.out.note = "shooting's sensitivities misread a multiplier of one period, and steps with it measured did not converge";
+    }
     if (repels) {
       done = false;
       std::ostringstream m;
