@@ -297,10 +297,11 @@ struct Shooter {
   // the steady state (campaign seed 2695, a pwl high-side P-MOSFET hold). Each step runs one
   // period; converged when the step (the distance, now that the mode's multiplier is right) is
   // within the tolerance. The fast states take the period's values, as in Newton.
-  static constexpr int kPolishSteps = 8;
+  static constexpr int kPolishSteps = 64;
   bool polish(Eigen::VectorXd& x) {
     const Eigen::Index n = x.size();
     const Eigen::FullPivLU<Eigen::MatrixXd> lu(monodromy - Eigen::MatrixXd::Identity(n, n));
+    double previous = 0.0;
     for (int it = 0; it < kPolishSteps; ++it) {
       throw_if_interrupted();
       const Eigen::VectorXd f = map(x);
@@ -311,11 +312,17 @@ struct Shooter {
         if (!fast.empty() && fast[static_cast<std::size_t>(i)]) next[i] = f[i];
       }
       x = next;
-      out.distance_in_error_scales = scaled_norm(step);
-      if (out.distance_in_error_scales <= p.tolerance_in_error_scales) {
+      const double size = scaled_norm(step);
+      out.distance_in_error_scales = size;
+      // Far from the state the chord steps converge linearly (the sensitivities are right only
+      // along the measured mode, and only near where it was measured): the distance left after a
+      // step of contraction q is step·q/(1 − q), within the tolerance before it is taken.
+      const double q = it > 0 && previous > 0.0 ? size / previous : 0.0;
+      if (q < 1.0 && size * std::max(1.0, q / (1.0 - q)) <= p.tolerance_in_error_scales) {
         settle(x);
         return true;
       }
+      previous = size;
     }
     return false;
   }
@@ -528,6 +535,19 @@ PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& 
     if (done) {
       const double measured = s.largest_multiplier_measured(trial, s.map(trial));
       if (s.out.largest_multiplier > kRepellingMultiplier) s.out.largest_multiplier = measured;
+    } else if (s.out.note.empty() && s.monodromy.size() > 0) {
+      // Newton did not converge: a misread multiplier (a slow coil's read above 1 across pwl
+      // pieces) sends every step the wrong way. Measured and put right, chord steps from its last
+      // iterate; where they do not converge either, the periods one by one go on from that iterate.
+      const Eigen::VectorXd last = trial;
+      try {
+        const double measured = s.largest_multiplier_measured(trial, s.map(trial));
+        done = s.misread && !(measured > kRepellingMultiplier) && s.polish(trial);
+        if (done) s.out.largest_multiplier = measured;
+      } catch (const SimulationError&) {
+        done = false;
+      }
+      if (!done) trial = last;
     }
     const bool repels = done && s.out.largest_multiplier > kRepellingMultiplier;
     if (done && !repels && s.misread) {
