@@ -290,13 +290,13 @@ struct Shooter {
   // ~1e-3: the push of kModePush error scales against the run's tolerance).
   static constexpr double kMisread = 1e-2;
 
-  // Chord steps with the sensitivities put right by the measured multipliers, after Newton
-  // converged on misread ones: a slow coil's multiplier e^(−T·R/L) = 0.9973 read as 1.65 across a
-  // pwl piece change makes Newton's step −r/0.65 instead of r/0.0027, so a residual of a few error
-  // scales — a warm start one duty away — passed as converged, 0.5 mA (2,000 error scales) from
-  // the steady state (campaign seed 2695, a pwl high-side P-MOSFET hold). Each step runs one
-  // period; converged when the step (the distance, now that the mode's multiplier is right) is
-  // within the tolerance. The fast states take the period's values, as in Newton.
+  // Chord steps with the sensitivities put right by the measured multipliers, where Newton ran on
+  // misread ones: a slow coil's multiplier e^(−T·R/L) = 0.9973 read as 1.65 across a pwl piece
+  // change makes Newton's step −r/0.65 instead of r/0.0027, so a residual of a few error scales —
+  // a warm start one duty away — passed as converged, 0.5 mA (2,000 error scales) from the steady
+  // state (campaign seed 2695, a pwl high-side P-MOSFET hold), and from farther away Newton does
+  // not converge at all. Each step runs one period; the fast states take the period's values, as
+  // in Newton.
   static constexpr int kPolishSteps = 64;
   bool polish(Eigen::VectorXd& x) {
     const Eigen::Index n = x.size();
@@ -532,27 +532,27 @@ PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& 
     } catch (const SimulationError& e) {
       s.out.note = std::string("a shooting period failed (") + e.what() + ")";
     }
-    if (done) {
-      const double measured = s.largest_multiplier_measured(trial, s.map(trial));
-      if (s.out.largest_multiplier > kRepellingMultiplier) s.out.largest_multiplier = measured;
-    } else if (s.out.note.empty() && s.monodromy.size() > 0) {
-      // Newton did not converge: a misread multiplier (a slow coil's read above 1 across pwl
-      // pieces) sends every step the wrong way. Measured and put right, chord steps from its last
-      // iterate; where they do not converge either, the periods one by one go on from that iterate.
+    // The largest multiplier measured on its mode (and any read above 1): where the sensitivities
+    // misread one, it is put right and chord steps decide — after a converged Newton, whose last
+    // step was no measure of the distance left, and after one that did not converge, whose steps
+    // the misread mode sent the wrong way (a slow coil's read above 1 across pwl pieces); from
+    // its last iterate, and where they do not converge either the periods one by one go on from
+    // that iterate.
+    bool repels = false;
+    if (s.out.note.empty() && s.monodromy.size() > 0) {
       const Eigen::VectorXd last = trial;
+      const bool newton_converged = done;
       try {
         const double measured = s.largest_multiplier_measured(trial, s.map(trial));
-        done = s.misread && !(measured > kRepellingMultiplier) && s.polish(trial);
-        if (done) s.out.largest_multiplier = measured;
+        if (!newton_converged || s.out.largest_multiplier > kRepellingMultiplier) s.out.largest_multiplier = measured;
+        repels = measured > kRepellingMultiplier;
+        if (s.misread && !repels) done = s.polish(trial);
+        if (newton_converged && !done) s.out.note = "shooting's sensitivities misread a multiplier of one period, and steps with it measured did not converge";
       } catch (const SimulationError&) {
-        done = false;
+        trial = last;  // a measuring or chord period failed: Newton's own verdict stands
       }
       if (!done) trial = last;
-    }
-    const bool repels = done && s.out.largest_multiplier > kRepellingMultiplier;
-    if (done && !repels && s.misread) {
-      done = s.polish(trial);
-      if (!done) s.out.note = "shooting's sensitivities misread a multiplier of one period, and steps with it measured did not converge";
+      repels = repels && done;
     }
     if (repels) {
       done = false;
