@@ -39,8 +39,8 @@ Eigen::Index coupled_count(const Circuit& c) { return static_cast<Eigen::Index>(
 // kContractionBaseline periods; and the distance left, state by state, from each state's own
 // contraction over a baseline of periods (kContractionBaseline at most, half the periods run): a
 // slow mode (a coil whose L/R is thousands of periods) moves its state by little each period, and
-// while a faster mode still decays in another state, the largest change's ratio between two periods is the fast mode's —
-// read alone it had taken a coil 5e-6 short of its periodic state as arrived (tested). Only a
+// while a faster mode still decays in another state, the largest change's ratio between two
+// periods is the fast mode's — read alone it had taken a coil 5e-6 short of its periodic state as arrived (tested). Only a
 // state that has moved the same way for kCoherentPeriods periods counts: one whose changes
 // flip sign is at the runs' noise (or turns with a complex pair of multipliers, which the
 // largest change's ratio still judges). docs/derivations.md, "Coil under a square-wave drive",
@@ -290,28 +290,32 @@ struct Shooter {
   // ~1e-3: the push of kModePush error scales against the run's tolerance).
   static constexpr double kMisread = 1e-2;
 
+  // The fast states (Newton–Picard, above) take the values a period gave them.
+  void take_fast_from(const Eigen::VectorXd& f, Eigen::VectorXd& x) const {
+    for (Eigen::Index i = 0; i < x.size(); ++i) {
+      if (!fast.empty() && fast[static_cast<std::size_t>(i)]) x[i] = f[i];
+    }
+  }
+
   // Chord steps with the sensitivities put right by the measured multipliers, where Newton ran on
   // misread ones: a slow coil's multiplier e^(−T·R/L) = 0.9973 read as 1.65 across a pwl piece
   // change makes Newton's step −r/0.65 instead of r/0.0027, so a residual of a few error scales —
   // a warm start one duty away — passed as converged, 0.5 mA (2,000 error scales) from the steady
   // state (campaign seed 2695, a pwl high-side P-MOSFET hold), and from farther away Newton does
   // not converge at all. Each step runs one period; the fast states take the period's values, as
-  // in Newton.
+  // in Newton. `fx` is the period already run from x.
   static constexpr int kPolishSteps = 64;
-  bool polish(Eigen::VectorXd& x) {
+  bool polish(Eigen::VectorXd& x, Eigen::VectorXd fx) {
     const Eigen::Index n = x.size();
     const Eigen::FullPivLU<Eigen::MatrixXd> lu(monodromy - Eigen::MatrixXd::Identity(n, n));
     double previous = 0.0;
     for (int it = 0; it < kPolishSteps; ++it) {
       throw_if_interrupted();
-      const Eigen::VectorXd f = map(x);
-      const Eigen::VectorXd step = lu.solve(x - f);
+      if (it > 0) fx = map(x);
+      const Eigen::VectorXd step = lu.solve(x - fx);
       if (!step.allFinite()) return false;
-      Eigen::VectorXd next = x + step;
-      for (Eigen::Index i = 0; i < n; ++i) {
-        if (!fast.empty() && fast[static_cast<std::size_t>(i)]) next[i] = f[i];
-      }
-      x = next;
+      x += step;
+      take_fast_from(fx, x);
       const double size = scaled_norm(step);
       out.distance_in_error_scales = size;
       // Far from the state the chord steps converge linearly (the sensitivities are right only
@@ -386,9 +390,7 @@ struct Shooter {
       if (!accepted) return false;
       const double moved = scaled_norm(lambda * step);
       recorded = x_new;
-      for (Eigen::Index i = 0; i < n; ++i) {
-        if (fast[static_cast<std::size_t>(i)]) x_new[i] = f_new[i];
-      }
+      take_fast_from(f_new, x_new);
       x = x_new;
       fx = f_new;
       r = r_new;
@@ -543,10 +545,11 @@ PeriodicSteadyState periodic_steady_state(const Circuit& c, const CircuitState& 
       const Eigen::VectorXd last = trial;
       const bool newton_converged = done;
       try {
-        const double measured = s.largest_multiplier_measured(trial, s.map(trial));
+        const Eigen::VectorXd f_trial = s.map(trial);
+        const double measured = s.largest_multiplier_measured(trial, f_trial);
         if (!newton_converged || s.out.largest_multiplier > kRepellingMultiplier) s.out.largest_multiplier = measured;
         repels = measured > kRepellingMultiplier;
-        if (s.misread && !repels) done = s.polish(trial);
+        if (s.misread && !repels) done = s.polish(trial, f_trial);
         if (newton_converged && !done) s.out.note = "shooting's sensitivities misread a multiplier of one period, and steps with it measured did not converge";
       } catch (const SimulationError&) {
         trial = last;  // a measuring or chord period failed: Newton's own verdict stands
